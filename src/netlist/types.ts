@@ -1,0 +1,166 @@
+/**
+ * NetlistDoc: a validated netlist. Every number is SI (Pa absolute unless a field says gauge,
+ * m, m³, kg, K, s, kg/s). Produced by `readNetlist`; consumed by `model/`.
+ */
+
+/** Where something came from in the source text. */
+export interface SourcePos {
+  file: string;
+  line: number;   // 1-based
+  column: number; // 1-based
+  path: (string | number)[];
+}
+
+/** A function of time with its kinks (where an integrator must restart). */
+export interface TimeSeries {
+  at(t: number): number;
+  /** Times (s) where the function or its slope is discontinuous, ascending. */
+  breakpoints: number[];
+  constant: boolean;
+  /** The text it came from, for reports. */
+  text: string;
+}
+
+export interface GasSpec {
+  name: string;          // air | nitrogen | helium | carbon-dioxide | custom
+  molarMass: number;     // kg/mol
+  gamma: number;         // cp/cv
+  viscosity: { value: number; at: number; sutherland: number }; // Pa·s at K, Sutherland constant K
+}
+
+export type WallSpec =
+  | { law: 'rigid'; volume: number }
+  | { law: 'linear'; volume: number; compliance: number }           // m³, m³/Pa
+  | { law: 'neo-hookean'; radius: number; thickness: number; shearModulus: number }
+  | { law: 'mooney-rivlin'; radius: number; thickness: number; c1: number; c2: number }
+  | { law: 'gent'; radius: number; thickness: number; shearModulus: number; limit: number }
+  | { law: 'measured'; points: [number, number][]; deflation?: [number, number][] }; // [m³, Pa gauge]
+
+export type StartSpec =
+  | { by: 'pressure'; value: number }   // Pa absolute
+  | { by: 'stretch'; value: number }    // -
+  | { by: 'volume'; value: number }     // m³
+  | { by: 'mass'; value: number };      // kg
+
+export interface ChamberSpec {
+  name: string;
+  wall: WallSpec;
+  start: StartSpec;
+  /** K; undefined means ambient. */
+  temperature?: number;
+  limits?: { pressure?: number /* Pa absolute */; stretch?: number };
+  /** h·A in W/K, for heat: exchange. */
+  heatTransfer?: number;
+  pos: SourcePos;
+  /** Positions of individual keys, e.g. fieldPos['wall.radius']. */
+  fieldPos: Record<string, SourcePos>;
+}
+
+export interface ReservoirSpec {
+  name: string;
+  pressure: TimeSeries;  // Pa absolute
+  temperature?: number;  // K; undefined means ambient
+  pos: SourcePos;
+}
+
+export interface LineSpec {
+  name: string;
+  from: string;
+  to: string;
+  diameter: number;   // m
+  length: number;     // m
+  roughness: number;  // m
+  pos: SourcePos;
+}
+
+export type ValveRating =
+  | { kind: 'iso6358'; conductance: number /* m³/(s·Pa) */; criticalRatio: number; subsonicIndex: number }
+  | { kind: 'orifice'; diameter: number /* m */; dischargeCoefficient: number };
+
+/** One schedule step: from time `at`, ramp linearly to `open` (0..1) over `over` seconds. */
+export interface ScheduleStep { at: number; open: number; over: number }
+
+export type ValveOperation =
+  | { kind: 'schedule'; initially: number /* 0..1 */; steps: ScheduleStep[] }
+  | { kind: 'check'; cracking: number /* Pa */ }
+  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */ };
+
+export interface ValveSpec {
+  name: string;
+  from: string;
+  to: string;
+  rating: ValveRating;
+  operation: ValveOperation;
+  /** Name of the line this valve sits in (series combination); from/to then equal the line's. */
+  inLine?: string;
+  pos: SourcePos;
+}
+
+export interface FeedSpec {
+  name: string;
+  into: string;
+  rate: { kind: 'mass'; value: number /* kg/s */ } | { kind: 'anr'; value: number /* m³/s at ISO 8778 */ };
+  /** Temperature of the entering gas, K; undefined means ambient. */
+  temperature?: number;
+  initially: number;       // 0..1
+  steps: ScheduleStep[];   // same semantics as a valve schedule, scaling the rate
+  pos: SourcePos;
+}
+
+export interface SimulateSpec {
+  duration: number;        // s
+  sample?: number;         // s
+  method: 'auto' | 'explicit' | 'implicit';
+  tolerance: number;       // relative
+  maxSteps?: number;
+  maxWall?: number;        // s
+}
+
+export type ProbeQuantity =
+  | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
+  | 'flow' | 'reynolds';
+
+export interface Probe {
+  /** Element name, or 'total' with quantity 'mass'. */
+  element: string;
+  quantity: ProbeQuantity;
+  text: string;
+}
+
+/**
+ * Comparison values are SI; for pressure quantities (`pressure`, `gauge`) values are
+ * absolute Pa (the evaluator subtracts ambient for `gauge`).
+ */
+export type Comparison =
+  | { kind: 'below'; value: number }
+  | { kind: 'above'; value: number }
+  | { kind: 'near'; value: number; within: { abs: number } | { rel: number } };
+
+export type ExpectSpec =
+  | {
+      kind: 'probe';
+      name: string;
+      probe: Probe;
+      when: { at: number | 'end' } | { over: [number, number]; stat: 'max' | 'min' | 'mean' };
+      compare: Comparison;
+      pos: SourcePos;
+    }
+  | { kind: 'settles'; name: string; within: number; band: number; pos: SourcePos };
+
+export interface NetlistDoc {
+  file: string;
+  /** The source text, kept for reports. */
+  source: string;
+  format: 1;
+  title: string;
+  gas: GasSpec;
+  ambient: { pressure: number; temperature: number };
+  heat: 'isothermal' | 'adiabatic' | 'exchange';
+  chambers: ChamberSpec[];
+  reservoirs: ReservoirSpec[];
+  lines: LineSpec[];
+  valves: ValveSpec[];
+  feeds: FeedSpec[];
+  simulate: SimulateSpec;
+  expect: ExpectSpec[];
+}
