@@ -163,4 +163,6 @@ export interface NetlistDoc {
   feeds: FeedSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
+  /** Dotted netlist paths of optional parameters that took their default (e.g. `lines.supply.roughness`). */
+  defaulted?: string[];
 }

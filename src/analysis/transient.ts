@@ -1,0 +1,167 @@
+/**
+ * The main job: integrate a model in time and summarise what happened.
+ */
+import type { Model } from '../model/types.js';
+import { NetworkSystem } from '../assemble/system.js';
+import { drive } from '../solve/driver.js';
+import { rosenbrock } from '../solve/rosenbrock.js';
+import { odex } from '../solve/odex.js';
+import type { Integrator } from '../solve/types.js';
+import { display } from '../units/display.js';
+import { evaluateExpectations, type Recording } from './expectations.js';
+import type { ChamberSummary, LineSummary, RunResult, ValveSummary } from './results.js';
+import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
+
+export interface SimulateOptions {
+  /** Polled every step; return a message to stop (e.g. on Ctrl-C). */
+  interrupt?: () => string | null;
+  /** Called now and then with the simulated time reached. */
+  progress?: (t: number, tEnd: number) => void;
+}
+
+/** Number of samples when the netlist gives no `sample`. */
+const DEFAULT_SAMPLES = 1000;
+/** Relative mass drift above which a run warns (the integrators conserve mass to round-off). */
+const DRIFT_WARN = 1e-9;
+
+function regimeOf(re: number): LineSummary['regime'] {
+  return re < 2300 ? 'laminar' : re > 4000 ? 'turbulent' : 'transitional';
+}
+
+export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array): { integrator: Integrator; name: string; why: string } {
+  const m = model.simulate.method;
+  if (m === 'explicit') return { integrator: odex, name: 'odex', why: 'method: explicit' };
+  if (m === 'implicit') return { integrator: rosenbrock, name: 'rodas', why: 'method: implicit' };
+  const rho = spectralRadiusEstimate(sys, 0, y0);
+  const stiff = !(rho * model.simulate.duration <= STIFF_THRESHOLD);
+  return stiff
+    ? { integrator: rosenbrock, name: 'rodas', why: `auto: stiff (ρ(J)·duration ≈ ${rho * model.simulate.duration > 1e6 ? (rho * model.simulate.duration).toExponential(1) : Math.round(rho * model.simulate.duration)})` }
+    : { integrator: odex, name: 'odex', why: `auto: non-stiff (ρ(J)·duration ≈ ${Math.round(rho * model.simulate.duration)})` };
+}
+
+export function simulate(model: Model, options: SimulateOptions = {}): RunResult {
+  const started = Date.now();
+  const sys = new NetworkSystem(model);
+  const y0 = sys.initialState();
+  sys.settleInitialModes(0, y0);
+  const { integrator, name: method } = chooseMethod(model, sys, y0);
+  const duration = model.simulate.duration;
+  const sample = model.simulate.sample ?? duration / DEFAULT_SAMPLES;
+  const channels = sys.channels();
+  const nch = channels.length;
+  const keys = new Map(channels.map((c, i) => [c.key, i] as const));
+  const trace = { channels, times: [] as number[], values: channels.map(() => [] as number[]) };
+  const rec: Recording = { keys, times: [], rows: [] };
+  const nc = model.chambers.length;
+  const nb = model.branches.length;
+  const peak = model.chambers.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
+  const bPeak = model.branches.map(() => ({ flow: 0, re: 0, choked: false }));
+  const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
+  let lastProgress = 0;
+
+  const observe = (t: number, y: Float64Array, kind: 'sample' | 'step'): void => {
+    const row = new Float64Array(nch);
+    sys.observe(t, y, row);
+    rec.times.push(t);
+    rec.rows.push(row);
+    if (kind === 'sample') {
+      trace.times.push(t);
+      for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
+    }
+    for (let i = 0; i < nc; i++) {
+      const g = row[gaugeCol[i]];
+      const pk = peak[i];
+      if (g > pk.max) { pk.max = g; pk.tMax = t; }
+      if (g < pk.min) { pk.min = g; pk.tMin = t; }
+    }
+    for (let b = 0; b < nb; b++) {
+      const f = sys.flows[b];
+      const bp = bPeak[b];
+      if (Math.abs(f.mdot) > Math.abs(bp.flow)) bp.flow = f.mdot;
+      if (f.reynolds > bp.re) bp.re = f.reynolds;
+      if (f.choked) bp.choked = true;
+    }
+    if (options.progress && Date.now() - lastProgress > 100) {
+      lastProgress = Date.now();
+      options.progress(t, duration);
+    }
+  };
+
+  const r = drive(sys, {
+    integrator, t0: 0, tEnd: duration, y0, sample, observe,
+    maxSteps: model.simulate.maxSteps,
+    maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
+    interrupt: options.interrupt,
+  });
+
+  let message = r.message;
+  if (r.status === 'failed') {
+    sys.evaluate(r.t, r.y);
+    const who = sys.fault ? ` in chamber ${sys.fault}` : '';
+    const likely: Record<string, string> = {
+      'step-too-small': 'the step size collapsed; a likely cause is a chamber driven to zero mass or a valve switching back and forth',
+      'non-finite': `the state left the range where the laws are defined${who}; a likely cause is a chamber emptied below vacuum or inflated to its stretch lock`,
+      singular: 'the iteration matrix is singular; check for a chamber with no volume or a network with no path for gas',
+    };
+    message = `${r.message}${likely[r.cause] ? `: ${likely[r.cause]}` : ''}`;
+  }
+
+  // final values and summaries
+  const yEnd = r.y;
+  const rowEnd = new Float64Array(nch);
+  sys.observe(r.t, yEnd, rowEnd);
+  const chambers: Record<string, ChamberSummary> = {};
+  model.chambers.forEach((c, i) => {
+    const g = (q: string): number => rowEnd[keys.get(`${c.name}.${q}`)!];
+    const fin: ChamberSummary['final'] = {
+      pressure: g('pressure'), gauge: g('gauge'), volume: g('volume'), mass: g('mass'), temperature: g('temperature'),
+    };
+    if (c.wall.sphere) fin.stretch = g('stretch');
+    chambers[c.name] = { final: fin, peak: { gauge: peak[i].max, at: peak[i].tMax }, least: { gauge: peak[i].min, at: peak[i].tMin } };
+  });
+  const lines: Record<string, LineSummary> = {};
+  const valves: Record<string, ValveSummary> = {};
+  model.branches.forEach((b, i) => {
+    const lineName = b.kind === 'line' ? b.name : b.hostLine;
+    if (lineName) lines[lineName] = { peak_flow: bPeak[i].flow, peak_reynolds: bPeak[i].re, regime: regimeOf(bPeak[i].re) };
+    if (b.kind === 'valve') valves[b.name] = { peak_flow: bPeak[i].flow, choked: bPeak[i].choked };
+  });
+  const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
+  const final = sys.totalMass(yEnd);
+  const through = sys.boundaryInflow(yEnd);
+  const drift = (final - initial - through) / initial;
+
+  const warnings: string[] = [];
+  const seen = new Set<string>();
+  for (const e of sys.log) {
+    if ((e.kind === 'limit-pressure' || e.kind === 'limit-stretch') && !seen.has(e.what)) {
+      seen.add(e.what);
+      warnings.push(`${e.what} at t = ${display(e.t, 'time')}: it may burst or yield; see the safety notes`);
+    }
+  }
+  if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
+  model.chambers.forEach((c, i) => {
+    if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${c.name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
+  });
+
+  const expectations = r.status === 'completed'
+    ? evaluateExpectations(model.expect, rec, model.pa, r.t, model.chambers.map((c) => c.name))
+    : [];
+
+  return {
+    format: 1,
+    title: model.doc.title,
+    file: model.doc.file,
+    status: r.status,
+    message,
+    end: r.t,
+    stats: { method, steps: r.work.steps, rejected: r.work.rejected, rhs: r.work.rhs, jacobians: r.work.jacobians, lu: r.work.lu, wall_ms: Date.now() - started },
+    chambers, lines, valves,
+    mass: { initial, final, through_boundaries: through, drift },
+    events: sys.log.map((e) => ({ t: e.t, what: e.what })),
+    warnings,
+    expectations,
+    trace,
+    ambient: model.pa,
+  };
+}

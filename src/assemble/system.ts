@@ -1,0 +1,403 @@
+/**
+ * Model → System: the state layout, the right-hand side, events and observables.
+ *
+ * State vector: for each chamber its gas mass m (kg) [+ temperature T (K) when heat is not
+ * isothermal] [+ hysteresis blend h for a measured wall with two curves]; then one "boundary
+ * store" per reservoir and per feed: the mass that boundary has given to the network, with a
+ * minus sign. Every flow enters through `transfer`, which subtracts at one slot and adds the
+ * same number at another, so the sum of all mass slots is an exact invariant of the rhs:
+ * mass is conserved by construction, and the integrators (linear-invariant preserving)
+ * conserve it to round-off.
+ */
+import type { Gas } from '../physics/gas.js';
+import type { EventfulProblem } from '../solve/driver.js';
+import type { Model, NodeRef } from '../model/types.js';
+import { ChamberState } from '../elements/chamber.js';
+import { BranchState, type BranchFlow } from '../elements/branch.js';
+import { makeSchedule, type Schedule } from '../model/schedule.js';
+
+export interface SystemEvent {
+  kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch';
+  element: string;
+  index: number;        // chamber or branch index
+  direction: number;    // +1, −1, 0
+  /** For extremum events: which extremum. */
+  extremum?: { V: number; p: number; kind: 'max' | 'min' };
+}
+
+export interface LoggedEvent { t: number; what: string; kind: string; element: string }
+
+export interface Channel { key: string; unit: string }
+
+export class NetworkSystem implements EventfulProblem {
+  readonly n: number;
+  rtol: number;
+  atol: Float64Array;
+  readonly gas: Gas;
+  readonly pa: number;
+  readonly Ta: number;
+  readonly isothermal: boolean;
+  readonly nc: number;
+  readonly chambers: ChamberState[];
+  readonly branches: BranchState[];
+  readonly feeds: { schedule: Schedule; rate: number; T: number; into: number; name: string }[];
+  // layout
+  readonly mIdx: Int32Array;
+  readonly TIdx: Int32Array;
+  readonly hIdx: Int32Array;
+  readonly resIdx: Int32Array;
+  readonly feedIdx: Int32Array;
+  // per-node scratch (chambers first, then reservoirs)
+  readonly p: Float64Array;
+  readonly T: Float64Array;
+  readonly V: Float64Array;
+  readonly kappa: Float64Array;
+  readonly mIn: Float64Array;
+  readonly mOut: Float64Array;
+  readonly hIn: Float64Array;
+  readonly flows: BranchFlow[];
+  readonly feedFlow: Float64Array;
+  readonly breakpoints: number[];
+  readonly events: SystemEvent[];
+  readonly log: LoggedEvent[] = [];
+  /** The first element whose state left its law's range during the last evaluation. */
+  fault: string | null = null;
+  private readonly solved = { p: 0, V: 0, kappa: 0 };
+
+  constructor(readonly model: Model) {
+    const nc = model.chambers.length;
+    this.nc = nc;
+    this.gas = model.gas;
+    this.pa = model.pa;
+    this.Ta = model.Ta;
+    this.isothermal = model.heat === 'isothermal';
+    this.chambers = model.chambers.map((c) => new ChamberState(c, model.gas, model.pa));
+    this.branches = model.branches.map((b) => new BranchState(b, model.gas, model.pa));
+    this.feeds = model.feeds.map((f) => ({ schedule: makeSchedule(f.initially, f.steps), rate: f.rate, T: f.T, into: f.into, name: f.name }));
+    let k = 0;
+    this.mIdx = new Int32Array(nc);
+    this.TIdx = new Int32Array(nc).fill(-1);
+    this.hIdx = new Int32Array(nc).fill(-1);
+    for (let i = 0; i < nc; i++) {
+      this.mIdx[i] = k++;
+      if (!this.isothermal) this.TIdx[i] = k++;
+      if (model.chambers[i].deflation) this.hIdx[i] = k++;
+    }
+    this.resIdx = new Int32Array(model.reservoirs.length);
+    for (let r = 0; r < model.reservoirs.length; r++) this.resIdx[r] = k++;
+    this.feedIdx = new Int32Array(model.feeds.length);
+    for (let f = 0; f < model.feeds.length; f++) this.feedIdx[f] = k++;
+    this.n = k;
+    const nn = nc + model.reservoirs.length;
+    this.p = new Float64Array(nn);
+    this.T = new Float64Array(nn);
+    this.V = new Float64Array(nc);
+    this.kappa = new Float64Array(nc);
+    this.mIn = new Float64Array(nc);
+    this.mOut = new Float64Array(nc);
+    this.hIn = new Float64Array(nc);
+    this.flows = model.branches.map(() => ({ mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const }));
+    this.feedFlow = new Float64Array(model.feeds.length);
+
+    // tolerances: masses relative to the largest chamber mass, temperatures in K
+    this.rtol = model.simulate.tolerance;
+    const mScale = Math.max(...model.chambers.map((c) => c.m0), 1e-12);
+    this.atol = new Float64Array(this.n).fill(this.rtol * mScale * 1e-3);
+    for (let i = 0; i < nc; i++) {
+      if (this.TIdx[i] >= 0) this.atol[this.TIdx[i]] = this.rtol * 300;
+      if (this.hIdx[i] >= 0) this.atol[this.hIdx[i]] = this.rtol;
+    }
+
+    const bps = new Set<number>();
+    for (const b of this.branches) b.schedule?.breakpoints.forEach((t) => bps.add(t));
+    for (const f of this.feeds) f.schedule.breakpoints.forEach((t) => bps.add(t));
+    for (const r of model.reservoirs) r.pressure.breakpoints.forEach((t) => bps.add(t));
+    this.breakpoints = [...bps].sort((a, b) => a - b);
+
+    this.events = [];
+    model.branches.forEach((b, i) => {
+      const op = b.valve?.operation;
+      if (op?.kind === 'relief') this.events.push({ kind: 'relief', element: b.name, index: i, direction: 0 });
+      if (op?.kind === 'check') this.events.push({ kind: 'check', element: b.name, index: i, direction: 0 });
+    });
+    model.chambers.forEach((c, i) => {
+      for (const e of c.wall.extrema) this.events.push({ kind: 'extremum', element: c.name, index: i, direction: 0, extremum: e });
+      if (c.limits.pressure !== undefined) this.events.push({ kind: 'limit-pressure', element: c.name, index: i, direction: 1 });
+      if (c.limits.stretch !== undefined && c.wall.sphere) this.events.push({ kind: 'limit-stretch', element: c.name, index: i, direction: 1 });
+    });
+  }
+
+  get nEvents(): number { return this.events.length; }
+
+  initialState(): Float64Array {
+    const y = new Float64Array(this.n);
+    this.model.chambers.forEach((c, i) => {
+      y[this.mIdx[i]] = c.m0;
+      if (this.TIdx[i] >= 0) y[this.TIdx[i]] = c.T0;
+      if (this.hIdx[i] >= 0) y[this.hIdx[i]] = 1;
+    });
+    return y;
+  }
+
+  /** Slot of a node's mass: a chamber's m, or a reservoir's boundary store. */
+  private slot(n: NodeRef): number {
+    return n.kind === 'chamber' ? this.mIdx[n.index] : this.resIdx[n.index];
+  }
+
+  private nodeIndex(n: NodeRef): number {
+    return n.kind === 'chamber' ? n.index : this.nc + n.index;
+  }
+
+  /**
+   * Fills node pressures, temperatures, volumes and all flows for (t, y). Shared by the rhs,
+   * events and observers so that they all see the same numbers.
+   */
+  evaluate(t: number, y: Float64Array): void {
+    const nc = this.nc;
+    this.fault = null;
+    for (let i = 0; i < nc; i++) {
+      const T = this.TIdx[i] >= 0 ? y[this.TIdx[i]] : this.model.chambers[i].T0;
+      const h = this.hIdx[i] >= 0 ? y[this.hIdx[i]] : 1;
+      this.chambers[i].solve(y[this.mIdx[i]], T, h, this.solved);
+      this.p[i] = this.solved.p;
+      this.V[i] = this.solved.V;
+      this.kappa[i] = this.solved.kappa;
+      this.T[i] = T;
+      if (!(this.solved.p >= 0) && this.fault === null) this.fault = this.model.chambers[i].name;
+    }
+    const res = this.model.reservoirs;
+    for (let r = 0; r < res.length; r++) {
+      this.p[nc + r] = res[r].pressure.at(t);
+      this.T[nc + r] = res[r].T;
+    }
+    for (let b = 0; b < this.branches.length; b++) {
+      const bm = this.model.branches[b];
+      const i = this.nodeIndex(bm.from);
+      const j = this.nodeIndex(bm.to);
+      this.branches[b].flow(t, this.p[i], this.p[j], this.T[i], this.T[j], this.flows[b]);
+    }
+    for (let f = 0; f < this.feeds.length; f++) {
+      this.feedFlow[f] = this.feeds[f].rate * this.feeds[f].schedule.at(t);
+    }
+  }
+
+  /** The one way flows enter the balance: q (kg/s) leaves slot `a` and enters slot `b`. */
+  private transfer(dydt: Float64Array, a: number, ca: number, b: number, cb: number, q: number, Tup: number): void {
+    dydt[a] -= q;
+    dydt[b] += q;
+    // energy bookkeeping for chambers (ca, cb: chamber index or −1)
+    if (q >= 0) {
+      if (ca >= 0) this.mOut[ca] += q;
+      if (cb >= 0) { this.mIn[cb] += q; this.hIn[cb] += q * Tup; }
+    } else {
+      if (cb >= 0) this.mOut[cb] -= q;
+      if (ca >= 0) { this.mIn[ca] -= q; this.hIn[ca] -= q * Tup; }
+    }
+  }
+
+  rhs(t: number, y: Float64Array, dydt: Float64Array): void {
+    this.evaluate(t, y);
+    dydt.fill(0);
+    this.mIn.fill(0);
+    this.mOut.fill(0);
+    this.hIn.fill(0);
+    const nc = this.nc;
+    for (let b = 0; b < this.branches.length; b++) {
+      const bm = this.model.branches[b];
+      const q = this.flows[b].mdot;
+      const i = this.nodeIndex(bm.from);
+      const j = this.nodeIndex(bm.to);
+      const Tup = q >= 0 ? this.T[i] : this.T[j];
+      this.transfer(dydt, this.slot(bm.from), i < nc ? i : -1, this.slot(bm.to), j < nc ? j : -1, q, Tup);
+    }
+    for (let f = 0; f < this.feeds.length; f++) {
+      const fd = this.feeds[f];
+      this.transfer(dydt, this.feedIdx[f], -1, this.mIdx[fd.into], fd.into, this.feedFlow[f], fd.T);
+    }
+    if (!this.isothermal || this.hIdx.some((k) => k >= 0)) {
+      const { R, cv, cp } = this.gas;
+      for (let i = 0; i < nc; i++) {
+        const mdot = dydt[this.mIdx[i]];
+        if (this.TIdx[i] >= 0) {
+          const m = y[this.mIdx[i]];
+          const T = this.T[i];
+          const p = this.p[i];
+          const kap = this.kappa[i];
+          const c = this.model.chambers[i];
+          const A = cp * this.hIn[i] - cv * T * this.mIn[i] - R * T * this.mOut[i] + c.heatTransfer * (this.Ta - T);
+          dydt[this.TIdx[i]] = (A - p * kap * R * T * mdot) / (m * cv + p * kap * m * R);
+        }
+        if (this.hIdx[i] >= 0) {
+          const h = y[this.hIdx[i]];
+          const target = mdot > 0 ? 1 : 0;
+          dydt[this.hIdx[i]] = (Math.abs(mdot) / this.chambers[i].dmHyst) * (target - h);
+        }
+      }
+    }
+  }
+
+  // ---- events -------------------------------------------------------------------------
+
+  eventValues(t: number, y: Float64Array, out: Float64Array): void {
+    this.evaluate(t, y);
+    for (let k = 0; k < this.events.length; k++) {
+      const e = this.events[k];
+      switch (e.kind) {
+        case 'relief': {
+          const bm = this.model.branches[e.index];
+          const op = bm.valve!.operation as { opensAbove: number; reseatsBelow: number };
+          const g = this.p[this.nodeIndex(bm.from)] - this.pa;
+          out[k] = this.branches[e.index].open ? g - op.reseatsBelow : g - op.opensAbove;
+          break;
+        }
+        case 'check': {
+          const bm = this.model.branches[e.index];
+          const op = bm.valve!.operation as { cracking: number };
+          out[k] = this.p[this.nodeIndex(bm.from)] - op.cracking - this.p[this.nodeIndex(bm.to)];
+          break;
+        }
+        case 'extremum':
+          out[k] = this.V[e.index] - e.extremum!.V;
+          break;
+        case 'limit-pressure':
+          out[k] = this.p[e.index] - (this.model.chambers[e.index].limits.pressure as number);
+          break;
+        case 'limit-stretch':
+          out[k] = this.chambers[e.index].c.wall.stretch(this.V[e.index]) - (this.model.chambers[e.index].limits.stretch as number);
+          break;
+      }
+    }
+  }
+
+  eventDirection(k: number): number {
+    const e = this.events[k];
+    if (e.kind === 'relief') return this.branches[e.index].open ? -1 : 1;
+    return e.direction;
+  }
+
+  fireEvent(k: number, t: number, _y: Float64Array, rising: boolean): boolean {
+    const e = this.events[k];
+    const note = (what: string): void => { this.log.push({ t, what, kind: e.kind, element: e.element }); };
+    switch (e.kind) {
+      case 'relief': {
+        const b = this.branches[e.index];
+        b.open = !b.open;
+        note(`relief valve ${e.element} ${b.open ? 'opens' : 'reseats'}`);
+        return true;
+      }
+      case 'check':
+        note(`check valve ${e.element} ${rising ? 'opens' : 'closes'}`);
+        return true;
+      case 'extremum': {
+        const x = e.extremum!;
+        const word = x.kind === 'max' ? 'maximum' : 'minimum';
+        const where = `${(x.p / 1000).toPrecision(4)} kPa gauge`;
+        note(rising
+          ? `${e.element} passes its pressure ${word} (${where})${x.kind === 'max' ? ': past it the chamber gets easier to inflate' : ''}`
+          : `${e.element} shrinks back through its pressure ${word} (${where})`);
+        return false;
+      }
+      case 'limit-pressure':
+        note(`${e.element} exceeds its pressure limit of ${((this.model.chambers[e.index].limits.pressure! - this.pa) / 1000).toPrecision(4)} kPa gauge`);
+        return false;
+      case 'limit-stretch':
+        note(`${e.element} exceeds its stretch limit of ${this.model.chambers[e.index].limits.stretch}`);
+        return false;
+    }
+  }
+
+  atBreakpoint(t: number, _y: Float64Array): void {
+    const eps = 1e-12 * Math.max(1, Math.abs(t));
+    const describe = (name: string, noun: string, s: Schedule): void => {
+      for (const r of s.ramps) {
+        if (Math.abs(r.t0 - t) <= eps && r.t1 > r.t0) {
+          note(`${noun} ${name} starts ${r.to > r.from ? 'opening' : 'closing'} (${pct(r.from)} → ${pct(r.to)} over ${fmtT(r.t1 - r.t0)})`);
+        } else if (Math.abs(r.t1 - t) <= eps) {
+          note(r.t1 === r.t0
+            ? `${noun} ${name} ${r.to > r.from ? 'opens' : r.to < r.from ? 'closes' : 'stays'} (${pct(r.from)} → ${pct(r.to)})`
+            : `${noun} ${name} reaches ${pct(r.to)}`);
+        }
+      }
+    };
+    const note = (what: string): void => { this.log.push({ t, what, kind: 'schedule', element: '' }); };
+    this.branches.forEach((b) => { if (b.schedule) describe(b.b.name, 'valve', b.schedule); });
+    this.feeds.forEach((f) => describe(f.name, 'feed', f.schedule));
+  }
+
+  /** Events that hold at the start (a relief valve already above its set point). */
+  settleInitialModes(t: number, y: Float64Array): void {
+    this.evaluate(t, y);
+    for (const e of this.events) {
+      if (e.kind !== 'relief') continue;
+      const bm = this.model.branches[e.index];
+      const op = bm.valve!.operation as { opensAbove: number };
+      if (this.p[this.nodeIndex(bm.from)] - this.pa > op.opensAbove) {
+        this.branches[e.index].open = true;
+        this.log.push({ t, what: `relief valve ${e.element} is open at the start`, kind: 'relief', element: e.element });
+      }
+    }
+  }
+
+  // ---- observables ----------------------------------------------------------------------
+
+  channels(): Channel[] {
+    const ch: Channel[] = [];
+    this.model.chambers.forEach((c) => {
+      ch.push({ key: `${c.name}.pressure`, unit: 'Pa' }, { key: `${c.name}.gauge`, unit: 'Pa' },
+        { key: `${c.name}.volume`, unit: 'm^3' }, { key: `${c.name}.mass`, unit: 'kg' },
+        { key: `${c.name}.temperature`, unit: 'K' });
+      if (c.wall.sphere) ch.push({ key: `${c.name}.stretch`, unit: '-' });
+    });
+    this.model.branches.forEach((b) => {
+      ch.push({ key: `${b.name}.flow`, unit: 'kg/s' }, { key: `${b.name}.reynolds`, unit: '-' });
+      if (b.hostLine) ch.push({ key: `${b.hostLine}.flow`, unit: 'kg/s' }, { key: `${b.hostLine}.reynolds`, unit: '-' });
+    });
+    ch.push({ key: 'total.mass', unit: 'kg' });
+    return ch;
+  }
+
+  /** Values of `channels()` for (t, y), in the same order. */
+  observe(t: number, y: Float64Array, out: Float64Array): void {
+    this.evaluate(t, y);
+    let k = 0;
+    let total = 0;
+    this.model.chambers.forEach((c, i) => {
+      const m = y[this.mIdx[i]];
+      total += m;
+      out[k++] = this.p[i];
+      out[k++] = this.p[i] - this.pa;
+      out[k++] = this.V[i];
+      out[k++] = m;
+      out[k++] = this.T[i];
+      if (c.wall.sphere) out[k++] = c.wall.stretch(this.V[i]);
+    });
+    this.model.branches.forEach((b, i) => {
+      out[k++] = this.flows[i].mdot;
+      out[k++] = this.flows[i].reynolds;
+      if (b.hostLine) { out[k++] = this.flows[i].mdot; out[k++] = this.flows[i].reynolds; }
+    });
+    out[k++] = total;
+  }
+
+  /** Mass the boundaries have given to the network so far (kg). */
+  boundaryInflow(y: Float64Array): number {
+    let s = 0;
+    for (const k of this.resIdx) s -= y[k];
+    for (const k of this.feedIdx) s -= y[k];
+    return s;
+  }
+
+  totalMass(y: Float64Array): number {
+    let s = 0;
+    for (const k of this.mIdx) s += y[k];
+    return s;
+  }
+}
+
+function pct(x: number): string {
+  return `${Math.round(x * 1000) / 10} %`;
+}
+
+function fmtT(s: number): string {
+  return s < 1 ? `${+(s * 1000).toPrecision(4)} ms` : `${+s.toPrecision(4)} s`;
+}

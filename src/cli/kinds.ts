@@ -1,0 +1,51 @@
+/** `plenum kinds`: element kinds and wall laws with their parameters, from the parameter tables. */
+import {
+  CHAMBER, FEED, LINE, RESERVOIR, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
+} from '../netlist/kinds.js';
+
+const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => string }[] = [
+  { title: 'chambers', tables: [CHAMBER], label: () => 'chamber' },
+  { title: 'walls (chamber `wall:`)', tables: WALL_LAWS, label: (t) => `wall: ${t.kind}` },
+  { title: 'reservoirs', tables: [RESERVOIR], label: () => 'reservoir' },
+  { title: 'lines', tables: [LINE], label: () => 'line' },
+  { title: 'valves', tables: [VALVE, ...VALVE_RATINGS, ...VALVE_OPERATIONS], label: (t) => (t.kind === 'valve' ? 'valve' : `valve ${t.section === 'valve-rating' ? 'rating' : 'opening'}: ${t.kind}`) },
+  { title: 'feeds', tables: [FEED], label: () => 'feed' },
+];
+
+function dim(p: ParamSpec): string {
+  switch (p.dimension) {
+    case 'absolute-pressure': return 'pressure (gauge or abs)';
+    case 'gauge-pressure': return 'pressure (gauge or abs)';
+    case 'enum': return (p.values ?? []).join(' | ');
+    case 'structure': return 'see doc';
+    default: return p.dimension;
+  }
+}
+
+function need(p: ParamSpec): string {
+  return p.required ? 'required' : p.default !== undefined ? `default ${p.default}` : 'optional';
+}
+
+export function kindsText(markdown: boolean): string {
+  const out: string[] = [];
+  if (markdown) {
+    out.push('| kind | parameter | dimension | | meaning |', '|---|---|---|---|---|');
+    for (const g of GROUPS) {
+      for (const t of g.tables) {
+        out.push(`| **${g.label(t)}** | | | | ${t.doc} |`);
+        for (const p of t.params) out.push(`| | \`${p.name}\` | ${dim(p)} | ${need(p)} | ${p.doc.replace(/\|/g, '\\|')} |`);
+      }
+    }
+    return out.join('\n') + '\n';
+  }
+  for (const g of GROUPS) {
+    out.push(g.title.toUpperCase());
+    for (const t of g.tables) {
+      out.push(`  ${g.label(t)}: ${t.doc}`);
+      const w = Math.max(...t.params.map((p) => p.name.length));
+      for (const p of t.params) out.push(`    ${p.name.padEnd(w)}  ${dim(p)}, ${need(p)}: ${p.doc}`);
+    }
+    out.push('');
+  }
+  return out.join('\n');
+}

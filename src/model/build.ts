@@ -1,0 +1,220 @@
+/**
+ * NetlistDoc → Model: resolve names to node references, build gas and wall objects, lump line
+ * volumes, and turn each chamber's `start:` into a start volume and mass. Problems that need
+ * physics to see (a start pressure above a balloon's maximum, an ambiguous mass–volume
+ * relation) are diagnostics with the chamber's position.
+ */
+import type { Diagnostic, Result } from '../diag/diagnostic.js';
+import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
+import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
+import type { ChamberSpec, NetlistDoc, SourcePos } from '../netlist/types.js';
+import type { BranchModel, ChamberModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
+
+const AMBIENT = 'ambient';
+
+function diag(pos: SourcePos, code: string, message: string, hint?: string): Diagnostic {
+  return { code, severity: 'error', message, file: pos.file, line: pos.line, column: pos.column, path: pos.path, hint };
+}
+
+function kPa(p: number): string {
+  return `${(p / 1000).toPrecision(4)} kPa`;
+}
+
+/** Bisection for Δp(V) = target on [a, b] where Δp(a) ≤ target ≤ Δp(b) or the reverse. */
+function volumeAtGauge(wall: WallLaw, target: number, a: number, b: number): number {
+  const s: VolumeScratch = { p: 0, dpdV: 0 };
+  wall.eval(a, s);
+  const rising = s.p <= target;
+  for (let i = 0; i < 200; i++) {
+    const m = 0.5 * (a + b);
+    wall.eval(m, s);
+    if ((s.p <= target) === rising) a = m; else b = m;
+    if (b - a <= 1e-15 * b) break;
+  }
+  return 0.5 * (a + b);
+}
+
+/**
+ * Start volume for a start pressure: the first crossing going up from vacuum, i.e. on the
+ * rising branch below any pressure maximum. A stretch start reaches the falling branch.
+ */
+function volumeForPressure(wall: WallLaw, pa: number, pAbs: number, pos: SourcePos, errs: Diagnostic[]): number {
+  const target = pAbs - pa;
+  const s: VolumeScratch = { p: 0, dpdV: 0 };
+  const lo = vacuumVolume(wall, pa);
+  const ends = [lo, ...wall.extrema.map((e) => e.V)];
+  let hi = Number.isFinite(wall.Vmax) ? wall.Vmax * (1 - 1e-12) : Math.max(wall.V0, lo) * 2 + 1e-12;
+  if (!Number.isFinite(wall.Vmax)) {
+    for (let k = 0; k < 200; k++) {
+      wall.eval(hi, s);
+      if (s.p >= target) break;
+      hi *= 2;
+    }
+  }
+  ends.push(hi);
+  for (let i = 0; i + 1 < ends.length; i++) {
+    wall.eval(ends[i], s);
+    const pa0 = s.p;
+    wall.eval(ends[i + 1], s);
+    const pb = s.p;
+    if (pa0 <= target && target <= pb) return volumeAtGauge(wall, target, ends[i], ends[i + 1]);
+    if (pa0 > target) break; // a pressure maximum lies below the target
+  }
+  const max = wall.extrema.find((e) => e.kind === 'max');
+  errs.push(diag(pos, 'start-unreachable',
+    max
+      ? `start pressure ${kPa(target)} gauge lies above this wall's pressure maximum of ${kPa(max.p)} gauge`
+      : `start pressure ${kPa(target)} gauge is outside this wall's range`,
+    max && wall.sphere
+      ? `start the chamber by stretch instead (the maximum is at stretch ${wall.stretch(max.V).toFixed(4)}); a stretch beyond it starts on the falling branch`
+      : 'check the start pressure and the wall parameters'));
+  return Number.NaN;
+}
+
+function startVolume(c: ChamberSpec, wall: WallLaw, gas: Gas, pa: number, Vd: number, T: number, errs: Diagnostic[]): number {
+  const pos = c.fieldPos['start'] ?? c.pos;
+  const st = c.start;
+  if (wall.rigid) {
+    if (st.by === 'pressure' || st.by === 'mass') return wall.V0;
+    errs.push(diag(pos, 'start-rigid', `a rigid chamber starts by pressure or mass, not by ${st.by}`, 'write `start: { pressure: 0 kPa gauge }`'));
+    return Number.NaN;
+  }
+  switch (st.by) {
+    case 'pressure':
+      return volumeForPressure(wall, pa, st.value, pos, errs);
+    case 'stretch':
+      if (!wall.sphere) {
+        errs.push(diag(pos, 'start-stretch', 'start by stretch applies to spherical walls only', 'start by pressure or volume'));
+        return Number.NaN;
+      }
+      return wall.volumeAtStretch(st.value);
+    case 'volume':
+      if (st.value >= wall.Vmax || st.value <= vacuumVolume(wall, pa)) {
+        errs.push(diag(pos, 'start-range', 'start volume is outside the wall law\'s range', 'check the volume against the wall parameters'));
+        return Number.NaN;
+      }
+      return st.value;
+    case 'mass': {
+      const V = solveVolume(wall, pa, Vd, st.value * gas.R * T, wall.V0, vacuumVolume(wall, pa), { p: 0, dpdV: 0 });
+      if (!Number.isFinite(V)) errs.push(diag(pos, 'start-range', 'start mass is outside the wall law\'s range', 'check the mass against the wall parameters'));
+      return V;
+    }
+  }
+}
+
+export function buildModel(doc: NetlistDoc): Result<Model> {
+  const errs: Diagnostic[] = [];
+  const warnings: Diagnostic[] = [];
+  const gas = makeGas(doc.gas);
+  const pa = doc.ambient.pressure;
+  const Ta = doc.ambient.temperature;
+
+  const chamberIndex = new Map(doc.chambers.map((c, i) => [c.name, i] as const));
+  const reservoirs: ReservoirModel[] = doc.reservoirs.map((r) => ({ name: r.name, pressure: r.pressure, T: r.temperature ?? Ta }));
+  const reservoirIndex = new Map(reservoirs.map((r, i) => [r.name, i] as const));
+  const node = (name: string): NodeRef => {
+    const c = chamberIndex.get(name);
+    if (c !== undefined) return { kind: 'chamber', index: c };
+    let r = reservoirIndex.get(name);
+    if (r === undefined && name === AMBIENT) {
+      r = reservoirs.length;
+      reservoirs.push({ name: AMBIENT, pressure: { at: () => pa, breakpoints: [], constant: true, text: 'ambient' }, T: Ta });
+      reservoirIndex.set(AMBIENT, r);
+    }
+    if (r === undefined) throw new Error(`unresolved node ${name}: the netlist reader should have caught this`);
+    return { kind: 'reservoir', index: r };
+  };
+
+  // Lines: half of each line's volume is lumped into the node at each end.
+  const dead = new Float64Array(doc.chambers.length);
+  const hostedBy = new Map(doc.valves.filter((v) => v.inLine).map((v) => [v.inLine as string, v] as const));
+  const branches: BranchModel[] = [];
+  for (const l of doc.lines) {
+    const half = (Math.PI * l.diameter * l.diameter * l.length) / 8;
+    const from = node(l.from);
+    const to = node(l.to);
+    if (from.kind === 'chamber') dead[from.index] += half;
+    if (to.kind === 'chamber') dead[to.index] += half;
+    const line = { diameter: l.diameter, length: l.length, roughness: l.roughness };
+    const v = hostedBy.get(l.name);
+    branches.push(v
+      ? { name: v.name, kind: 'valve', from, to, line, hostLine: l.name, valve: { rating: v.rating, operation: v.operation } }
+      : { name: l.name, kind: 'line', from, to, line });
+  }
+  for (const v of doc.valves) {
+    if (v.inLine) continue;
+    branches.push({ name: v.name, kind: 'valve', from: node(v.from), to: node(v.to), valve: { rating: v.rating, operation: v.operation } });
+  }
+
+  const chambers: ChamberModel[] = [];
+  doc.chambers.forEach((c, i) => {
+    const wallPos = c.fieldPos['wall'] ?? c.pos;
+    let wall: WallLaw;
+    let deflation: WallLaw | undefined;
+    if (c.wall.law === 'measured' && c.wall.deflation) {
+      wall = makeWall({ law: 'measured', points: c.wall.points }, pa);
+      deflation = makeWall({ law: 'measured', points: c.wall.deflation }, pa);
+    } else {
+      wall = makeWall(c.wall, pa);
+    }
+    if (wall.kind === 'linear' && vacuumVolume(wall, pa) <= 0) {
+      errs.push(diag(wallPos, 'wall-range',
+        'this linear wall would shrink to zero volume before its gas reached vacuum (compliance × ambient pressure ≥ volume)',
+        'use a smaller compliance, or a measured wall that describes the collapse'));
+      return;
+    }
+    const T0 = c.temperature ?? Ta;
+    const Vd = dead[i];
+    for (const w of deflation ? [wall, deflation] : [wall]) {
+      if (w.rigid) continue;
+      const mono = pvMonotone(w, pa, Vd);
+      if (!mono.ok) {
+        errs.push(diag(wallPos, 'wall-ambiguous',
+          `the gas mass is not an increasing function of volume for this wall${Vd > 0 ? ' with the tubing volume lumped into it' : ''} (near ${(mono.at ?? 0) * 1e6} mL): its state would be ambiguous`,
+          Vd > 0 ? 'shorten or narrow the attached lines, or model the tubing as a rigid chamber of its own' : 'check the wall law data'));
+        return;
+      }
+    }
+    const V0 = startVolume(c, wall, gas, pa, Vd, T0, errs);
+    if (!Number.isFinite(V0)) return;
+    let m0: number;
+    if (wall.rigid) {
+      m0 = c.start.by === 'mass' ? c.start.value : (c.start.value * (wall.V0 + Vd)) / (gas.R * T0);
+    } else {
+      const s: VolumeScratch = { p: 0, dpdV: 0 };
+      wall.eval(V0, s);
+      m0 = ((pa + s.p) * (V0 + Vd)) / (gas.R * T0);
+    }
+    chambers.push({
+      name: c.name, wall, deflation, deadVolume: Vd, V0, T0, m0,
+      heatTransfer: doc.heat === 'exchange' ? c.heatTransfer ?? 0 : 0,
+      limits: { ...c.limits }, spec: c,
+    });
+  });
+
+  const rhoAnr = anrDensity(gas);
+  const feeds: FeedModel[] = doc.feeds.map((f) => ({
+    name: f.name,
+    into: chamberIndex.get(f.into) as number,
+    rate: f.rate.kind === 'mass' ? f.rate.value : f.rate.value * rhoAnr,
+    T: f.temperature ?? Ta,
+    initially: f.initially,
+    steps: f.steps,
+  }));
+
+  if (doc.heat === 'exchange') {
+    for (const c of doc.chambers) {
+      if (c.heatTransfer === undefined) {
+        warnings.push({ ...diag(c.pos, 'no-heat-transfer', `chamber ${c.name} has no heat-transfer; with heat: exchange it behaves adiabatically`, 'add `heat-transfer: "2 W/K"` (h·A)'), severity: 'warning' });
+      }
+    }
+  }
+
+  if (errs.length) return { ok: false, diagnostics: errs };
+  const model: Model = {
+    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds,
+    simulate: doc.simulate, expect: doc.expect,
+  };
+  return { ok: true, value: model, warnings };
+}

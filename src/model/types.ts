@@ -1,0 +1,74 @@
+/**
+ * Model: a netlist turned into frozen SI numbers and ready-made physics objects. Nothing here
+ * knows about state vectors; `assemble/` does.
+ */
+import type { Gas } from '../physics/gas.js';
+import type { WallLaw } from '../physics/wall.js';
+import type {
+  ChamberSpec, ExpectSpec, NetlistDoc, ScheduleStep, SimulateSpec, TimeSeries, ValveOperation, ValveRating,
+} from '../netlist/types.js';
+
+export type HeatMode = NetlistDoc['heat'];
+
+/** A node is a chamber (holds gas) or a reservoir (fixed pressure, a boundary). */
+export type NodeRef = { kind: 'chamber'; index: number } | { kind: 'reservoir'; index: number };
+
+export interface ChamberModel {
+  name: string;
+  wall: WallLaw;
+  /** Deflation branch of a measured wall with hysteresis; `wall` is then the inflation branch. */
+  deflation?: WallLaw;
+  /** Rigid gas volume lumped into this node (half of each attached line), m³. */
+  deadVolume: number;
+  /** Start: wall volume (m³), temperature (K), gas mass in the node incl. dead volume (kg). */
+  V0: number;
+  T0: number;
+  m0: number;
+  /** h·A (W/K) for heat: exchange; 0 otherwise. */
+  heatTransfer: number;
+  limits: { pressure?: number; stretch?: number };
+  spec: ChamberSpec;
+}
+
+export interface ReservoirModel {
+  name: string;
+  pressure: TimeSeries;
+  T: number;
+}
+
+export interface LineGeometry { diameter: number; length: number; roughness: number }
+
+export interface BranchModel {
+  name: string;
+  kind: 'line' | 'valve';
+  from: NodeRef;
+  to: NodeRef;
+  /** Present for a line, and for a valve that sits inside a line. */
+  line?: LineGeometry;
+  /** Name of the line hosting this valve (the line itself is then not a separate branch). */
+  hostLine?: string;
+  valve?: { rating: ValveRating; operation: ValveOperation };
+}
+
+export interface FeedModel {
+  name: string;
+  into: number;          // chamber index
+  rate: number;          // kg/s at full opening
+  T: number;             // K
+  initially: number;
+  steps: ScheduleStep[];
+}
+
+export interface Model {
+  doc: NetlistDoc;
+  gas: Gas;
+  pa: number;            // ambient pressure, Pa absolute
+  Ta: number;            // ambient temperature, K
+  heat: HeatMode;
+  chambers: ChamberModel[];
+  reservoirs: ReservoirModel[];
+  branches: BranchModel[];
+  feeds: FeedModel[];
+  simulate: SimulateSpec;
+  expect: ExpectSpec[];
+}

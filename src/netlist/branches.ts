@@ -1,0 +1,222 @@
+/**
+ * Lines, valves and feeds: what connects the nodes.
+ *
+ * A line or valve joins two nodes (chambers, reservoirs, or `ambient`), never a node to
+ * itself. A valve has exactly one rating (ISO 6358 conductance + critical-ratio, or orifice +
+ * discharge-coefficient) and exactly one way of opening (initially/schedule, check, or
+ * relief). With `in-line: <line>` it sits inside that line: its from/to may be omitted (they
+ * are copied from the line) or, if given, must equal the line's. One valve per line.
+ * A feed puts mass into a chamber at a mass flow or at a standard volume flow (`ANR`).
+ */
+import { listChoices } from '../diag/did-you-mean';
+import { parseQuantity } from '../units/quantity';
+import type { Checker } from './checker';
+import { CHECK, FEED, LINE, RELIEF, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, type KindTable } from './kinds';
+import { resolve, type NameEntry, type Names } from './names';
+import { readOpening, readSchedule } from './schedule';
+import type { FeedSpec, LineSpec, ValveOperation, ValveRating, ValveSpec } from './types';
+import type { YMap, YNode } from './yaml-tree';
+
+const NODE_KINDS = ['chamber', 'reservoir'] as const;
+const RATE_HINT = 'write a mass flow (`0.5 g/s`) or a standard volume flow at ISO 8778 (`10 L/min ANR`)';
+
+function keysOf(tables: readonly KindTable[]): string[] {
+  return tables.flatMap((t) => t.params.map((p) => p.name));
+}
+
+/** The tables among `tables` that have a key present in `map`. */
+function groupsPresent(ck: Checker, map: YMap, tables: readonly KindTable[]): KindTable[] {
+  return tables.filter((t) => t.params.some((p) => ck.get(map, p.name) !== undefined));
+}
+
+/** Reads from/to and checks them: existing nodes, not the same. */
+function readEnds(ck: Checker, map: YMap, what: string, from: unknown, to: unknown, names: Names): boolean {
+  const fromNode = ck.get(map, 'from');
+  const toNode = ck.get(map, 'to');
+  let ok = typeof from === 'string' && typeof to === 'string';
+  if (typeof from === 'string' && fromNode) ok = resolve(ck, names, fromNode, from, NODE_KINDS, `\`from\` of ${what}`) && ok;
+  if (typeof to === 'string' && toNode) ok = resolve(ck, names, toNode, to, NODE_KINDS, `\`to\` of ${what}`) && ok;
+  if (typeof from === 'string' && from === to) {
+    ck.error(toNode ?? map, 'self-connection', `${what} connects \`${from}\` to itself`, 'connect two different nodes');
+    ok = false;
+  }
+  return ok;
+}
+
+export function readLine(ck: Checker, entry: NameEntry, names: Names): LineSpec | undefined {
+  const what = `line \`${entry.name}\``;
+  const map = ck.map(entry.node, what, 'write e.g. `supply: { from: tank, to: cell_a, diameter: 4 mm, length: 2 m }`');
+  if (!map) return undefined;
+  ck.checkKeys(map, LINE.params.map((p) => p.name), what);
+  const v = ck.params(map, LINE.params);
+  const ends = readEnds(ck, map, what, v.from, v.to, names);
+  if (!ends || [v.diameter, v.length, v.roughness].some((x) => x === undefined)) return undefined;
+  const spec: LineSpec = {
+    name: entry.name,
+    from: v.from as string,
+    to: v.to as string,
+    diameter: v.diameter as number,
+    length: v.length as number,
+    roughness: v.roughness as number,
+    pos: ck.sourcePos(entry.where),
+  };
+  if (spec.roughness >= spec.diameter / 2) {
+    ck.error(ck.get(map, 'roughness') ?? map, 'out-of-range', '`roughness` must be much smaller than the diameter', 'typical roughness is 0 to a few µm');
+    return undefined;
+  }
+  return spec;
+}
+
+function readRating(ck: Checker, map: YMap, what: string): ValveRating | undefined {
+  const present = groupsPresent(ck, map, VALVE_RATINGS);
+  if (present.length === 0) {
+    ck.error(ck.missingAt(map, 'conductance'), 'missing-key', `${what} has no flow rating`, 'add `conductance` + `critical-ratio` (ISO 6358), or `orifice` + `discharge-coefficient`');
+    return undefined;
+  }
+  if (present.length > 1) {
+    ck.error(ck.keyWhere(map, 'orifice'), 'conflicting-keys', `${what} has two flow ratings (ISO 6358 and orifice)`, 'give either `conductance` + `critical-ratio` or `orifice` + `discharge-coefficient`');
+    return undefined;
+  }
+  const table = present[0];
+  const v = ck.params(map, table.params);
+  if (table.params.some((p) => v[p.name] === undefined)) return undefined;
+  if (table.kind === 'iso6358') {
+    return { kind: 'iso6358', conductance: v.conductance as number, criticalRatio: v['critical-ratio'] as number, subsonicIndex: v['subsonic-index'] as number };
+  }
+  return { kind: 'orifice', diameter: v.orifice as number, dischargeCoefficient: v['discharge-coefficient'] as number };
+}
+
+function readOperation(ck: Checker, map: YMap, what: string): ValveOperation | undefined {
+  const present = groupsPresent(ck, map, VALVE_OPERATIONS);
+  if (present.length === 0) {
+    ck.error(ck.missingAt(map, 'initially'), 'missing-key', `${what} does not say how it opens`, 'add `initially: open`, a `schedule`, `check: { cracking }` or `relief: { opens-above, reseats-below }`');
+    return undefined;
+  }
+  if (present.length > 1) {
+    const keys = present.map((t) => t.params.find((p) => ck.get(map, p.name))?.name ?? t.kind);
+    ck.error(ck.keyWhere(map, keys[1]), 'conflicting-keys', `${what} has ${keys.map((k) => `\`${k}\``).join(' and ')}; a valve opens in one way`, `keep one of ${listChoices(['initially/schedule', 'check', 'relief'])}`);
+    return undefined;
+  }
+  switch (present[0].kind) {
+    case 'schedule': {
+      const initNode = ck.get(map, 'initially');
+      const schedNode = ck.get(map, 'schedule');
+      const initially = initNode ? readOpening(ck, initNode, '`initially`') : 0;
+      const steps = schedNode ? readSchedule(ck, schedNode) : [];
+      if (initially === undefined || steps === undefined) return undefined;
+      return { kind: 'schedule', initially, steps };
+    }
+    case 'check': {
+      const m = ck.map(ck.get(map, 'check') as YNode, '`check`', 'write e.g. `check: { cracking: 5 kPa }`');
+      if (!m) return undefined;
+      ck.checkKeys(m, CHECK.params.map((p) => p.name), '`check`');
+      const cracking = ck.param(m, CHECK.params[0]) as number | undefined;
+      return cracking === undefined ? undefined : { kind: 'check', cracking };
+    }
+    default: {
+      const m = ck.map(ck.get(map, 'relief') as YNode, '`relief`', 'write e.g. `relief: { opens-above: 50 kPa gauge, reseats-below: 45 kPa gauge }`');
+      if (!m) return undefined;
+      ck.checkKeys(m, RELIEF.params.map((p) => p.name), '`relief`');
+      const v = ck.params(m, RELIEF.params);
+      const opens = v['opens-above'] as number | undefined;
+      const reseats = v['reseats-below'] as number | undefined;
+      if (opens === undefined || reseats === undefined) return undefined;
+      if (!(reseats < opens)) {
+        ck.error(ck.get(m, 'reseats-below') ?? m, 'out-of-range', '`reseats-below` must be lower than `opens-above`', 'a relief valve recloses below the pressure at which it opens');
+        return undefined;
+      }
+      return { kind: 'relief', opensAbove: opens, reseatsBelow: reseats };
+    }
+  }
+}
+
+/** in-line: the line exists, holds no other valve, and from/to agree with it. */
+function readInLine(ck: Checker, map: YMap, what: string, v: Record<string, unknown>, lines: Map<string, LineSpec>, names: Names, taken: Map<string, string>): { from?: string; to?: string; ok: boolean } {
+  const lineName = v['in-line'] as string;
+  const node = ck.get(map, 'in-line') as YNode;
+  if (!resolve(ck, names, node, lineName, ['line'], `\`in-line\` of ${what}`)) return { ok: false };
+  const line = lines.get(lineName);
+  if (!line) return { ok: false }; // the line itself has errors, already reported
+  const other = taken.get(lineName);
+  if (other) {
+    ck.error(node, 'conflicting-keys', `line \`${lineName}\` already holds valve \`${other}\``, 'one valve per line; put a second valve in its own line');
+    return { ok: false };
+  }
+  let ok = true;
+  for (const end of ['from', 'to'] as const) {
+    const given = v[end] as string | undefined;
+    if (given !== undefined && given !== line[end]) {
+      ck.error(ck.get(map, end) ?? map, 'in-line-mismatch', `\`${end}\` of ${what} is \`${given}\` but line \`${lineName}\` goes ${end} \`${line[end]}\``, `omit \`from\`/\`to\` with \`in-line\` (they are taken from the line), or make them agree`);
+      ok = false;
+    }
+  }
+  return { from: line.from, to: line.to, ok };
+}
+
+export function readValve(ck: Checker, entry: NameEntry, names: Names, lines: Map<string, LineSpec>, taken: Map<string, string>): ValveSpec | undefined {
+  const what = `valve \`${entry.name}\``;
+  const map = ck.map(entry.node, what, 'write e.g. `v1: { from: tank, to: cell_a, conductance: 0.9 L/(s*bar), critical-ratio: 0.3, initially: open }`');
+  if (!map) return undefined;
+  ck.checkKeys(map, keysOf([VALVE, ...VALVE_RATINGS, ...VALVE_OPERATIONS]), what);
+  const v = ck.params(map, VALVE.params);
+  let from = v.from as string | undefined;
+  let to = v.to as string | undefined;
+  let ends = true;
+  if (ck.get(map, 'in-line')) {
+    if (v['in-line'] === undefined) ends = false;
+    else {
+      const r = readInLine(ck, map, what, v, lines, names, taken);
+      if (r.ok) taken.set(v['in-line'] as string, entry.name);
+      ({ from, to } = r);
+      ends = r.ok;
+    }
+  } else {
+    for (const end of ['from', 'to'] as const) {
+      if (!ck.get(map, end)) {
+        ck.missing(map, end, `${what} has no \`${end}\``, 'give `from` and `to`, or `in-line: <line>`');
+      }
+    }
+    ends = ck.get(map, 'from') !== undefined && ck.get(map, 'to') !== undefined && readEnds(ck, map, what, from, to, names);
+  }
+  const rating = readRating(ck, map, what);
+  const operation = readOperation(ck, map, what);
+  if (!ends || !rating || !operation || from === undefined || to === undefined) return undefined;
+  const spec: ValveSpec = { name: entry.name, from, to, rating, operation, pos: ck.sourcePos(entry.where) };
+  if (v['in-line'] !== undefined) spec.inLine = v['in-line'] as string;
+  return spec;
+}
+
+/** `0.5 g/s` (mass flow) or `10 L/min ANR` (standard volume flow, ISO 8778). */
+function readRate(ck: Checker, node: YNode): FeedSpec['rate'] | undefined {
+  const v = ck.scalar(node, '`rate`', RATE_HINT);
+  if (v === undefined) return undefined;
+  const anr = typeof v === 'string' ? /^(.*?)\s*\bANR\s*$/i.exec(v) : null;
+  if (anr) {
+    const value = ck.checked(node, parseQuantity(anr[1], 'volume-flow'), '`rate`', { gt: 0 }, 'm³/s ANR');
+    return value === undefined ? undefined : { kind: 'anr', value };
+  }
+  const mass = parseQuantity(v, 'mass-flow');
+  if (!mass.ok && mass.code === 'unit-dimension' && parseQuantity(v, 'volume-flow').ok) {
+    ck.error(node, 'volume-flow-without-anr', `\`rate: ${v}\` is a volume flow, whose mass depends on pressure and temperature`, `write \`${String(v).trim()} ANR\` for a standard volume flow (ISO 8778: 20 °C, 100 kPa), or a mass flow such as \`0.5 g/s\``);
+    return undefined;
+  }
+  const value = ck.checked(node, mass, '`rate`', { gt: 0 }, 'kg/s');
+  return value === undefined ? undefined : { kind: 'mass', value };
+}
+
+export function readFeed(ck: Checker, entry: NameEntry, names: Names): FeedSpec | undefined {
+  const what = `feed \`${entry.name}\``;
+  const map = ck.map(entry.node, what, 'write e.g. `pump: { into: cell_a, rate: 10 L/min ANR }`');
+  if (!map) return undefined;
+  ck.checkKeys(map, FEED.params.map((p) => p.name), what);
+  const v = ck.params(map, FEED.params);
+  const into = v.into as string | undefined;
+  const intoOk = into !== undefined && resolve(ck, names, ck.get(map, 'into') as YNode, into, ['chamber'], `\`into\` of ${what}`);
+  const rate = v.rate ? readRate(ck, v.rate as YNode) : undefined;
+  const initially = v.initially ? readOpening(ck, v.initially as YNode, '`initially`') : undefined;
+  const steps = v.schedule ? readSchedule(ck, v.schedule as YNode) : [];
+  if (!intoOk || !rate || initially === undefined || !steps || into === undefined) return undefined;
+  const spec: FeedSpec = { name: entry.name, into, rate, initially, steps, pos: ck.sourcePos(entry.where) };
+  if (v.temperature !== undefined) spec.temperature = v.temperature as number;
+  return spec;
+}

@@ -1,0 +1,439 @@
+/**
+ * Parameter tables: one per section, element kind, wall law, valve rating and valve operation.
+ * Plain data. The same tables drive validation (unknown keys, required keys, dimensions,
+ * bounds, defaults), the JSON Schema (`schema.ts`), `plenum kinds` and the README's table.
+ *
+ * `default` is written as in a netlist and goes through the same parser as a given value.
+ * `bounds` are in SI.
+ */
+import type { Dimension } from '../units/dimensions';
+
+export type ParamDimension =
+  | Dimension
+  /** Must say gauge or abs; stored Pa absolute. */
+  | 'absolute-pressure'
+  /** Must say gauge or abs; stored Pa gauge. */
+  | 'gauge-pressure'
+  /** Absolute by definition, `abs` optional (the ambient pressure); stored Pa. */
+  | 'ambient-pressure'
+  /** A plain pressure (a difference); stored Pa. */
+  | 'pressure-difference'
+  /** "40%" or a number 0..1. */
+  | 'fraction'
+  | 'integer'
+  /** The name of another element. */
+  | 'name'
+  /** One of `values`. */
+  | 'enum'
+  | 'text'
+  /** A nested structure described by `shape` (validated by dedicated code). */
+  | 'structure';
+
+export interface Bounds {
+  gt?: number;
+  ge?: number;
+  lt?: number;
+  le?: number;
+}
+
+export interface ParamSpec {
+  name: string;
+  dimension: ParamDimension;
+  required: boolean;
+  default?: string | number;
+  doc: string;
+  bounds?: Bounds;
+  values?: readonly string[];
+  /** For `structure`: the name of its schema definition. */
+  shape?: string;
+}
+
+export type Section =
+  | 'top'
+  | 'ambient'
+  | 'gas'
+  | 'chamber'
+  | 'wall'
+  | 'start'
+  | 'limits'
+  | 'reservoir'
+  | 'line'
+  | 'valve'
+  | 'valve-rating'
+  | 'valve-operation'
+  | 'schedule-step'
+  | 'feed'
+  | 'simulate'
+  | 'expect';
+
+export interface KindTable {
+  kind: string;
+  section: Section;
+  doc: string;
+  params: ParamSpec[];
+}
+
+const POSITIVE: Bounds = { gt: 0 };
+const NON_NEGATIVE: Bounds = { ge: 0 };
+
+function p(name: string, dimension: ParamDimension, doc: string, extra: Partial<ParamSpec> = {}): ParamSpec {
+  return { name, dimension, required: true, doc, ...extra };
+}
+function opt(name: string, dimension: ParamDimension, doc: string, extra: Partial<ParamSpec> = {}): ParamSpec {
+  return { name, dimension, required: false, doc, ...extra };
+}
+
+export const GAS_NAMES = ['air', 'nitrogen', 'helium', 'carbon-dioxide'] as const;
+export const HEAT_MODES = ['isothermal', 'adiabatic', 'exchange'] as const;
+export const METHODS = ['auto', 'explicit', 'implicit'] as const;
+export const STATS = ['max', 'min', 'mean'] as const;
+export const SPHERE_LAWS = ['neo-hookean', 'mooney-rivlin', 'gent'] as const;
+
+// ---- walls ---------------------------------------------------------------------------------
+
+const RADIUS = p('radius', 'length', 'unstretched inner radius r0', { bounds: POSITIVE });
+const THICKNESS = p('thickness', 'length', 'unstretched wall thickness t0 (thin wall: t0 < r0)', { bounds: POSITIVE });
+
+export const WALL_LAWS: KindTable[] = [
+  {
+    kind: 'rigid',
+    section: 'wall',
+    doc: 'rigid vessel: V constant',
+    params: [p('volume', 'volume', 'internal volume', { bounds: POSITIVE })],
+  },
+  {
+    kind: 'linear',
+    section: 'wall',
+    doc: 'linearly compliant vessel: V = V0 + C·p_gauge',
+    params: [
+      p('volume', 'volume', 'volume V0 at zero gauge pressure', { bounds: POSITIVE }),
+      p('compliance', 'compliance', 'compliance C, volume per pressure', { bounds: POSITIVE }),
+    ],
+  },
+  {
+    kind: 'neo-hookean',
+    section: 'wall',
+    doc: 'thin rubber sphere, neo-Hookean: Δp = (2μt0/r0)(λ⁻¹ − λ⁻⁷)',
+    params: [RADIUS, THICKNESS, p('shear-modulus', 'pressure', 'shear modulus μ', { bounds: POSITIVE })],
+  },
+  {
+    kind: 'mooney-rivlin',
+    section: 'wall',
+    doc: 'thin rubber sphere, Mooney–Rivlin: Δp = (4t0/r0)(C1 + λ²C2)(λ⁻¹ − λ⁻⁷)',
+    params: [
+      RADIUS,
+      THICKNESS,
+      p('c1', 'pressure', 'Mooney–Rivlin constant C1', { bounds: POSITIVE }),
+      p('c2', 'pressure', 'Mooney–Rivlin constant C2', { bounds: NON_NEGATIVE }),
+    ],
+  },
+  {
+    kind: 'gent',
+    section: 'wall',
+    doc: 'thin rubber sphere, Gent: neo-Hookean ÷ (1 − (2λ² + λ⁻⁴ − 3)/Jm)',
+    params: [
+      RADIUS,
+      THICKNESS,
+      p('shear-modulus', 'pressure', 'shear modulus μ', { bounds: POSITIVE }),
+      p('limit', 'dimensionless', 'Gent locking parameter Jm (about 97 for natural rubber)', { bounds: POSITIVE }),
+    ],
+  },
+  {
+    kind: 'measured',
+    section: 'wall',
+    doc: 'measured pressure–volume curve, monotone interpolation; hysteresis when deflation is given',
+    params: [
+      p('points', 'structure', 'inflation curve: at least 3 [volume, gauge pressure] pairs, volume strictly increasing', { shape: 'points' }),
+      opt('deflation', 'structure', 'deflation curve, same form as points', { shape: 'points' }),
+    ],
+  },
+];
+
+// ---- chambers ------------------------------------------------------------------------------
+
+export const CHAMBER: KindTable = {
+  kind: 'chamber',
+  section: 'chamber',
+  doc: 'a gas chamber (state-holding node); the wall law’s parameters sit beside `wall`',
+  params: [
+    p('wall', 'enum', 'pressure–volume law of the wall', { values: WALL_LAWS.map((w) => w.kind) }),
+    p('start', 'structure', 'initial state: exactly one of pressure, stretch, volume, mass', { shape: 'start' }),
+    opt('temperature', 'temperature', 'initial gas temperature (default ambient); may also be given in start', { bounds: POSITIVE }),
+    opt('limits', 'structure', 'safety limits that raise warnings when exceeded', { shape: 'limits' }),
+    opt('heat-transfer', 'heat-conductance', 'h·A between gas and surroundings, for heat: exchange', { bounds: NON_NEGATIVE }),
+  ],
+};
+
+export const START: KindTable = {
+  kind: 'start',
+  section: 'start',
+  doc: 'initial state of a chamber: exactly one of pressure, stretch, volume, mass; optional temperature',
+  params: [
+    opt('pressure', 'absolute-pressure', 'initial pressure (gauge or abs)', { bounds: POSITIVE }),
+    opt('stretch', 'dimensionless', 'initial stretch λ = r/r0 (spheres only; below 1 the sphere is slack)', { bounds: POSITIVE }),
+    opt('volume', 'volume', 'initial volume', { bounds: POSITIVE }),
+    opt('mass', 'mass', 'initial gas mass', { bounds: POSITIVE }),
+    opt('temperature', 'temperature', 'initial gas temperature (default ambient)', { bounds: POSITIVE }),
+  ],
+};
+
+export const LIMITS: KindTable = {
+  kind: 'limits',
+  section: 'limits',
+  doc: 'safety limits: a warning is raised when exceeded',
+  params: [
+    opt('pressure', 'absolute-pressure', 'highest safe pressure (gauge or abs)'),
+    opt('stretch', 'dimensionless', 'highest safe stretch (spheres only)', { bounds: { gt: 1 } }),
+  ],
+};
+
+// ---- boundaries and branches ---------------------------------------------------------------
+
+export const RESERVOIR: KindTable = {
+  kind: 'reservoir',
+  section: 'reservoir',
+  doc: 'fixed-pressure boundary node; `ambient` is always available',
+  params: [
+    p('pressure', 'structure', 'a constant (`300 kPa gauge`), a time table [[t, p], ...], or an expression in t', { shape: 'pressure-series' }),
+    opt('temperature', 'temperature', 'temperature of gas leaving the reservoir (default ambient)', { bounds: POSITIVE }),
+  ],
+};
+
+export const LINE: KindTable = {
+  kind: 'line',
+  section: 'line',
+  doc: 'a tube between two nodes: laminar (Hagen–Poiseuille) to turbulent friction',
+  params: [
+    p('from', 'name', 'upstream node (chamber, reservoir or ambient); positive flow is from → to'),
+    p('to', 'name', 'downstream node (chamber, reservoir or ambient)'),
+    p('diameter', 'length', 'inner diameter', { bounds: POSITIVE }),
+    p('length', 'length', 'tube length', { bounds: POSITIVE }),
+    opt('roughness', 'length', 'absolute wall roughness; 0 is hydraulically smooth (polymer tubing; drawn metal tube is about 1.5 µm, common practice)', {
+      default: 0,
+      bounds: NON_NEGATIVE,
+    }),
+  ],
+};
+
+export const VALVE: KindTable = {
+  kind: 'valve',
+  section: 'valve',
+  doc: 'a valve between two nodes, or inside a line; needs one rating and one way of opening',
+  params: [
+    opt('from', 'name', 'upstream node; may be omitted with in-line (then the line’s from)'),
+    opt('to', 'name', 'downstream node; may be omitted with in-line (then the line’s to)'),
+    opt('in-line', 'name', 'the line this valve sits in (series combination)'),
+  ],
+};
+
+export const VALVE_RATINGS: KindTable[] = [
+  {
+    kind: 'iso6358',
+    section: 'valve-rating',
+    doc: 'ISO 6358-1 flow-rate characteristic: sonic conductance C, critical pressure ratio b, subsonic index m',
+    params: [
+      p('conductance', 'conductance', 'sonic conductance C, e.g. `0.9 L/(s*bar)`', { bounds: POSITIVE }),
+      p('critical-ratio', 'dimensionless', 'critical pressure ratio b', { bounds: { gt: 0, lt: 1 } }),
+      opt('subsonic-index', 'dimensionless', 'subsonic index m (ISO 6358-1 default 0.5)', { default: 0.5, bounds: POSITIVE }),
+    ],
+  },
+  {
+    kind: 'orifice',
+    section: 'valve-rating',
+    doc: 'sharp orifice: compressible nozzle flow, choked and subsonic',
+    params: [
+      p('orifice', 'length', 'orifice diameter', { bounds: POSITIVE }),
+      p('discharge-coefficient', 'dimensionless', 'discharge coefficient Cd', { bounds: { gt: 0, le: 1 } }),
+    ],
+  },
+];
+
+export const VALVE_OPERATIONS: KindTable[] = [
+  {
+    kind: 'schedule',
+    section: 'valve-operation',
+    doc: 'opened and closed in time: an initial opening and/or a schedule of ramps',
+    params: [
+      opt('initially', 'structure', '`open`, `closed` or an opening (default closed with a schedule)', { shape: 'opening' }),
+      opt('schedule', 'structure', 'list of { at, open, over }: from `at`, ramp to `open` over `over`', { shape: 'schedule' }),
+    ],
+  },
+  {
+    kind: 'check',
+    section: 'valve-operation',
+    doc: 'check valve: open while p_from − p_to exceeds the cracking pressure',
+    params: [p('check', 'structure', '{ cracking: <pressure difference> }', { shape: 'check' })],
+  },
+  {
+    kind: 'relief',
+    section: 'valve-operation',
+    doc: 'relief valve: opens when the upstream gauge pressure rises above opens-above, recloses below reseats-below',
+    params: [p('relief', 'structure', '{ opens-above, reseats-below } (gauge or abs)', { shape: 'relief' })],
+  },
+];
+
+export const CHECK: KindTable = {
+  kind: 'check-settings',
+  section: 'valve-operation',
+  doc: 'check valve settings',
+  params: [p('cracking', 'pressure-difference', 'pressure difference p_from − p_to at which it opens', { bounds: NON_NEGATIVE })],
+};
+
+export const RELIEF: KindTable = {
+  kind: 'relief-settings',
+  section: 'valve-operation',
+  doc: 'relief valve settings (upstream gauge pressure)',
+  params: [
+    p('opens-above', 'gauge-pressure', 'opens when the upstream pressure rises above this'),
+    p('reseats-below', 'gauge-pressure', 'closes again when the upstream pressure falls below this (< opens-above)'),
+  ],
+};
+
+export const SCHEDULE_STEP: KindTable = {
+  kind: 'schedule-step',
+  section: 'schedule-step',
+  doc: 'from time `at`, ramp linearly to `open` over `over`',
+  params: [
+    p('at', 'time', 'start of the ramp', { bounds: NON_NEGATIVE }),
+    p('open', 'structure', 'target opening: `open`, `closed`, `40%` or 0..1', { shape: 'opening' }),
+    opt('over', 'time', 'ramp duration (0: a step)', { default: 0, bounds: NON_NEGATIVE }),
+  ],
+};
+
+export const FEED: KindTable = {
+  kind: 'feed',
+  section: 'feed',
+  doc: 'a mass source into a chamber',
+  params: [
+    p('into', 'name', 'the chamber fed'),
+    p('rate', 'structure', 'mass flow (`0.5 g/s`) or standard volume flow at ISO 8778 (`10 L/min ANR`)', { shape: 'rate' }),
+    opt('temperature', 'temperature', 'temperature of the entering gas (default ambient)', { bounds: POSITIVE }),
+    opt('initially', 'structure', 'initial fraction of the rate (default 100%)', { shape: 'opening', default: '100%' }),
+    opt('schedule', 'structure', 'list of { at, open, over } scaling the rate', { shape: 'schedule' }),
+  ],
+};
+
+// ---- top level -----------------------------------------------------------------------------
+
+export const AMBIENT: KindTable = {
+  kind: 'ambient',
+  section: 'ambient',
+  doc: 'the surroundings; also the reservoir named `ambient`',
+  params: [
+    opt('pressure', 'ambient-pressure', 'ambient pressure, absolute by definition (`abs` optional)', { default: '101.325 kPa', bounds: POSITIVE }),
+    opt('temperature', 'temperature', 'ambient temperature', { default: '20 degC', bounds: POSITIVE }),
+  ],
+};
+
+export const CUSTOM_GAS: KindTable = {
+  kind: 'custom-gas',
+  section: 'gas',
+  doc: 'a gas given by its properties (ideal gas, constant γ, Sutherland viscosity)',
+  params: [
+    opt('name', 'text', 'a name for reports'),
+    p('molar-mass', 'molar-mass', 'molar mass', { bounds: POSITIVE }),
+    p('gamma', 'dimensionless', 'ratio of specific heats cp/cv', { bounds: { gt: 1 } }),
+    p('viscosity', 'structure', '{ value, at, sutherland }: μ at temperature `at`, Sutherland constant', { shape: 'viscosity' }),
+  ],
+};
+
+export const VISCOSITY: KindTable = {
+  kind: 'viscosity',
+  section: 'gas',
+  doc: 'Sutherland law μ(T) = μref (T/Tref)^1.5 (Tref + S)/(T + S)',
+  params: [
+    p('value', 'viscosity', 'dynamic viscosity μref', { bounds: POSITIVE }),
+    p('at', 'temperature', 'reference temperature Tref', { bounds: POSITIVE }),
+    p('sutherland', 'temperature-difference', 'Sutherland constant S (in K)', { bounds: NON_NEGATIVE }),
+  ],
+};
+
+export const SIMULATE: KindTable = {
+  kind: 'simulate',
+  section: 'simulate',
+  doc: 'how long and how precisely to simulate',
+  params: [
+    p('duration', 'time', 'simulated time', { bounds: POSITIVE }),
+    opt('sample', 'time', 'output interval (≤ duration; default chosen by the solver)', { bounds: POSITIVE }),
+    opt('method', 'enum', 'integrator family', { values: METHODS, default: 'auto' }),
+    opt('tolerance', 'dimensionless', 'relative tolerance', { default: 1e-6, bounds: { gt: 0, le: 0.1 } }),
+    opt('max-steps', 'integer', 'step budget: the run stops with status failed when exhausted', { bounds: POSITIVE }),
+    opt('max-wall', 'time', 'wall-clock budget', { bounds: POSITIVE }),
+  ],
+};
+
+export const EXPECT: KindTable = {
+  kind: 'expect',
+  section: 'expect',
+  doc: 'a check for CI: a probe, when to look, and a comparison; or settles',
+  params: [
+    opt('name', 'text', 'name shown in reports (default: generated from the check)'),
+    opt('probe', 'text', '<element>.<quantity> or total.mass'),
+    opt('at', 'structure', 'a time or `end`', { shape: 'at' }),
+    opt('over', 'structure', '[t0, t1], with stat', { shape: 'over' }),
+    opt('stat', 'enum', 'statistic over the interval', { values: STATS }),
+    opt('below', 'structure', 'passes when the value is below this (in the probe’s dimension)', { shape: 'probe-value' }),
+    opt('above', 'structure', 'passes when the value is above this', { shape: 'probe-value' }),
+    opt('near', 'structure', '{ value, within: <abs or %> }', { shape: 'near' }),
+    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber stays within band of its final value after `within`', { shape: 'settles' }),
+  ],
+};
+
+export const NEAR: KindTable = {
+  kind: 'near',
+  section: 'expect',
+  doc: 'near comparison',
+  params: [
+    p('value', 'structure', 'target value in the probe’s dimension', { shape: 'probe-value' }),
+    p('within', 'structure', 'allowed deviation: absolute (same dimension) or relative (`5%`)', { shape: 'within' }),
+  ],
+};
+
+export const SETTLES: KindTable = {
+  kind: 'settles',
+  section: 'expect',
+  doc: 'settling check',
+  params: [
+    p('within', 'time', 'time after which every chamber stays in the band', { bounds: NON_NEGATIVE }),
+    p('band', 'fraction', 'band around the final value', { bounds: POSITIVE }),
+  ],
+};
+
+export const TOP: KindTable = {
+  kind: 'netlist',
+  section: 'top',
+  doc: 'a plenum netlist, format 1',
+  params: [
+    p('format', 'integer', 'netlist format version: 1'),
+    opt('title', 'text', 'title for reports (default: the file name)'),
+    opt('gas', 'structure', 'air (default), nitrogen, helium, carbon-dioxide, or { molar-mass, gamma, viscosity }', { shape: 'gas', default: 'air' }),
+    opt('ambient', 'structure', 'ambient pressure and temperature', { shape: 'ambient' }),
+    opt('heat', 'enum', 'heat model: isothermal, adiabatic, or exchange (uses each chamber’s heat-transfer)', { values: HEAT_MODES, default: 'isothermal' }),
+    opt('chambers', 'structure', 'chambers by name', { shape: 'chambers' }),
+    opt('reservoirs', 'structure', 'reservoirs by name', { shape: 'reservoirs' }),
+    opt('lines', 'structure', 'lines by name', { shape: 'lines' }),
+    opt('valves', 'structure', 'valves by name', { shape: 'valves' }),
+    opt('feeds', 'structure', 'feeds by name', { shape: 'feeds' }),
+    p('simulate', 'structure', 'duration and solver settings', { shape: 'simulate' }),
+    opt('expect', 'structure', 'checks for CI', { shape: 'expect' }),
+  ],
+};
+
+/** Every table, for `plenum kinds` and the README. */
+export const ALL_TABLES: KindTable[] = [
+  TOP, AMBIENT, CUSTOM_GAS, VISCOSITY, CHAMBER, ...WALL_LAWS, START, LIMITS, RESERVOIR, LINE, VALVE,
+  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, SCHEDULE_STEP, FEED, SIMULATE, EXPECT, NEAR, SETTLES,
+];
+
+/** The table of a wall law, or undefined. */
+export function wallLaw(kind: string): KindTable | undefined {
+  return WALL_LAWS.find((w) => w.kind === kind);
+}
+
+/** Probe quantities by element kind. */
+export const PROBE_QUANTITIES = {
+  chamber: ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch'],
+  line: ['flow', 'reynolds'],
+  valve: ['flow', 'reynolds'],
+  total: ['mass'],
+} as const;

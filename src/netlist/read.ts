@@ -1,0 +1,190 @@
+/**
+ * readNetlist: YAML text → a validated NetlistDoc with every number in SI, or every problem
+ * found (each with file:line:column, the path in the netlist and a hint).
+ *
+ * Order matters only where values depend on each other: ambient first (gauge pressures are
+ * read against it), then simulate (expressions and expectations are checked against its
+ * duration), then all names (so references may point forwards), then the elements.
+ */
+import type { Diagnostic, Result } from '../diag/diagnostic';
+import { readFeed, readLine, readValve } from './branches';
+import { readChamber } from './chambers';
+import { Checker } from './checker';
+import { readExpect, readSimulate } from './expect';
+import { namedGas } from './gases';
+import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds';
+import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names';
+import { readPressureSeries } from './time-series';
+import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types';
+import { parseYamlTree, type YMap, type YNode } from './yaml-tree';
+
+const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
+
+function baseName(file: string): string {
+  return file.split(/[\\/]/).pop() || file;
+}
+
+function readFormat(ck: Checker, root: YMap): boolean {
+  const node = ck.get(root, 'format');
+  if (!node) {
+    ck.error({ pos: { line: 1, column: 1 }, path: ['format'] }, 'format-missing', 'the netlist does not say its format', 'add `format: 1` as the first line');
+    return false;
+  }
+  if (!(node.kind === 'scalar' && node.value === 1)) {
+    ck.error(node, 'format-version', `unsupported format ${node.kind === 'scalar' ? String(node.value) : node.kind}`, 'this version of plenum reads `format: 1`');
+    return false;
+  }
+  return true;
+}
+
+function readAmbient(ck: Checker, root: YMap): { pressure: number; temperature: number } {
+  const node = ck.get(root, 'ambient');
+  const map = node ? ck.map(node, '`ambient`', 'write e.g. `ambient: { pressure: 101.325 kPa, temperature: 20 degC }`', true) : undefined;
+  const source: YMap = map ?? { kind: 'map', entries: [], path: ['ambient'], pos: { line: 1, column: 1 } };
+  ck.checkKeys(source, AMBIENT.params.map((p) => p.name), '`ambient`');
+  const v = ck.params(source, AMBIENT.params);
+  return {
+    pressure: (v.pressure as number | undefined) ?? DEFAULT_AMBIENT.pressure,
+    temperature: (v.temperature as number | undefined) ?? DEFAULT_AMBIENT.temperature,
+  };
+}
+
+function readGas(ck: Checker, root: YMap): GasSpec {
+  const fallback = namedGas('air') as GasSpec;
+  const node = ck.get(root, 'gas');
+  if (!node) {
+    ck.defaulted.push('gas');
+    return fallback;
+  }
+  if (node.kind !== 'map') {
+    const name = ck.enumValue(node, GAS_NAMES, 'gas', 'unknown-gas');
+    return (name && namedGas(name)) || fallback;
+  }
+  ck.checkKeys(node, CUSTOM_GAS.params.map((p) => p.name), 'a custom gas');
+  const v = ck.params(node, CUSTOM_GAS.params);
+  const visc = v.viscosity ? ck.map(v.viscosity as YNode, '`viscosity`', 'write `viscosity: { value: 1.8e-5 Pa*s, at: 20 degC, sutherland: 110 K }`') : undefined;
+  if (visc) ck.checkKeys(visc, VISCOSITY.params.map((p) => p.name), '`viscosity`');
+  const mu = visc ? ck.params(visc, VISCOSITY.params) : {};
+  if ([v['molar-mass'], v.gamma, mu.value, mu.at, mu.sutherland].some((x) => x === undefined)) return fallback;
+  return {
+    name: (v.name as string | undefined) ?? 'custom',
+    molarMass: v['molar-mass'] as number,
+    gamma: v.gamma as number,
+    viscosity: { value: mu.value as number, at: mu.at as number, sutherland: mu.sutherland as number },
+  };
+}
+
+/** The element sections as maps, their names registered. */
+function collectSections(ck: Checker, root: YMap, names: Names): Record<ElementKind, NameEntry[]> {
+  const out = {} as Record<ElementKind, NameEntry[]>;
+  for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
+    const key = SECTIONS[kind];
+    const node = ck.get(root, key);
+    const map = node ? ck.map(node, `\`${key}\``, `\`${key}\` maps names to definitions, e.g. \`${key}:\\n  name_1: {...}\``, true) : undefined;
+    out[kind] = map ? collectNames(ck, names, kind, map) : [];
+  }
+  return out;
+}
+
+function readReservoir(ck: Checker, entry: NameEntry, duration?: number): ReservoirSpec | undefined {
+  const what = `reservoir \`${entry.name}\``;
+  const map = ck.map(entry.node, what, 'write e.g. `supply: { pressure: 600 kPa gauge }`');
+  if (!map) return undefined;
+  ck.checkKeys(map, RESERVOIR.params.map((p) => p.name), what);
+  const v = ck.params(map, RESERVOIR.params);
+  const pressure = v.pressure ? readPressureSeries(ck, v.pressure as YNode, duration) : undefined;
+  if (!pressure) return undefined;
+  const spec: ReservoirSpec = { name: entry.name, pressure, pos: ck.sourcePos(entry.where) };
+  if (v.temperature !== undefined) spec.temperature = v.temperature as number;
+  return spec;
+}
+
+/**
+ * Warns about chambers nothing refers to. Reads the references as written (not the validated
+ * branches), so that a branch with an unrelated error does not also produce this warning.
+ */
+function warnUnconnected(ck: Checker, sections: Record<ElementKind, NameEntry[]>): void {
+  const touched = new Set<string>();
+  for (const entry of [...sections.line, ...sections.valve, ...sections.feed]) {
+    if (entry.node.kind !== 'map') continue;
+    for (const e of entry.node.entries) {
+      if (['from', 'to', 'into'].includes(e.key) && e.value.kind === 'scalar') touched.add(String(e.value.value));
+    }
+  }
+  for (const c of sections.chamber) {
+    if (!touched.has(c.name)) {
+      ck.warn(c.where, 'unconnected-chamber', `chamber \`${c.name}\` is not connected to anything`, 'connect it with a line, a valve or a feed, or remove it');
+    }
+  }
+}
+
+function byPosition(a: Diagnostic, b: Diagnostic): number {
+  return a.line - b.line || a.column - b.column;
+}
+
+function defined<T>(xs: (T | undefined)[]): T[] {
+  return xs.filter((x): x is T => x !== undefined);
+}
+
+/** Reads and validates a netlist. `file` is used in diagnostics and as the default title. */
+export function readNetlist(source: string, file: string): Result<NetlistDoc> {
+  const tree = parseYamlTree(source, file);
+  if (!tree.root) return { ok: false, diagnostics: tree.diagnostics };
+  const ck = new Checker(file);
+  ck.diagnostics.push(...tree.diagnostics);
+  const root = ck.map(tree.root, 'a netlist', 'start with `format: 1`, then `chambers:` and `simulate:`');
+  if (!root) return { ok: false, diagnostics: ck.diagnostics };
+  ck.checkKeys(root, TOP.params.map((p) => p.name), 'the netlist');
+
+  readFormat(ck, root);
+  const titleNode = ck.get(root, 'title');
+  const title = (titleNode && ck.text(titleNode, '`title`', 'write the title as text')) || baseName(file);
+  const ambient = readAmbient(ck, root);
+  ck.ambientPa = ambient.pressure;
+  const gas = readGas(ck, root);
+  const heatNode = ck.get(root, 'heat');
+  const heat = (heatNode ? ck.enumValue(heatNode, HEAT_MODES, 'heat model') : 'isothermal') ?? 'isothermal';
+  if (!heatNode) ck.defaulted.push('heat');
+  const simulate = readSimulate(ck, ck.get(root, 'simulate'), root);
+
+  const names: Names = new Map();
+  const sections = collectSections(ck, root, names);
+  const chambersNode = ck.get(root, 'chambers');
+  const noChambers = !chambersNode || (chambersNode.kind === 'map' && chambersNode.entries.length === 0) || (chambersNode.kind === 'scalar' && chambersNode.value === null);
+  if (noChambers) {
+    ck.error(ck.missingAt(root, 'chambers'), 'missing-key', 'the netlist has no chambers', 'add `chambers:` with at least one chamber; there is nothing to simulate otherwise');
+  }
+  const chambers = defined(sections.chamber.map((e) => readChamber(ck, e, { heat: heat as NetlistDoc['heat'] })));
+  const reservoirs = defined(sections.reservoir.map((e) => readReservoir(ck, e, simulate?.duration)));
+  const lines = defined(sections.line.map((e) => readLine(ck, e, names)));
+  const lineMap = new Map<string, LineSpec>(lines.map((l) => [l.name, l]));
+  const taken = new Map<string, string>();
+  const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
+  const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
+  warnUnconnected(ck, sections);
+
+  const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
+  const expectNode = ck.get(root, 'expect');
+  const expect = expectNode ? readExpect(ck, expectNode, { names, chambers: chamberMap, duration: simulate?.duration }) : [];
+
+  const diagnostics = ck.diagnostics.slice().sort(byPosition);
+  if (ck.hasErrors || !simulate) return { ok: false, diagnostics };
+  const doc: NetlistDoc = {
+    file,
+    source,
+    format: 1,
+    title,
+    gas,
+    ambient,
+    heat: heat as NetlistDoc['heat'],
+    chambers,
+    reservoirs,
+    lines,
+    valves,
+    feeds,
+    simulate,
+    expect,
+    defaulted: ck.defaulted.slice(),
+  };
+  return { ok: true, value: doc, warnings: diagnostics };
+}

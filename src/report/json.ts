@@ -1,0 +1,23 @@
+/** The machine-readable result exactly per the format contract (SI numbers). */
+import type { RunResult } from '../analysis/results.js';
+
+export function resultJson(r: RunResult): string {
+  const out = {
+    format: r.format,
+    status: r.status,
+    message: r.message,
+    end: r.end,
+    stats: r.stats,
+    chambers: r.chambers,
+    lines: r.lines,
+    valves: r.valves,
+    mass: r.mass,
+    events: r.events,
+    warnings: r.warnings,
+    expectations: r.expectations.map((e) => ({ name: e.name, passed: e.passed, actual: e.actual, message: e.message })),
+    title: r.title,
+    ambient: r.ambient,
+  };
+  // JSON has no Infinity/NaN: write them as null
+  return JSON.stringify(out, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2) + '\n';
+}

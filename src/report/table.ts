@@ -1,0 +1,65 @@
+/** The terminal summary a person reads after `plenum run`. */
+import type { RunResult } from '../analysis/results.js';
+import { display } from '../units/display.js';
+
+function table(head: string[], rows: string[][]): string {
+  const w = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
+  const line = (cells: string[]): string => cells.map((c, i) => (i === 0 ? c.padEnd(w[i]) : c.padStart(w[i]))).join('  ').trimEnd();
+  return [line(head), line(w.map((n) => '-'.repeat(n))), ...rows.map(line)].join('\n');
+}
+
+export function summaryText(r: RunResult): string {
+  const out: string[] = [];
+  out.push(`${r.title}  (${r.file})`);
+  out.push(`${r.status === 'completed' ? 'completed' : 'FAILED'}: ${r.message}`);
+  out.push(`solver ${r.stats.method}: ${r.stats.steps} steps (${r.stats.rejected} rejected), ${r.stats.rhs} rhs, ${r.stats.jacobians} jacobians, ${r.stats.wall_ms} ms`);
+  out.push('');
+  const ch = Object.entries(r.chambers);
+  if (ch.length) {
+    out.push(table(
+      ['chamber', 'final gauge', 'volume', 'stretch', 'mass', 'temp', 'peak gauge', 'at', 'least gauge', 'at'],
+      ch.map(([n, c]) => [
+        n,
+        display(c.final.gauge, 'gauge').replace(' gauge', ''),
+        display(c.final.volume, 'volume'),
+        c.final.stretch !== undefined ? display(c.final.stretch, 'stretch') : '-',
+        display(c.final.mass, 'mass'),
+        display(c.final.temperature, 'temperature'),
+        display(c.peak.gauge, 'gauge').replace(' gauge', ''),
+        display(c.peak.at, 'time'),
+        display(c.least.gauge, 'gauge').replace(' gauge', ''),
+        display(c.least.at, 'time'),
+      ]),
+    ));
+    out.push('(pressures in kPa gauge)');
+    out.push('');
+  }
+  const ln = Object.entries(r.lines);
+  if (ln.length) {
+    out.push(table(['line', 'peak flow', 'peak Re', 'regime'],
+      ln.map(([n, l]) => [n, display(l.peak_flow, 'flow'), display(l.peak_reynolds, 'reynolds'), l.regime])));
+    out.push('');
+  }
+  const vl = Object.entries(r.valves);
+  if (vl.length) {
+    out.push(table(['valve', 'peak flow', 'choked'], vl.map(([n, v]) => [n, display(v.peak_flow, 'flow'), v.choked ? 'yes' : 'no'])));
+    out.push('');
+  }
+  if (r.events.length) {
+    out.push('events:');
+    const shown = r.events.slice(0, 40);
+    for (const e of shown) out.push(`  ${display(e.t, 'time').padStart(10)}  ${e.what}`);
+    if (r.events.length > shown.length) out.push(`  ... and ${r.events.length - shown.length} more (see --json)`);
+    out.push('');
+  }
+  const m = r.mass;
+  out.push(`mass: initial ${display(m.initial, 'mass')}, final ${display(m.final, 'mass')}, in through boundaries ${display(m.through_boundaries, 'mass')}, drift ${m.drift.toExponential(1)}`);
+  for (const w of r.warnings) out.push(`warning: ${w}`);
+  if (r.expectations.length) {
+    out.push('');
+    const pass = r.expectations.filter((e) => e.passed).length;
+    for (const e of r.expectations) out.push(`  ${e.passed ? 'pass' : 'FAIL'}  ${e.name}: ${e.message}${e.passed ? '' : `  (${e.file}:${e.line}:${e.column})`}`);
+    out.push(`expectations: ${pass} passed, ${r.expectations.length - pass} failed`);
+  }
+  return out.join('\n') + '\n';
+}

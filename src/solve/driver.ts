@@ -1,0 +1,208 @@
+/**
+ * The one driver: integrates segment by segment between time breakpoints (schedule ramps,
+ * table knots), locates state events on the integrator's dense output, applies them and
+ * restarts, samples the solution on a grid, and enforces budgets. Integrators only step.
+ *
+ * References: event location by the Illinois variant of regula falsi on the continuous
+ * extension, Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed., §II.6 ("dense output and
+ * event location"); Dahlquist & Björck, Numerical Methods, §6.2 (Illinois).
+ */
+import type { DenseOutput, Integrator, IntegratorStatus, OdeProblem, WorkCounts } from './types.js';
+import { addWork, zeroWork } from './types.js';
+
+export interface EventfulProblem extends OdeProblem {
+  /** Ascending times in (t0, tEnd) where the rhs has a kink or jump: the driver restarts there. */
+  breakpoints: number[];
+  /** Called when a breakpoint is reached (before integration resumes past it). */
+  atBreakpoint(t: number, y: Float64Array): void;
+  /** Number of state events. */
+  nEvents: number;
+  /** Writes every event function g_k(t, y) into out (a sign change is an event). */
+  eventValues(t: number, y: Float64Array, out: Float64Array): void;
+  /** +1: only upward crossings count, −1 only downward, 0 both. */
+  eventDirection(k: number): number;
+  /** Applies event k at t (state y). Returns true if the rhs changed (the integrator must restart). */
+  fireEvent(k: number, t: number, y: Float64Array, rising: boolean): boolean;
+}
+
+export interface DriverOptions {
+  integrator: Integrator;
+  t0: number;
+  tEnd: number;
+  y0: Float64Array;
+  /** Sample grid spacing (s); samples at t0 + k·sample and at tEnd. */
+  sample: number;
+  /** Called at every sample time and every accepted step end, in time order, with kind. */
+  observe(t: number, y: Float64Array, kind: 'sample' | 'step'): void;
+  maxSteps?: number;
+  maxWallMs?: number;
+  /** Polled once a step; a string stops the run with that message (e.g. Ctrl-C). */
+  interrupt?: () => string | null;
+  hMax?: number;
+}
+
+export type DriverStatus = 'completed' | 'failed';
+
+export interface DriverResult {
+  status: DriverStatus;
+  cause: IntegratorStatus | 'budget-steps' | 'budget-wall' | 'interrupted' | 'completed';
+  message: string;
+  t: number;
+  y: Float64Array;
+  work: WorkCounts;
+}
+
+const ILLINOIS_ITER = 100;
+
+/** Illinois root finding of g_k on [a, b] using dense output. Returns the root time. */
+function locate(p: EventfulProblem, k: number, a: number, ga: number, b: number, gb: number,
+  dense: DenseOutput, yTmp: Float64Array, gTmp: Float64Array): number {
+  let side = 0;
+  for (let i = 0; i < ILLINOIS_ITER; i++) {
+    const c = (a * gb - b * ga) / (gb - ga);
+    if (!(c > a && c < b)) break;
+    dense(c, yTmp);
+    p.eventValues(c, yTmp, gTmp);
+    const gc = gTmp[k];
+    if (gc === 0) return c;
+    if (Math.sign(gc) === Math.sign(gb)) {
+      b = c; gb = gc;
+      if (side === -1) ga /= 2;
+      side = -1;
+    } else {
+      a = c; ga = gc;
+      if (side === 1) gb /= 2;
+      side = 1;
+    }
+    if (b - a <= 4e-15 * Math.max(Math.abs(b), 1e-300) + 1e-15) break;
+  }
+  return b; // report the first time at which the crossing has happened
+}
+
+export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
+  const started = Date.now();
+  const work = zeroWork();
+  const n = p.n;
+  let t = o.t0;
+  let y: Float64Array = Float64Array.from(o.y0);
+  const gPrev = new Float64Array(p.nEvents);
+  const gNew = new Float64Array(p.nEvents);
+  const gTmp = new Float64Array(p.nEvents);
+  const yTmp = new Float64Array(n);
+  const yEv = new Float64Array(n);
+  let nextSample = 1; // index of the next sample on the grid
+  const sampleAt = (k: number): number => Math.min(o.t0 + k * o.sample, o.tEnd);
+  const nSamples = Math.ceil((o.tEnd - o.t0) / o.sample - 1e-9);
+  o.observe(t, y, 'sample');
+  p.eventValues(t, y, gPrev);
+
+  const emitSamples = (upTo: number, dense: DenseOutput, inclusive: boolean): void => {
+    while (nextSample <= nSamples) {
+      const ts = sampleAt(nextSample);
+      if (ts > upTo || (!inclusive && ts === upTo)) break;
+      dense(ts, yTmp);
+      o.observe(ts, yTmp, 'sample');
+      nextSample++;
+    }
+  };
+
+  const stops = [...p.breakpoints.filter((b) => b > o.t0 && b < o.tEnd), o.tEnd];
+  let h0: number | undefined;
+  let failure: DriverResult | null = null;
+  for (const tb of stops) {
+    while (t < tb) {
+      let restartAt: number | null = null;
+      let budgetStop: DriverResult['cause'] | null = null;
+      let budgetMsg = '';
+      const onStep = (tOld: number, tNew: number, yNew: Float64Array, dense: DenseOutput): boolean => {
+        p.eventValues(tNew, yNew, gNew);
+        // earliest qualifying crossing
+        let kFirst = -1;
+        let tFirst = Infinity;
+        for (let k = 0; k < p.nEvents; k++) {
+          const a = gPrev[k];
+          const b = gNew[k];
+          const dir = p.eventDirection(k);
+          const up = a < 0 && b >= 0;
+          const down = a > 0 && b <= 0;
+          if (!((up && dir >= 0) || (down && dir <= 0))) continue;
+          const tc = locate(p, k, tOld, a, tNew, b, dense, yTmp, gTmp);
+          if (tc < tFirst) { tFirst = tc; kFirst = k; }
+        }
+        if (kFirst >= 0) {
+          emitSamples(tFirst, dense, false);
+          dense(tFirst, yEv);
+          const rising = gNew[kFirst] > gPrev[kFirst];
+          const restart = p.fireEvent(kFirst, tFirst, yEv, rising);
+          // every other event function is re-read at the event time, so a crossing later in
+          // this step is found again on the next step
+          p.eventValues(tFirst, yEv, gPrev);
+          if (restart || tFirst < tNew) {
+            o.observe(tFirst, yEv, 'step');
+            restartAt = tFirst;
+            return false;
+          }
+        }
+        emitSamples(tNew, dense, true);
+        o.observe(tNew, yNew, 'step');
+        gPrev.set(gNew);
+        if (o.maxSteps !== undefined && work.steps + curSteps() >= o.maxSteps) {
+          budgetStop = 'budget-steps';
+          budgetMsg = `step budget max-steps = ${o.maxSteps} used up at t = ${tNew.toPrecision(6)} s`;
+          return false;
+        }
+        if (o.maxWallMs !== undefined && Date.now() - started > o.maxWallMs) {
+          budgetStop = 'budget-wall';
+          budgetMsg = `wall-time budget max-wall = ${(o.maxWallMs / 1000).toPrecision(3)} s used up at t = ${tNew.toPrecision(6)} s`;
+          return false;
+        }
+        const why = o.interrupt?.();
+        if (why) {
+          budgetStop = 'interrupted';
+          budgetMsg = `${why} at t = ${tNew.toPrecision(6)} s`;
+          return false;
+        }
+        return true;
+      };
+      let stepsThisCall = 0;
+      const curSteps = (): number => stepsThisCall;
+      const counting = (tOld: number, tNew: number, yNew: Float64Array, dense: DenseOutput): boolean => {
+        stepsThisCall++;
+        return onStep(tOld, tNew, yNew, dense);
+      };
+      const r = o.integrator(p, t, y, tb, counting, {
+        h0, hMax: o.hMax,
+        maxSteps: o.maxSteps !== undefined ? Math.max(1, o.maxSteps - work.steps) : undefined,
+      });
+      addWork(work, r.work);
+      h0 = r.hLast > 0 ? r.hLast : undefined;
+      if (restartAt !== null) {
+        t = restartAt;
+        y = Float64Array.from(yEv);
+        continue;
+      }
+      t = r.t;
+      y = r.y;
+      if (budgetStop) {
+        failure = { status: 'failed', cause: budgetStop, message: budgetMsg, t, y, work };
+        break;
+      }
+      if (r.status === 'max-steps') {
+        failure = { status: 'failed', cause: 'budget-steps', message: `step budget max-steps = ${o.maxSteps} used up at t = ${t.toPrecision(6)} s`, t, y, work };
+        break;
+      }
+      if (r.status !== 'completed') {
+        failure = { status: 'failed', cause: r.status, message: r.message, t, y, work };
+        break;
+      }
+    }
+    if (failure) break;
+    if (tb < o.tEnd) {
+      p.atBreakpoint(tb, y);
+      p.eventValues(tb, y, gPrev);
+      h0 = undefined;
+    }
+  }
+  if (failure) return failure;
+  return { status: 'completed', cause: 'completed', message: `completed at t = ${o.tEnd} s`, t, y, work };
+}

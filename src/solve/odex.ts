@@ -1,0 +1,173 @@
+/**
+ * The non-stiff integrator: Hairer & Wanner's extrapolated explicit midpoint rule (ODEX), from
+ * the odex package, behind the plenum Integrator contract. odex works on number[] and calls
+ * back solOut(nr, xOld, x, y, dense(c, x)); this wrapper converts to Float64Array, counts rhs
+ * evaluations itself, and turns odex's outcomes (and non-finite values, which odex would
+ * happily accept) into statuses.
+ *
+ * Non-finite rhs values abort the odex run; the wrapper restarts from the last accepted point
+ * with the step size capped at a quarter of the failed one (and a quarter again on each repeat),
+ * lifting the cap once the solution gets past the trouble spot. odex clamps its first step to
+ * [1e-4, min(hMax, half the interval)], so an h0 below 1e-4 has effect only through hMax.
+ *
+ * References: Hairer, Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd ed.,
+ * Springer 1993, §II.9 (extrapolation methods, ODEX) and its dense output (§II.9, "Dense
+ * output for the GBS method"; section numbers from memory); odex 2.0.4, a port of Hairer's
+ * odex.f.
+ */
+import { Outcome, Solver, type OutputFunction } from '#odex';
+import {
+  zeroWork,
+  type DenseOutput,
+  type IntegrateOptions,
+  type IntegrateResult,
+  type Integrator,
+  type IntegratorStatus,
+} from './types.js';
+
+const DEFAULT_MAX_STEPS = 100_000;
+/** Non-finite aborts without getting past the trouble spot before giving up. */
+const MAX_NON_FINITE = 10;
+/** odex's unit round-off (Solver.uRound); it ends a run when |tEnd − x| ≤ 10·|x|·U_ROUND. */
+const U_ROUND = 2.3e-16;
+const EPS = 2.220446049250313e-16;
+
+/** An option that is given and usable as a step size. */
+function positive(x: number | undefined): x is number {
+  return x !== undefined && x > 0 && Number.isFinite(x);
+}
+
+/** Thrown from inside the rhs adapter to abandon an odex run; never escapes this module. */
+class NonFiniteRhs {
+  constructor(readonly t: number) {}
+}
+
+/**
+ * Adaptive ODEX. Options: h0 (first step, see the module note), hMax, maxSteps (odex's step
+ * budget: accepted + rejected attempts, default 100 000). `yNew` given to onStep is the
+ * wrapper's own state: read it, do not modify it. work.rejected is odex's count plus one per
+ * non-finite abort (odex's count for an aborted run is lost).
+ */
+export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: IntegrateOptions = {}) => {
+  const n = problem.n;
+  if (y0.length !== n || problem.atol.length !== n) {
+    throw new RangeError(`odex: y0 has ${y0.length} and atol ${problem.atol.length} entries, problem.n is ${n}`);
+  }
+  if (!Number.isFinite(t0) || !Number.isFinite(tEnd)) throw new RangeError('odex: t0 and tEnd must be finite');
+  const work = zeroWork();
+  const y = Float64Array.from(y0);
+  let t = t0;
+  let hLast = 0;
+  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
+    ({ status, t, y: Float64Array.from(y), work, hLast, message });
+  if (t0 === tEnd) return finish('completed', 'empty interval');
+
+  const dir = Math.sign(tEnd - t0);
+  const span = Math.abs(tEnd - t0);
+  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
+  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
+  const atol = Array.from(problem.atol);
+
+  // f is never sampled at or past tEnd: a schedule switching there belongs to the next run.
+  const tInside = tEnd - dir * Math.max(Math.abs(tEnd) * EPS, Number.MIN_VALUE);
+  const yIn = new Float64Array(n);
+  const dydt = new Float64Array(n);
+  const fOut = new Array<number>(n).fill(0);
+  // odex copies the returned array at once, so one buffer serves every call.
+  const f = (x: number, yArr: number[]): number[] => {
+    for (let i = 0; i < n; i++) yIn[i] = yArr[i];
+    problem.rhs(dir * (x - tInside) > 0 ? tInside : x, yIn, dydt);
+    work.rhs++;
+    for (let i = 0; i < n; i++) {
+      const v = dydt[i];
+      if (!Number.isFinite(v) || !Number.isFinite(yIn[i])) throw new NonFiniteRhs(x);
+      fOut[i] = v;
+    }
+    return fOut;
+  };
+
+  let odexDense: ((c: number, x: number) => number) | undefined;
+  const dense: DenseOutput = (tq, out) => {
+    for (let i = 0; i < n; i++) out[i] = odexDense!(i, tq);
+  };
+
+  let ended: { status: IntegratorStatus; message: string } | null = null;
+  let cap = Infinity;
+  let liftCap = false;
+  let tTrouble = t0;
+  let nNonFinite = 0;
+
+  const solOut: OutputFunction = (nr, xOld, x, yArr, d) => {
+    if (nr === 1) return; // odex reports the starting point first (xOld == x): not a step
+    for (let i = 0; i < n; i++) {
+      if (!Number.isFinite(yArr[i])) {
+        ended = { status: 'non-finite', message: `non-finite solution at t = ${x}` };
+        return false;
+      }
+    }
+    const tNew = Math.abs(tEnd - x) <= 10 * U_ROUND * Math.abs(x) ? tEnd : x;
+    for (let i = 0; i < n; i++) y[i] = yArr[i];
+    t = tNew;
+    hLast = Math.abs(tNew - xOld);
+    work.steps++;
+    odexDense = d;
+    if (onStep(xOld, tNew, y, dense) === false) {
+      ended = { status: 'stopped', message: `stopped by the step callback at t = ${t}` };
+      return false;
+    }
+    if (hLast <= 10 * EPS * Math.max(Math.abs(t), Math.abs(tEnd)) && t !== tEnd) {
+      ended = { status: 'step-too-small', message: `step size ${hLast} below round-off limit at t = ${t}` };
+      return false;
+    }
+    if (dir * (t - tTrouble) > 0) {
+      nNonFinite = 0;
+      if (cap < Infinity) {
+        liftCap = true;
+        return false;
+      }
+    }
+  };
+
+  for (;;) {
+    const budget = maxSteps - work.steps - work.rejected;
+    if (budget <= 0) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
+    const solver = new Solver(n);
+    solver.denseOutput = true;
+    solver.relativeTolerance = problem.rtol;
+    solver.absoluteTolerance = atol;
+    solver.maxSteps = budget;
+    solver.maxStepSize = Math.min(hMax, cap);
+    const hStart = cap < Infinity ? cap : hLast > 0 ? hLast : options.h0;
+    if (positive(hStart)) solver.initialStepSize = Math.min(hStart, solver.maxStepSize);
+    liftCap = false;
+    let result: ReturnType<Solver['solve']>;
+    try {
+      result = solver.solve(f, t, Array.from(y), tEnd, solOut);
+    } catch (e) {
+      if (!(e instanceof NonFiniteRhs)) throw e;
+      work.rejected++;
+      if (e.t === t) return finish('non-finite', `rhs is not finite at t = ${t}`);
+      if (dir * (e.t - tTrouble) > 0) tTrouble = e.t;
+      if (++nNonFinite > MAX_NON_FINITE) {
+        return finish('non-finite', `non-finite rhs values after ${MAX_NON_FINITE} step reductions at t = ${t}`);
+      }
+      cap = Math.min(cap, Math.max(Math.abs(e.t - t), hLast)) / 4;
+      continue;
+    }
+    work.rejected += result.nReject;
+    if (ended !== null) {
+      const { status, message } = ended;
+      return finish(status, message);
+    }
+    if (liftCap) {
+      cap = Infinity;
+      continue;
+    }
+    if (result.outcome === Outcome.MaxStepsExceeded) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
+    if (result.outcome === Outcome.Converged) {
+      t = tEnd;
+      return finish('completed', 'reached tEnd');
+    }
+    throw new Error(`odex: unexpected outcome ${result.outcome}`);
+  }
+};

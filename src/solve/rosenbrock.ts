@@ -1,0 +1,409 @@
+/**
+ * RODAS, the stiff integrator: a 6-stage Rosenbrock method of order 4 with an embedded order-3
+ * error estimate, L-stable and stiffly accurate, with an order-3 continuous extension for dense
+ * output. One jacobian and one LU factorisation of (1/(hγ))·I − J per step attempt; no Newton
+ * iteration. Nothing allocates per step.
+ *
+ * References: Hairer & Wanner, Solving Ordinary Differential Equations II, 2nd ed., Springer
+ * 1996, §VI.4 (RODAS) and §IV.7 (Rosenbrock methods, their implementation and step control;
+ * rodas.f's own header cites §IV.7 and §VI.3); Hairer's code rodas.f (version of October 28,
+ * 1996), subroutines ROSCOR and ROCOE (METH = 1).
+ */
+import { DenseLu } from '../linalg/dense-lu.js';
+import { FiniteJacobian } from './finite-jacobian.js';
+import {
+  zeroWork,
+  type DenseOutput,
+  type IntegrateOptions,
+  type IntegrateResult,
+  type Integrator,
+  type IntegratorStatus,
+  type OdeProblem,
+  type StepCallback,
+  type WorkCounts,
+} from './types.js';
+
+// ---- Coefficients -------------------------------------------------------------------------
+// Transcribed from rodas.f, subroutine ROCOE, METH = 1 (Hairer & Wanner's own RODAS set; the
+// published code accompanying the book above). Cross-checked digit for digit against the
+// Rodas4 tableau of SciML OrdinaryDiffEq.jl (src/tableaus/rosenbrock_tableaus.jl), which
+// cites the same book. Form: the "transformed" Rosenbrock stages of rodas.f (Hairer & Wanner §IV.7),
+//   (1/(hγ) I − J) k_i = f(t + c_i h, y + Σ_j a_ij k_j) + Σ_j (g_ij / h) k_j + h d_i f_t,
+// y1 = y + Σ_{j≤4} a_5j k_j + k_5 + k_6 (stiffly accurate), error estimate k_6.
+
+const GAMMA = 0.25;
+/** Stage abscissae c_i. */
+const C = [0, 0.386, 0.21, 0.63, 1, 1];
+/** Weights d_i of h·∂f/∂t (rodas.f D1..D4; zero for the last two stages). */
+const D = [0.25, -0.1043, 0.1035, -0.03620000000000023, 0, 0];
+/** a_ij: argument of stage i. Row 5 is the embedded (order-3) solution y + … + k_5. */
+const A: readonly number[][] = [
+  [],
+  [1.544],
+  [0.9466785280815826, 0.2557011698983284],
+  [3.314825187068521, 2.896124015972201, 0.9986419139977817],
+  [1.221224509226641, 6.019134481288629, 12.53708332932087, -0.687886036105895],
+  [1.221224509226641, 6.019134481288629, 12.53708332932087, -0.687886036105895, 1],
+];
+/** g_ij (rodas.f C21..C65): coupling of earlier stages into the right-hand side of stage i. */
+const G: readonly number[][] = [
+  [],
+  [-5.6688],
+  [-2.430093356833875, -0.2063599157091915],
+  [-0.1073529058151375, -9.594562251023355, -20.47028614809616],
+  [7.496443313967647, -10.24680431464352, -33.99990352819905, 11.7089089320616],
+  [8.083246795921522, -7.981132988064893, -31.52159432874371, 16.31930543123136, -6.058818238834054],
+];
+/** Dense output (rodas.f D21..D35): q_2 = Σ H[0][j] k_j, q_3 = Σ H[1][j] k_j over k_1..k_5. */
+const H: readonly number[][] = [
+  [10.12623508344586, -7.487995877610167, -34.80091861555747, -7.992771707568823, 1.025137723295662],
+  [-0.6762803392801253, 6.087714651680015, 16.43084320892478, 24.76722511418386, -6.594389125716872],
+];
+
+// ---- Step-size control (rodas.f defaults) -------------------------------------------------
+const SAFE = 0.9;
+/** h_new/h is kept in [1/SHRINK_MAX, GROW_MAX] = [0.2, 6]. */
+const SHRINK_MAX = 5;
+const GROW_MAX = 6;
+const DEFAULT_MAX_STEPS = 100_000;
+/** Consecutive failed factorisations (each halving h) before giving up. */
+const MAX_SINGULAR = 5;
+/** Non-finite attempts (each dividing h by 4) without getting past the trouble spot. */
+const MAX_NON_FINITE = 10;
+const EPS = 2.220446049250313e-16;
+
+// ---- Small helpers ------------------------------------------------------------------------
+
+/** An option that is given and usable as a step size. */
+function positive(x: number | undefined): x is number {
+  return x !== undefined && x > 0 && Number.isFinite(x);
+}
+
+function allFinite(v: Float64Array): boolean {
+  for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) return false;
+  return true;
+}
+
+/** Weighted RMS of v with sc_i = atol_i + rtol·max(|a_i|, |b_i|). */
+function rmsNorm(v: Float64Array, a: Float64Array, b: Float64Array, p: OdeProblem): number {
+  let s = 0;
+  for (let i = 0; i < v.length; i++) {
+    const sc = p.atol[i] + p.rtol * Math.max(Math.abs(a[i]), Math.abs(b[i]));
+    s += (v[i] / sc) ** 2;
+  }
+  return Math.sqrt(s / Math.max(1, v.length));
+}
+
+/**
+ * The double a round-off or two inside tEnd. Stages that would sample f exactly at tEnd use it,
+ * so a schedule switching at tEnd (a breakpoint, where the driver restarts) is never seen
+ * from the wrong side, whichever way its comparison is written.
+ */
+function justInside(tEnd: number, dir: number): number {
+  return tEnd - dir * Math.max(Math.abs(tEnd) * EPS, Number.MIN_VALUE);
+}
+
+/** Smallest step the integrator will try near t: below it t + h cannot resolve the step. */
+function minStep(t: number, tEnd: number): number {
+  return 10 * EPS * Math.max(Math.abs(t), Math.abs(tEnd));
+}
+
+/**
+ * One RODAS step machine: workspace, the linearisation at (t, y), a step attempt and the dense
+ * output of the last accepted step.
+ */
+class Rodas {
+  readonly n: number;
+  /** f(t, y) at the current point. */
+  readonly f0: Float64Array;
+  readonly yNew: Float64Array;
+  /** Dense output of the last accepted step; reads `q`, so valid until the next `accept`. */
+  readonly dense: DenseOutput;
+  private readonly J: Float64Array;
+  private readonly E: Float64Array;
+  private readonly ft: Float64Array;
+  private readonly ys: Float64Array;
+  private readonly k: Float64Array[];
+  private readonly q: Float64Array[];
+  private readonly lu: DenseLu;
+  private readonly fd: FiniteJacobian;
+  private tOld = 0;
+  private hOld = 1;
+
+  constructor(private readonly p: OdeProblem) {
+    const n = (this.n = p.n);
+    this.f0 = new Float64Array(n);
+    this.yNew = new Float64Array(n);
+    this.J = new Float64Array(n * n);
+    this.E = new Float64Array(n * n);
+    this.ft = new Float64Array(n);
+    this.ys = new Float64Array(n);
+    this.k = Array.from({ length: 6 }, () => new Float64Array(n));
+    this.q = Array.from({ length: 4 }, () => new Float64Array(n));
+    this.lu = new DenseLu(n);
+    this.fd = new FiniteJacobian(n);
+    const [q0, q1, q2, q3] = this.q;
+    // References: rodas.f, function CONTRO: y(t0 + s h) ≈ (1−s) y0 + s (y1 + (1−s)(q2 + s q3)).
+    this.dense = (t, out) => {
+      const s = (t - this.tOld) / this.hOld;
+      const r = 1 - s;
+      for (let i = 0; i < n; i++) out[i] = r * q0[i] + s * (q1[i] + r * (q2[i] + s * q3[i]));
+    };
+  }
+
+  /** f0 = f(t, y); false when not finite. */
+  evalRhs(t: number, y: Float64Array, work: WorkCounts): boolean {
+    this.p.rhs(t, y, this.f0);
+    work.rhs++;
+    return allFinite(this.f0);
+  }
+
+  /**
+   * J = ∂f/∂y and ft = ∂f/∂t at (t, y), given f0; the ∂f/∂t difference stays short of tLimit.
+   * False when either is not finite: no step size can cure that.
+   */
+  linearise(t: number, y: Float64Array, h: number, tLimit: number, work: WorkCounts): boolean {
+    const { p, J } = this;
+    if (p.jacobian) {
+      J.fill(0);
+      p.jacobian(t, y, J);
+    } else {
+      work.rhs += this.fd.jacobian(p, t, y, this.f0, J);
+    }
+    work.jacobians++;
+    work.rhs += this.fd.timeDerivative(p, t, y, this.f0, h, tLimit, this.ft);
+    return allFinite(J) && allFinite(this.ft);
+  }
+
+  /**
+   * One RODAS step of signed size h from (t, y). tLast is the time of the stages at c = 1:
+   * t + h, or for the final step just inside tEnd (see justInside). On 'ok', yNew is the
+   * solution and k[5] its error estimate.
+   *
+   * References: rodas.f, subroutine ROSCOR (stages, embedded solution, error estimate).
+   */
+  attempt(t: number, y: Float64Array, h: number, tLast: number, work: WorkCounts): 'ok' | 'singular' | 'non-finite' {
+    const { n, J, E, k, ys, ft, lu, p } = this;
+    const diag = 1 / (h * GAMMA);
+    for (let i = 0; i < n * n; i++) E[i] = -J[i];
+    for (let i = 0; i < n; i++) E[i * n + i] += diag;
+    work.lu++;
+    if (!lu.factor(E)) return 'singular';
+    for (let s = 0; s < 6; s++) {
+      const ks = k[s];
+      if (s === 0) {
+        ks.set(this.f0);
+      } else {
+        const a = A[s];
+        ys.set(y);
+        for (let j = 0; j < s; j++) {
+          const aj = a[j], kj = k[j];
+          for (let i = 0; i < n; i++) ys[i] += aj * kj[i];
+        }
+        p.rhs(C[s] === 1 ? tLast : t + C[s] * h, ys, ks);
+        work.rhs++;
+        const g = G[s];
+        for (let j = 0; j < s; j++) {
+          const gj = g[j] / h, kj = k[j];
+          for (let i = 0; i < n; i++) ks[i] += gj * kj[i];
+        }
+      }
+      if (D[s] !== 0) {
+        const hd = h * D[s];
+        for (let i = 0; i < n; i++) ks[i] += hd * ft[i];
+      }
+      lu.solve(ks);
+    }
+    // After the loop ys holds the embedded solution (the argument of stage 6).
+    const yNew = this.yNew, err = k[5];
+    for (let i = 0; i < n; i++) yNew[i] = ys[i] + err[i];
+    return allFinite(yNew) && allFinite(err) ? 'ok' : 'non-finite';
+  }
+
+  /** Weighted RMS norm of the embedded error estimate of the last attempt. */
+  errorNorm(y: Float64Array): number {
+    return rmsNorm(this.k[5], y, this.yNew, this.p);
+  }
+
+  /** Records the dense output of the attempt just made, from t over signed h; y is the old state. */
+  keepDense(t: number, h: number, y: Float64Array): void {
+    const { n, k, q } = this;
+    q[0].set(y);
+    q[1].set(this.yNew);
+    for (let r = 0; r < 2; r++) {
+      const row = H[r], qr = q[r + 2];
+      qr.fill(0);
+      for (let j = 0; j < 5; j++) {
+        const c = row[j], kj = k[j];
+        for (let i = 0; i < n; i++) qr[i] += c * kj[i];
+      }
+    }
+    this.tOld = t;
+    this.hOld = h;
+  }
+
+  /**
+   * Starting step from the scaled sizes of y and f: h = 0.01·‖y‖/‖f‖.
+   *
+   * References: Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed. 1993, §II.4 ("Starting step
+   * size", steps a–b).
+   */
+  initialStep(y: Float64Array, span: number): number {
+    const d0 = rmsNorm(y, y, y, this.p);
+    const d1 = rmsNorm(this.f0, y, y, this.p);
+    return d0 < 1e-5 || d1 < 1e-5 ? 1e-6 * span : 0.01 * (d0 / d1);
+  }
+}
+
+function checkArguments(problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number): void {
+  if (y0.length !== problem.n || problem.atol.length !== problem.n) {
+    throw new RangeError(`rosenbrock: y0 has ${y0.length} and atol ${problem.atol.length} entries, problem.n is ${problem.n}`);
+  }
+  if (!Number.isFinite(t0) || !Number.isFinite(tEnd)) throw new RangeError('rosenbrock: t0 and tEnd must be finite');
+}
+
+/**
+ * Adaptive RODAS. Options: h0 (first step; default from ‖y‖/‖f‖), hMax, maxSteps (accepted +
+ * rejected attempts, default 100 000). `yNew` given to onStep is the integrator's own state:
+ * read it, do not modify it. hLast is the last accepted step, or for a final step clipped to
+ * tEnd the unclipped size the controller had proposed (a better warm start for a restart).
+ *
+ * References: Hairer & Wanner, Solving ODEs II, 2nd ed. 1996, §IV.7 (error estimate and step
+ * size selection incl. the predictive controller of Gustafsson) and rodas.f.
+ */
+export const rosenbrock: Integrator = (problem, t0, y0, tEnd, onStep, options: IntegrateOptions = {}) => {
+  checkArguments(problem, t0, y0, tEnd);
+  const work = zeroWork();
+  const y = Float64Array.from(y0);
+  let t = t0;
+  let hLast = 0;
+  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
+    ({ status, t, y: Float64Array.from(y), work, hLast, message });
+  if (t0 === tEnd) return finish('completed', 'empty interval');
+
+  const dir = Math.sign(tEnd - t0);
+  const span = Math.abs(tEnd - t0);
+  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
+  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
+  const tInside = justInside(tEnd, dir);
+  const st = new Rodas(problem);
+
+  if (!st.evalRhs(t, y, work)) return finish('non-finite', `rhs is not finite at the initial point t = ${t}`);
+  let h = Math.min(positive(options.h0) ? options.h0 : st.initialStep(y, span), hMax);
+  let haveRhs = true;
+  let needJacobian = true;
+  let reject = false;
+  let hAcc = 0;
+  let errAcc = 1;
+  let nSingular = 0;
+  let nNonFinite = 0;
+  /** Farthest end of a non-finite attempt; the counter resets once the solution gets past it. */
+  let tTrouble = t;
+
+  for (;;) {
+    if (work.steps + work.rejected >= maxSteps) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
+    if (!(h > minStep(t, tEnd))) return finish('step-too-small', `step size ${h} below round-off limit at t = ${t}`);
+    const hProposed = h;
+    const last = Math.abs(tEnd - t) <= 1.0001 * h;
+    const tNew = last ? tEnd : t + dir * h;
+    const hs = last ? tEnd - t : dir * h;
+    if (last) h = Math.abs(hs);
+
+    if (!haveRhs && !st.evalRhs(t, y, work)) return finish('non-finite', `rhs is not finite at t = ${t}`);
+    haveRhs = true;
+    if (needJacobian) {
+      if (!st.linearise(t, y, hs, tInside, work)) return finish('non-finite', `jacobian or ∂f/∂t not finite at t = ${t}`);
+      needJacobian = false;
+    }
+
+    const outcome = st.attempt(t, y, hs, last ? tInside : tNew, work);
+    if (outcome === 'singular') {
+      work.rejected++;
+      if (++nSingular >= MAX_SINGULAR) return finish('singular', `iteration matrix singular ${nSingular} times at t = ${t}`);
+      h *= 0.5;
+      reject = true;
+      continue;
+    }
+    if (outcome === 'non-finite') {
+      work.rejected++;
+      if (dir * (tNew - tTrouble) > 0) tTrouble = tNew;
+      if (++nNonFinite > MAX_NON_FINITE) return finish('non-finite', `non-finite stage values after ${MAX_NON_FINITE} step reductions at t = ${t}`);
+      h *= 0.25;
+      reject = true;
+      continue;
+    }
+
+    const err = st.errorNorm(y);
+    let fac = Math.max(1 / GROW_MAX, Math.min(SHRINK_MAX, err ** 0.25 / SAFE));
+    if (err > 1) {
+      work.rejected++;
+      reject = true;
+      h /= fac;
+      continue;
+    }
+    // Accepted. Predictive controller of Gustafsson, as in rodas.f.
+    if (work.steps > 0) {
+      const facGus = Math.max(1 / GROW_MAX, Math.min(SHRINK_MAX, ((hAcc / h) * (err * err / errAcc) ** 0.25) / SAFE));
+      fac = Math.max(fac, facGus);
+    }
+    hAcc = h;
+    errAcc = Math.max(1e-2, err);
+    work.steps++;
+    st.keepDense(t, hs, y);
+    y.set(st.yNew);
+    const tOld = t;
+    t = tNew;
+    hLast = last ? Math.max(h, hProposed) : h;
+    if (dir * (t - tTrouble) > 0) nNonFinite = 0;
+    nSingular = 0;
+    haveRhs = false;
+    needJacobian = true;
+    if (onStep(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
+    if (last) return finish('completed', 'reached tEnd');
+    let hNew = Math.min(h / fac, hMax);
+    if (reject) hNew = Math.min(hNew, h);
+    reject = false;
+    h = hNew;
+  }
+};
+
+/**
+ * RODAS with `steps` equal steps and no error control, for convergence-order studies and
+ * tests. onStep (optional) receives the same dense output as in the adaptive integrator.
+ * Statuses: 'completed', 'stopped', 'non-finite', 'singular'.
+ *
+ * References: Hairer & Wanner, Solving ODEs II, 2nd ed. 1996, §VI.4 (RODAS).
+ */
+export function rosenbrockFixedSteps(
+  problem: OdeProblem,
+  t0: number,
+  y0: Float64Array,
+  tEnd: number,
+  steps: number,
+  onStep?: StepCallback,
+): IntegrateResult {
+  checkArguments(problem, t0, y0, tEnd);
+  if (!Number.isInteger(steps) || steps < 1) throw new RangeError(`rosenbrockFixedSteps: steps must be a positive integer, got ${steps}`);
+  const work = zeroWork();
+  const y = Float64Array.from(y0);
+  const st = new Rodas(problem);
+  let t = t0;
+  const h = (tEnd - t0) / steps;
+  const tInside = justInside(tEnd, Math.sign(h));
+  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
+    ({ status, t, y: Float64Array.from(y), work, hLast: Math.abs(h), message });
+  for (let i = 1; i <= steps; i++) {
+    const tNew = i === steps ? tEnd : t0 + i * h;
+    const hs = tNew - t;
+    if (!st.evalRhs(t, y, work) || !st.linearise(t, y, hs, tInside, work)) return finish('non-finite', `non-finite rhs or jacobian at t = ${t}`);
+    const outcome = st.attempt(t, y, hs, i === steps ? tInside : tNew, work);
+    if (outcome !== 'ok') return finish(outcome, `${outcome} step at t = ${t}`);
+    work.steps++;
+    st.keepDense(t, hs, y);
+    y.set(st.yNew);
+    const tOld = t;
+    t = tNew;
+    if (onStep?.(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
+  }
+  return finish('completed', `${steps} fixed steps`);
+}

@@ -1,0 +1,31 @@
+/**
+ * SI numbers → engineering units for people (tables, messages). Machine outputs stay SI.
+ */
+
+export type DisplayKind = 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch' | 'flow' | 'reynolds' | 'time';
+
+function sig(x: number, digits = 4): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (x === 0) return '0';
+  const s = x.toPrecision(digits);
+  return s.includes('e') ? s : String(Number(s));
+}
+
+/** A value with a unit chosen for its size: kPa, mL/L, g/kg, g/s, °C, ms/s. */
+export function display(value: number, kind: DisplayKind): string {
+  const a = Math.abs(value);
+  switch (kind) {
+    case 'pressure': return `${sig(value / 1000)} kPa abs`;
+    case 'gauge': return `${sig(value / 1000)} kPa gauge`;
+    case 'volume': return a < 1e-3 ? `${sig(value * 1e6)} mL` : `${sig(value * 1e3)} L`;
+    case 'mass': return a < 1 ? `${sig(value * 1e3)} g` : `${sig(value)} kg`;
+    case 'temperature': return `${sig(value - 273.15)} °C`;
+    case 'flow': return a < 1 ? `${sig(value * 1e3)} g/s` : `${sig(value)} kg/s`;
+    case 'time': return a < 1 && a > 0 ? `${sig(value * 1e3)} ms` : `${sig(value)} s`;
+    case 'stretch':
+    case 'reynolds':
+      return sig(value);
+  }
+}
+
+export { sig as significant };

@@ -1,0 +1,142 @@
+/**
+ * Unit-bearing values → SI numbers.
+ *
+ * A value is a number with a unit in a string (`"4 mm"`, `"0.9 L/(s*bar)"`) or a bare number,
+ * which means SI. Strings go through mathjs `unit()` (never `evaluate`, where `min` is a
+ * function and `5 L/min` would fail) and are checked for dimension with `equalBase`.
+ */
+import type { Unit } from 'mathjs';
+import { mathUnit } from './math';
+import { DIMENSIONS, nameDimension, siUnit, type Dimension } from './dimensions';
+import { unknownUnitHint, unknownUnitToken } from './unit-hint';
+
+export type ValueErrorCode =
+  | 'unit-syntax'
+  | 'unit-unknown'
+  | 'unit-dimension'
+  | 'not-finite'
+  | 'out-of-range'
+  | 'wrong-type'
+  | 'pressure-reference'
+  | 'expression-syntax'
+  | 'expression-forbidden'
+  | 'expression-dimension';
+
+export type ValueError = { ok: false; code: ValueErrorCode; message: string; hint: string };
+export type QuantityResult = { ok: true; value: number } | ValueError;
+
+/** Longer strings are not values; refusing them keeps mathjs away from pathological input. */
+const MAX_VALUE_LENGTH = 200;
+
+/** Friendly spellings mathjs does not read, mapped to ones it does. */
+const SPELLINGS: [RegExp, string][] = [
+  [/°\s*C\b|℃/g, 'degC'],
+  [/°\s*F\b|℉/g, 'degF'],
+  [/[µμ]/g, 'u'],
+  [/²/g, '^2'],
+  [/³/g, '^3'],
+  [/·/g, '*'],
+];
+
+export function fail(code: ValueErrorCode, message: string, hint: string): ValueError {
+  return { ok: false, code, message, hint };
+}
+
+/** Rewrites `°C`, `µm`, `m³` and `Pa·s` into what mathjs reads. */
+export function normaliseSpelling(text: string): string {
+  let s = text.trim();
+  for (const [re, to] of SPELLINGS) s = s.replace(re, to);
+  return s;
+}
+
+function describe(u: Unit): string {
+  const d = nameDimension(u.dimensions);
+  return d ? DIMENSIONS[d].noun : `\`${u.formatUnits()}\``;
+}
+
+function exampleHint(dimension: Dimension): string {
+  const info = DIMENSIONS[dimension];
+  if (dimension === 'dimensionless') return `write a plain number such as \`${info.example}\``;
+  return `write ${info.noun} with its unit, e.g. \`${info.example}\` (a bare number means ${info.label})`;
+}
+
+/** mathjs `unit()` with errors turned into values. */
+export function readUnit(text: string): { ok: true; unit: Unit } | ValueError {
+  const s = normaliseSpelling(text);
+  if (!s) return fail('unit-syntax', 'the value is empty', 'write a number with its unit, e.g. `4 mm`');
+  if (s.length > MAX_VALUE_LENGTH) return fail('unit-syntax', `the value is ${s.length} characters long`, 'write a number with its unit, e.g. `4 mm`');
+  try {
+    const unit = mathUnit(s);
+    if (unit.value === null || unit.value === undefined) {
+      return fail('unit-syntax', `\`${text}\` has no number`, 'write the number before the unit, e.g. `4 mm`');
+    }
+    return { ok: true, unit };
+  } catch (e) {
+    const message = e instanceof Error ? e.message : String(e);
+    const token = unknownUnitToken(message);
+    if (token !== undefined) {
+      return fail('unit-unknown', `unknown unit \`${token}\` in \`${text}\``, unknownUnitHint(token) ?? 'write a unit mathjs knows, e.g. `mm`, `kPa`, `L/min`, `degC`');
+    }
+    return fail('unit-syntax', `cannot read \`${text}\` as a number with a unit`, 'write a number, a space and a unit, e.g. `4 mm` or `0.9 L/(s*bar)`');
+  }
+}
+
+function checkFinite(value: number, text: string): QuantityResult {
+  if (Number.isFinite(value)) return { ok: true, value };
+  return fail('not-finite', `\`${text}\` is not a finite number`, 'write a finite value (.nan and .inf are not values)');
+}
+
+function fromBareNumber(value: number, dimension: Dimension, text: string): QuantityResult {
+  const r = checkFinite(value, text);
+  if (!r.ok || dimension !== 'temperature') return r;
+  return r.value > 0 ? r : fail('out-of-range', `${r.value} K is not above absolute zero`, 'a temperature must be above 0 K, e.g. `20 degC` or `293.15 K`');
+}
+
+/**
+ * Reads `text` as a quantity of `dimension` and returns it in SI. A bare number (or a string
+ * holding only a number) is taken as SI. Temperatures must be above 0 K; a
+ * `temperature-difference` ignores the offset of degC/degF (`2 degC` → 2 K).
+ */
+export function parseQuantity(text: string | number, dimension: Dimension): QuantityResult {
+  if (typeof text === 'number') return fromBareNumber(text, dimension, String(text));
+  if (typeof text !== 'string') return fail('wrong-type', `expected ${DIMENSIONS[dimension].noun}, got ${typeof text}`, exampleHint(dimension));
+  const read = readUnit(text);
+  if (!read.ok) return read;
+  const u = read.unit;
+  if (u.units.length === 0) return fromBareNumber(u.value, dimension, text);
+  const si = siUnit(dimension);
+  if (!si || !u.equalBase(si)) {
+    const got = describe(u);
+    const coulomb = dimension === 'temperature' && u.units.some((c) => c.unit.name === 'C');
+    const hint = coulomb ? '`C` is the coulomb; write `20 degC` or `293.15 K`' : exampleHint(dimension);
+    return fail('unit-dimension', `expected ${DIMENSIONS[dimension].noun}, got ${got} (\`${text.trim()}\`)`, hint);
+  }
+  let value = u.toNumber(DIMENSIONS[dimension].si);
+  if (dimension === 'temperature-difference') value -= mathUnit(`0 ${u.formatUnits()}`).toNumber('K');
+  return fromBareNumber(value, dimension, text);
+}
+
+/**
+ * A fraction 0..1: `"40%"`, `"40 %"` or a number 0..1.
+ */
+export function parseFraction(text: string | number): QuantityResult {
+  let value: number;
+  let shown: string;
+  if (typeof text === 'number') {
+    value = text;
+    shown = String(text);
+  } else if (typeof text === 'string') {
+    const m = /^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(%?)\s*$/.exec(text);
+    if (!m) return fail('unit-syntax', `cannot read \`${text}\` as a fraction`, 'write a percentage such as `40%` or a number between 0 and 1');
+    value = m[2] ? Number(m[1]) / 100 : Number(m[1]);
+    shown = text.trim();
+  } else {
+    return fail('wrong-type', `expected a fraction, got ${typeof text}`, 'write a percentage such as `40%` or a number between 0 and 1');
+  }
+  if (!Number.isFinite(value)) return fail('not-finite', `\`${shown}\` is not a finite number`, 'write a percentage such as `40%`');
+  if (value < 0 || value > 1) {
+    const asPercent = typeof text === 'number' && text > 1 && text <= 100 ? ` (for a percentage write \`${text}%\`)` : '';
+    return fail('out-of-range', `\`${shown}\` is outside 0..100 %`, `write a percentage between 0% and 100% or a number between 0 and 1${asPercent}`);
+  }
+  return { ok: true, value };
+}
