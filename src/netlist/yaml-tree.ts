@@ -64,15 +64,14 @@ function lineColumn(source: string, offset: number): Pos {
 }
 
 /**
- * A cheap upper estimate of nesting depth, run before the YAML parser (whose recursion would
- * otherwise take seconds, then overflow, on a megabyte of `[`): indentation levels plus list
- * markers plus open flow brackets. Quotes are ignored; a false alarm needs dozens of
- * unbalanced brackets inside strings.
+ * Where a cheap upper estimate of nesting depth first exceeds `limit`, run before the YAML
+ * parser (whose recursion would otherwise take seconds, then overflow, on a megabyte of `[`):
+ * indentation levels plus list markers plus open flow brackets. Quotes are ignored; a false
+ * alarm needs dozens of unbalanced brackets inside strings. Undefined when within the limit.
  */
-function deepestPoint(source: string): { depth: number; offset: number } {
+function tooDeepAt(source: string, limit: number): number | undefined {
   const indents: number[] = [];
   let flow = 0;
-  let worst = { depth: 0, offset: 0 };
   let offset = 0;
   for (const line of source.split('\n')) {
     const indent = line.length - line.trimStart().length;
@@ -83,20 +82,18 @@ function deepestPoint(source: string): { depth: number; offset: number } {
         indents.push(indent);
       }
       const markers = /^(?:[-?](?:\s+|$))*/.exec(body)?.[0].replace(/\s/g, '').length ?? 0;
-      let lineFlow = flow;
+      if (indents.length + markers + flow > limit) return offset + indent;
       for (let i = 0; i < body.length; i++) {
         const c = body[i];
         if (c === '#' && (i === 0 || /\s/.test(body[i - 1]))) break;
-        if (c === '[' || c === '{') lineFlow++;
-        else if (c === ']' || c === '}') lineFlow = Math.max(0, lineFlow - 1);
-        const depth = indents.length + markers + lineFlow;
-        if (depth > worst.depth) worst = { depth, offset: offset + indent + i };
+        if (c === '[' || c === '{') flow++;
+        else if (c === ']' || c === '}') flow = Math.max(0, flow - 1);
+        if (indents.length + markers + flow > limit) return offset + indent + i;
       }
-      flow = lineFlow;
     }
     offset += line.length + 1;
   }
-  return worst;
+  return undefined;
 }
 
 function diag(file: string, code: string, pos: Pos, message: string, hint: string, path: (string | number)[] = []): Diagnostic {
@@ -136,9 +133,9 @@ function preflight(source: string, file: string): Diagnostic | undefined {
     const what = junk[0] === '\uFFFD' ? 'bytes that are not UTF-8' : `a control character (code ${junk[0].charCodeAt(0)})`;
     return diag(file, 'input-binary', lineColumn(source, junk.index), `the file contains ${what}; it does not look like a YAML netlist`, 'save the netlist as UTF-8 text');
   }
-  const deep = deepestPoint(source);
-  if (deep.depth > MAX_DEPTH) {
-    return diag(file, 'too-deep', lineColumn(source, deep.offset), `the YAML is nested more than ${MAX_DEPTH} levels deep`, 'a netlist needs only a few levels of nesting');
+  const deep = tooDeepAt(source, MAX_DEPTH);
+  if (deep !== undefined) {
+    return diag(file, 'too-deep', lineColumn(source, deep), `the YAML is nested more than ${MAX_DEPTH} levels deep`, 'a netlist needs only a few levels of nesting');
   }
   return undefined;
 }

@@ -4,6 +4,10 @@
 
 export type DisplayKind = 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch' | 'flow' | 'reynolds' | 'time';
 
+const TINY: Record<DisplayKind, number> = {
+  pressure: 1e-6, gauge: 1e-6, volume: 1e-15, mass: 1e-15, temperature: 0, stretch: 1e-12, flow: 1e-15, reynolds: 1e-9, time: 1e-12,
+};
+
 function sig(x: number, digits = 4): string {
   if (!Number.isFinite(x)) return String(x);
   if (x === 0) return '0';
@@ -13,6 +17,8 @@ function sig(x: number, digits = 4): string {
 
 /** A value with a unit chosen for its size: kPa, mL/L, g/kg, g/s, °C, ms/s. */
 export function display(value: number, kind: DisplayKind): string {
+  // round-off residue (a gauge of 1e-13 Pa) reads as zero
+  if (Math.abs(value) < TINY[kind]) value = 0;
   const a = Math.abs(value);
   switch (kind) {
     case 'pressure': return `${sig(value / 1000)} kPa abs`;

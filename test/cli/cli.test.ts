@@ -68,7 +68,7 @@ describe('plenum CLI', () => {
 
   it('a failing expectation exits 1', () => {
     const f = join(tmp, 'fail.yaml');
-    writeFileSync(f, readFileSync('networks/cushion-settle.yaml', 'utf8').replace('near: { value: 15.9 kPa gauge', 'near: { value: 5 kPa gauge'));
+    writeFileSync(f, readFileSync('networks/cushion-settle.yaml', 'utf8').replace('near: { value: 15.5 kPa gauge', 'near: { value: 5 kPa gauge'));
     expect(plenum('run', f).code).toBe(1);
   });
 
