@@ -8,14 +8,14 @@
  * are copied from the line) or, if given, must equal the line's. One valve per line.
  * A feed puts mass into a chamber at a mass flow or at a standard volume flow (`ANR`).
  */
-import { listChoices } from '../diag/did-you-mean';
-import { parseQuantity } from '../units/quantity';
-import type { Checker } from './checker';
-import { CHECK, FEED, LINE, RELIEF, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, type KindTable } from './kinds';
-import { resolve, type NameEntry, type Names } from './names';
-import { readOpening, readSchedule } from './schedule';
-import type { FeedSpec, LineSpec, ValveOperation, ValveRating, ValveSpec } from './types';
-import type { YMap, YNode } from './yaml-tree';
+import { listChoices } from '../diag/did-you-mean.js';
+import { parseQuantity } from '../units/quantity.js';
+import type { Checker } from './checker.js';
+import { CHECK, FEED, LINE, RELIEF, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, type KindTable } from './kinds.js';
+import { resolve, type NameEntry, type Names } from './names.js';
+import { readOpening, readSchedule } from './schedule.js';
+import type { FeedSpec, LineSpec, ValveOperation, ValveRating, ValveSpec } from './types.js';
+import type { YMap, YNode } from './yaml-tree.js';
 
 const NODE_KINDS = ['chamber', 'reservoir'] as const;
 const RATE_HINT = 'write a mass flow (`0.5 g/s`) or a standard volume flow at ISO 8778 (`10 L/min ANR`)';

@@ -5,14 +5,14 @@
  * fieldPos keys: `wall` (the law name), `wall.<param>` for law parameters, `start.<key>`,
  * `limits.<key>`, `temperature`, `heat-transfer`.
  */
-import { listChoices } from '../diag/did-you-mean';
-import { parsePressure, splitQualifier } from '../units/pressure';
-import { parseQuantity } from '../units/quantity';
-import type { Checker, Where } from './checker';
-import { CHAMBER, LIMITS, SPHERE_LAWS, START, WALL_LAWS, wallLaw } from './kinds';
-import type { NameEntry } from './names';
-import type { ChamberSpec, SourcePos, StartSpec, WallSpec } from './types';
-import type { YMap, YNode } from './yaml-tree';
+import { listChoices } from '../diag/did-you-mean.js';
+import { parsePressure, splitQualifier } from '../units/pressure.js';
+import { parseQuantity } from '../units/quantity.js';
+import type { Checker, Where } from './checker.js';
+import { CHAMBER, LIMITS, SPHERE_LAWS, START, WALL_LAWS, wallLaw } from './kinds.js';
+import type { NameEntry } from './names.js';
+import type { ChamberSpec, SourcePos, StartSpec, WallSpec } from './types.js';
+import type { YMap, YNode } from './yaml-tree.js';
 
 const START_KEYS = ['pressure', 'stretch', 'volume', 'mass'] as const;
 const POINTS_HINT = 'each point is [volume, gauge pressure], e.g. `[0.5 L, 2 kPa]`';

@@ -4,14 +4,14 @@
  * bounds, defaults). It never stops at the first problem: a reader that fails returns
  * undefined and the caller carries on.
  */
-import type { Diagnostic, Severity } from '../diag/diagnostic';
-import { closestMatches, didYouMean, listChoices } from '../diag/did-you-mean';
-import { DIMENSIONS, type Dimension } from '../units/dimensions';
-import { parsePressure, parsePressureDifference, parseAmbientPressure } from '../units/pressure';
-import { parseFraction, parseQuantity, type QuantityResult, type ValueError } from '../units/quantity';
-import type { Bounds, ParamSpec } from './kinds';
-import type { SourcePos } from './types';
-import type { Pos, YMap, YNode, YScalar, YSeq } from './yaml-tree';
+import type { Diagnostic, Severity } from '../diag/diagnostic.js';
+import { closestMatches, didYouMean, listChoices } from '../diag/did-you-mean.js';
+import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
+import { parsePressure, parsePressureDifference, parseAmbientPressure } from '../units/pressure.js';
+import { parseFraction, parseQuantity, type QuantityResult, type ValueError } from '../units/quantity.js';
+import type { Bounds, ParamSpec } from './kinds.js';
+import type { SourcePos } from './types.js';
+import type { Pos, YMap, YNode, YSeq } from './yaml-tree.js';
 
 export const IDENTIFIER = /^[A-Za-z][A-Za-z0-9_]*$/;
 
@@ -293,4 +293,3 @@ export class Checker {
   }
 }
 
-export type { YMap, YNode, YScalar, YSeq };

@@ -8,14 +8,14 @@
  * absolute. `within` is relative when written with `%`, otherwise an absolute difference in
  * the probe's dimension (a bare number is SI). `name` defaults to a description of the check.
  */
-import { didYouMean, listChoices } from '../diag/did-you-mean';
-import type { Dimension } from '../units/dimensions';
-import { parseFraction } from '../units/quantity';
-import type { Checker } from './checker';
-import { EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds';
-import type { Names } from './names';
-import type { ChamberSpec, Comparison, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types';
-import type { YMap, YNode, YScalar } from './yaml-tree';
+import { didYouMean, listChoices } from '../diag/did-you-mean.js';
+import type { Dimension } from '../units/dimensions.js';
+import { parseFraction } from '../units/quantity.js';
+import type { Checker } from './checker.js';
+import { EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
+import type { Names } from './names.js';
+import type { ChamberSpec, Comparison, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
+import type { YMap, YNode, YScalar } from './yaml-tree.js';
 
 const PROBE_HINT = 'write `<element>.<quantity>`, e.g. `cell_a.gauge`, `supply.flow` or `total.mass`';
 const COMPARISONS = ['below', 'above', 'near'] as const;
@@ -72,8 +72,12 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
   }
   const [, element, quantity] = m;
   let kind: keyof typeof PROBE_QUANTITIES;
-  if (element === 'total' && !cx.names.has('total')) kind = 'total';
-  else {
+  if (element === 'total') {
+    kind = 'total';
+    if (cx.names.has('total')) {
+      ck.warn(node, 'ambiguous-probe', '`total.*` probes the whole network, not the element named `total`', 'rename the element to probe it');
+    }
+  } else {
     const entry = cx.names.get(element);
     if (!entry || entry.kind === 'reservoir' || entry.kind === 'feed') {
       const candidates = [...cx.names.values()].filter((n) => n.kind === 'chamber' || n.kind === 'line' || n.kind === 'valve').map((n) => n.name);
@@ -221,7 +225,8 @@ function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | unde
   if (!map) return undefined;
   ck.checkKeys(map, EXPECT.params.map((p) => p.name), 'an expectation');
   const nameNode = ck.get(map, 'name');
-  const name = nameNode ? ck.text(nameNode, '`name`', 'write a short name') : defaultName(map);
+  const given = nameNode ? ck.scalar(nameNode, '`name`', 'write a short name') : undefined;
+  const name = nameNode ? (given === undefined ? undefined : String(given)) : defaultName(map);
   if (name === undefined) return undefined;
   if (ck.get(map, 'settles')) return readSettles(ck, map, name, cx);
   const probeNode = ck.get(map, 'probe');

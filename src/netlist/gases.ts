@@ -6,7 +6,7 @@
  * dry air 28.9647 g/mol is the handbook value). src/physics/gas.ts carries the same numbers;
  * the two are to be reconciled into one table.
  */
-import type { GasSpec } from './types';
+import type { GasSpec } from './types.js';
 
 export const NAMED_GASES: Record<string, GasSpec> = {
   air: { name: 'air', molarMass: 28.9647e-3, gamma: 1.4, viscosity: { value: 1.716e-5, at: 273.15, sutherland: 110.4 } },

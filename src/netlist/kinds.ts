@@ -6,7 +6,7 @@
  * `default` is written as in a netlist and goes through the same parser as a given value.
  * `bounds` are in SI.
  */
-import type { Dimension } from '../units/dimensions';
+import type { Dimension } from '../units/dimensions.js';
 
 export type ParamDimension =
   | Dimension

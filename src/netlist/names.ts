@@ -3,9 +3,9 @@
  * references can be checked in any order. Names are identifiers, unique across the whole
  * netlist; `ambient` is reserved for the surroundings (and usable as a reservoir reference).
  */
-import { didYouMean } from '../diag/did-you-mean';
-import { IDENTIFIER, type Checker, type Where } from './checker';
-import type { YMap, YNode } from './yaml-tree';
+import { didYouMean } from '../diag/did-you-mean.js';
+import { IDENTIFIER, type Checker, type Where } from './checker.js';
+import type { YMap, YNode } from './yaml-tree.js';
 
 export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed';
 export const SECTIONS: Record<ElementKind, string> = {

@@ -6,17 +6,17 @@
  * read against it), then simulate (expressions and expectations are checked against its
  * duration), then all names (so references may point forwards), then the elements.
  */
-import type { Diagnostic, Result } from '../diag/diagnostic';
-import { readFeed, readLine, readValve } from './branches';
-import { readChamber } from './chambers';
-import { Checker } from './checker';
-import { readExpect, readSimulate } from './expect';
-import { namedGas } from './gases';
-import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds';
-import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names';
-import { readPressureSeries } from './time-series';
-import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types';
-import { parseYamlTree, type YMap, type YNode } from './yaml-tree';
+import type { Diagnostic, Result } from '../diag/diagnostic.js';
+import { readFeed, readLine, readValve } from './branches.js';
+import { readChamber } from './chambers.js';
+import { Checker } from './checker.js';
+import { readExpect, readSimulate } from './expect.js';
+import { namedGas } from './gases.js';
+import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
+import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
+import { readPressureSeries } from './time-series.js';
+import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
+import { parseYamlTree, type YMap, type YNode } from './yaml-tree.js';
 
 const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
 
@@ -31,7 +31,9 @@ function readFormat(ck: Checker, root: YMap): boolean {
     return false;
   }
   if (!(node.kind === 'scalar' && node.value === 1)) {
-    ck.error(node, 'format-version', `unsupported format ${node.kind === 'scalar' ? String(node.value) : node.kind}`, 'this version of plenum reads `format: 1`');
+    const v = node.kind === 'scalar' ? node.value : undefined;
+    const message = typeof v === 'string' && v.trim() === '1' ? 'the format must be the number 1, not text' : `unsupported format ${v === undefined ? node.kind : String(v)}`;
+    ck.error(node, 'format-version', message, 'this version of plenum reads `format: 1`');
     return false;
   }
   return true;
@@ -138,7 +140,8 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
 
   readFormat(ck, root);
   const titleNode = ck.get(root, 'title');
-  const title = (titleNode && ck.text(titleNode, '`title`', 'write the title as text')) || baseName(file);
+  const titleValue = titleNode && ck.scalar(titleNode, '`title`', 'write the title as text');
+  const title = titleValue === undefined || titleValue === '' ? baseName(file) : String(titleValue);
   const ambient = readAmbient(ck, root);
   ck.ambientPa = ambient.pressure;
   const gas = readGas(ck, root);

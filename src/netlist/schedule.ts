@@ -6,10 +6,10 @@
  * time order (`at` non-decreasing); a step that starts while an earlier ramp is still running
  * takes over from the opening reached.
  */
-import type { Checker } from './checker';
-import { SCHEDULE_STEP } from './kinds';
-import type { ScheduleStep } from './types';
-import type { YNode } from './yaml-tree';
+import type { Checker } from './checker.js';
+import { SCHEDULE_STEP } from './kinds.js';
+import type { ScheduleStep } from './types.js';
+import type { YNode } from './yaml-tree.js';
 
 const OPENING_WORDS: Record<string, number> = { open: 1, closed: 0 };
 const SCHEDULE_HINT = 'write e.g. `schedule: [{ at: 1 s, open: 100%, over: 50 ms }, { at: 3 s, open: closed }]`';

@@ -4,12 +4,12 @@
  * pattern and a description naming the expected dimension; the schema checks shape, names and
  * enums, while `readNetlist` checks units, dimensions and cross-references.
  */
-import { DIMENSIONS, type Dimension } from '../units/dimensions';
+import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
 import {
   AMBIENT, CHAMBER, CHECK, CUSTOM_GAS, EXPECT, FEED, GAS_NAMES, LIMITS, LINE, NEAR, RELIEF, RESERVOIR,
   SCHEDULE_STEP, SETTLES, SIMULATE, START, TOP, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, VISCOSITY, WALL_LAWS,
   type Bounds, type KindTable, type ParamSpec,
-} from './kinds';
+} from './kinds.js';
 
 type Schema = Record<string, unknown>;
 
@@ -17,7 +17,7 @@ const NUMBER = '[-+]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][-+]?\\d+)?';
 const WITH_UNIT = `^\\s*${NUMBER}\\s*\\S.*$`;
 const NUMBER_TEXT = `^\\s*${NUMBER}(?:\\s*\\S.*)?$`;
 const QUALIFIER = '(?:\\s(?:gauge|abs|absolute|GAUGE|ABS)|\\((?:g|a)\\)|(?:psi|bar)(?:g|a))\\s*$';
-const QUALIFIED_PRESSURE = `^\\s*${NUMBER}\\s*\\S.*${QUALIFIER}`;
+const QUALIFIED_PRESSURE = `^\\s*${NUMBER}\\s*(?:\\S.*)?${QUALIFIER}`;
 const PERCENT = `^\\s*${NUMBER}\\s*%\\s*$`;
 const IDENTIFIER = '^[A-Za-z][A-Za-z0-9_]*$';
 
@@ -60,8 +60,8 @@ function pair(first: Schema, second: Schema, description: string): Schema {
 
 const timeValue = quantity('time', 'A time');
 
-/** Schemas of the structures named by `shape` in the tables. */
-function shapes(): Record<string, Schema> {
+/** Schemas of the structures named by `shape` in the tables (built on demand: they nest). */
+function shapes(): Record<string, () => Schema> {
   const points: Schema = {
     type: 'array',
     description: 'At least 3 [volume, gauge pressure] pairs, volume strictly increasing, e.g. `[[0.1 L, 0 kPa], [0.5 L, 2 kPa], [1 L, 3 kPa]]`.',
@@ -73,9 +73,9 @@ function shapes(): Record<string, Schema> {
     anyOf: [{ type: 'number' }, { type: 'string', pattern: NUMBER_TEXT }],
   };
   return {
-    start: objectOf(START),
-    limits: objectOf(LIMITS),
-    'pressure-series': {
+    start: () => objectOf(START),
+    limits: () => objectOf(LIMITS),
+    'pressure-series': () => ({
       description: 'Pressure: a constant (`300 kPa gauge`), a time table [[t, p], ...] (linear, held outside), or an expression in t ending in gauge/abs (`300 kPa + 50 kPa * sin(2*pi*t/(1 s)) gauge`) or written `{ expr, reference }`.',
       anyOf: [
         { type: 'string', pattern: `${QUALIFIER}` },
@@ -90,40 +90,39 @@ function shapes(): Record<string, Schema> {
           additionalProperties: false,
         },
       ],
-    },
-    points,
-    opening,
-    schedule: { type: 'array', description: 'Steps in time order: from `at`, ramp to `open` over `over`.', items: objectOf(SCHEDULE_STEP) },
-    check: objectOf(CHECK),
-    relief: objectOf(RELIEF),
-    rate: {
+    }),
+    points: () => points,
+    opening: () => opening,
+    schedule: () => ({ type: 'array', description: 'Steps in time order: from `at`, ramp to `open` over `over`.', items: objectOf(SCHEDULE_STEP) }),
+    check: () => objectOf(CHECK),
+    relief: () => objectOf(RELIEF),
+    rate: () => ({
       description: 'A mass flow (`0.5 g/s`; bare number kg/s) or a standard volume flow at ISO 8778 (`10 L/min ANR`).',
       anyOf: [{ type: 'number', exclusiveMinimum: 0 }, { type: 'string', pattern: WITH_UNIT }],
-    },
-    gas: { description: 'A named gas or a custom gas.', anyOf: [{ enum: [...GAS_NAMES] }, objectOf(CUSTOM_GAS)] },
-    viscosity: objectOf(VISCOSITY),
-    ambient: objectOf(AMBIENT),
-    chambers: namedMap({ oneOf: WALL_LAWS.map(chamberSchema) }, 'Chambers by name.'),
-    reservoirs: namedMap(objectOf(RESERVOIR), 'Reservoirs by name (`ambient` is always available).'),
-    lines: namedMap(objectOf(LINE), 'Lines by name.'),
-    valves: namedMap(valveSchema(), 'Valves by name.'),
-    feeds: namedMap(objectOf(FEED), 'Feeds by name.'),
-    simulate: objectOf(SIMULATE),
-    expect: { type: 'array', description: 'Checks for CI.', items: objectOf(EXPECT) },
-    at: { description: 'A time or `end`.', anyOf: [{ const: 'end' }, timeValue] },
-    over: pair(timeValue, timeValue, '[t0, t1]'),
-    'probe-value': probeValue,
-    near: objectOf(NEAR),
-    within: { description: 'Absolute (in the probe’s dimension) or relative (`5%`).', anyOf: [{ type: 'number', exclusiveMinimum: 0 }, { type: 'string', pattern: NUMBER_TEXT }] },
-    settles: objectOf(SETTLES),
+    }),
+    gas: () => ({ description: 'A named gas or a custom gas.', anyOf: [{ enum: [...GAS_NAMES] }, objectOf(CUSTOM_GAS)] }),
+    viscosity: () => objectOf(VISCOSITY),
+    ambient: () => objectOf(AMBIENT),
+    chambers: () => namedMap({ oneOf: WALL_LAWS.map(chamberSchema) }, 'Chambers by name.'),
+    reservoirs: () => namedMap(objectOf(RESERVOIR), 'Reservoirs by name (`ambient` is always available).'),
+    lines: () => namedMap(objectOf(LINE), 'Lines by name.'),
+    valves: () => namedMap(valveSchema(), 'Valves by name.'),
+    feeds: () => namedMap(objectOf(FEED), 'Feeds by name.'),
+    simulate: () => objectOf(SIMULATE),
+    expect: () => ({ type: 'array', description: 'Checks for CI.', items: objectOf(EXPECT) }),
+    at: () => ({ description: 'A time or `end`.', anyOf: [{ const: 'end' }, timeValue] }),
+    over: () => pair(timeValue, timeValue, '[t0, t1]'),
+    'probe-value': () => probeValue,
+    near: () => objectOf(NEAR),
+    within: () => ({ description: 'Absolute (in the probe’s dimension) or relative (`5%`).', anyOf: [{ type: 'number', exclusiveMinimum: 0 }, { type: 'string', pattern: NUMBER_TEXT }] }),
+    settles: () => objectOf(SETTLES),
   };
 }
 
-let shapeCache: Record<string, Schema> | undefined;
+const SHAPES = shapes();
 
 function shape(name: string): Schema {
-  shapeCache ??= shapes();
-  return shapeCache[name] ?? {};
+  return SHAPES[name]?.() ?? {};
 }
 
 function paramSchema(p: ParamSpec): Schema {

@@ -10,12 +10,12 @@
  *   `{ expr: "300 kPa + 50 kPa * sin(2*pi*t/(1 s))", reference: gauge }` (reference `gauge`
  *   or `abs`). t is the time in seconds; see units/expression.ts for what is allowed.
  */
-import { compileExpression } from '../units/expression';
-import { splitQualifier, type PressureReference } from '../units/pressure';
-import { readUnit } from '../units/quantity';
-import type { Checker } from './checker';
-import type { TimeSeries } from './types';
-import type { YMap, YNode, YScalar } from './yaml-tree';
+import { compileExpression } from '../units/expression.js';
+import { splitQualifier, type PressureReference } from '../units/pressure.js';
+import { readUnit } from '../units/quantity.js';
+import type { Checker } from './checker.js';
+import type { TimeSeries } from './types.js';
+import type { YMap, YNode, YScalar } from './yaml-tree.js';
 
 /** Points at which an expression is sampled to catch negative absolute pressure. */
 const SAMPLES = 1000;

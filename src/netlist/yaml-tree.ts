@@ -6,7 +6,7 @@
  */
 import { isAlias, isMap, isPair, isScalar, isSeq, LineCounter, parseDocument } from 'yaml';
 import type { Node as YamlNode, YAMLError } from 'yaml';
-import type { Diagnostic } from '../diag/diagnostic';
+import type { Diagnostic } from '../diag/diagnostic.js';
 
 /** Largest netlist accepted: 2 MiB of UTF-8 (a large network is a few tens of kB). */
 export const MAX_SOURCE_BYTES = 2 * 1024 * 1024;

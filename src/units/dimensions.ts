@@ -3,7 +3,7 @@
  * parsed number is expressed in) and an example for hints.
  */
 import type { Unit } from 'mathjs';
-import { mathUnit } from './math';
+import { mathUnit } from './math.js';
 
 export type Dimension =
   | 'length'

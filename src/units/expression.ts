@@ -9,10 +9,10 @@
  * evaluated by mathjs, so a netlist cannot reach `import`, `createUnit`, `evaluate` or the
  * host. Kinks from abs/min/max/floor/ceil are not located (no breakpoints are reported).
  */
-import { isUnitName, mathParse, mathUnit } from './math';
-import { DIMENSIONS, dimensionVector, nameDimension, type Dimension } from './dimensions';
-import { fail, type ValueError } from './quantity';
-import { unknownUnitHint } from './unit-hint';
+import { isUnitName, mathParse, mathUnit } from './math.js';
+import { DIMENSIONS, dimensionVector, nameDimension, type Dimension } from './dimensions.js';
+import { fail, type ValueError } from './quantity.js';
+import { unknownUnitHint } from './unit-hint.js';
 
 export type CompiledExpression = {
   ok: true;

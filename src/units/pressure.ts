@@ -6,7 +6,7 @@
  * shorthands `psig`, `psia`, `barg`, `bara` (also with a prefix: `mbarg`). The qualifier is
  * stripped before mathjs sees the text.
  */
-import { fail, parseQuantity, type QuantityResult, type ValueError } from './quantity';
+import { fail, parseQuantity, type QuantityResult, type ValueError } from './quantity.js';
 
 export type PressureReference = 'gauge' | 'abs';
 

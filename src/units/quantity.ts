@@ -6,9 +6,9 @@
  * function and `5 L/min` would fail) and are checked for dimension with `equalBase`.
  */
 import type { Unit } from 'mathjs';
-import { mathUnit } from './math';
-import { DIMENSIONS, nameDimension, siUnit, type Dimension } from './dimensions';
-import { unknownUnitHint, unknownUnitToken } from './unit-hint';
+import { mathUnit } from './math.js';
+import { DIMENSIONS, nameDimension, siUnit, type Dimension } from './dimensions.js';
+import { unknownUnitHint, unknownUnitToken } from './unit-hint.js';
 
 export type ValueErrorCode =
   | 'unit-syntax'

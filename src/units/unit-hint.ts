@@ -2,8 +2,8 @@
  * Hints for unit names mathjs does not know: case slips (`kpa` → `kPa`, `PSI` → `psi`),
  * typing slips, and trade spellings plenum writes differently.
  */
-import { closestMatches, didYouMean } from '../diag/did-you-mean';
-import { unitDefinitions } from './math';
+import { closestMatches, didYouMean } from '../diag/did-you-mean.js';
+import { unitDefinitions } from './math.js';
 
 /** Trade spellings with a fixed answer. */
 const KNOWN_MISTAKES: Record<string, string> = {

@@ -1,8 +1,8 @@
 import { readFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
-import { readNetlist } from '../../src/netlist/read';
-import type { NetlistDoc } from '../../src/netlist/types';
+import { readNetlist } from '../../src/netlist/read.js';
+import type { NetlistDoc } from '../../src/netlist/types.js';
 
 const FILE = fileURLToPath(new URL('./full-netlist.yaml', import.meta.url));
 /** 1 psi in Pa as mathjs 15 defines it (exact definition 6894.757293168 Pa, NIST SP 811 B.8). */

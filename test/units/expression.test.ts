@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { compileExpression } from '../../src/units/expression';
+import { compileExpression } from '../../src/units/expression.js';
 
 function compile(text: string, dim: Parameters<typeof compileExpression>[1] = 'pressure') {
   const r = compileExpression(text, dim);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { parseAmbientPressure, parsePressure, parsePressureDifference, splitQualifier } from '../../src/units/pressure';
+import { parseAmbientPressure, parsePressure, parsePressureDifference, splitQualifier } from '../../src/units/pressure.js';
 
 const AMBIENT = 101325;
 /**

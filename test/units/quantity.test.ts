@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { parseFraction, parseQuantity } from '../../src/units/quantity';
+import { parseFraction, parseQuantity } from '../../src/units/quantity.js';
 
 function value(text: string | number, dim: Parameters<typeof parseQuantity>[1]): number {
   const r = parseQuantity(text, dim);
