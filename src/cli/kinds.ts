@@ -17,7 +17,7 @@ function dim(p: ParamSpec): string {
     case 'absolute-pressure': return 'pressure (gauge or abs)';
     case 'gauge-pressure': return 'pressure (gauge or abs)';
     case 'enum': return (p.values ?? []).join(' | ');
-    case 'structure': return 'see doc';
+    case 'structure': return p.shape === 'points' || p.shape === 'schedule' ? 'list' : 'map';
     default: return p.dimension;
   }
 }
@@ -29,11 +29,12 @@ function need(p: ParamSpec): string {
 export function kindsText(markdown: boolean): string {
   const out: string[] = [];
   if (markdown) {
-    out.push('| kind | parameter | dimension | | meaning |', '|---|---|---|---|---|');
+    out.push('| kind | parameter | dimension | need | meaning |', '|---|---|---|---|---|');
+    const esc = (x: string): string => x.replace(/\|/g, '\\|');
     for (const g of GROUPS) {
       for (const t of g.tables) {
-        out.push(`| **${g.label(t)}** | | | | ${t.doc} |`);
-        for (const p of t.params) out.push(`| | \`${p.name}\` | ${dim(p)} | ${need(p)} | ${p.doc.replace(/\|/g, '\\|')} |`);
+        out.push(`| **${esc(g.label(t))}** | | | | ${esc(t.doc)} |`);
+        for (const p of t.params) out.push(`| | \`${p.name}\` | ${esc(dim(p))} | ${need(p)} | ${esc(p.doc)} |`);
       }
     }
     return out.join('\n') + '\n';
