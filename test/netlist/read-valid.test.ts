@@ -195,7 +195,7 @@ simulate: { duration: 1 s }
 
   it('reads named and custom gases', () => {
     const he = readNetlist(minimal + 'gas: helium\n', 'x.yaml');
-    expect(he.ok && he.value.gas).toEqual({ name: 'helium', molarMass: 4.0026e-3, gamma: 1.667, viscosity: { value: 1.87e-5, at: 273.15, sutherland: 79.4 } });
+    expect(he.ok && he.value.gas).toEqual({ name: 'helium', molarMass: 4.002602e-3, gamma: 5 / 3, viscosity: { value: 1.865e-5, at: 273, sutherland: 79.4 } });
     const custom = readNetlist(minimal + 'gas: { molar-mass: 32 g/mol, gamma: 1.4, viscosity: { value: 2.0e-5 Pa*s, at: 20 degC, sutherland: 127 K } }\n', 'x.yaml');
     expect(custom.ok && custom.value.gas).toEqual({ name: 'custom', molarMass: 0.032, gamma: 1.4, viscosity: { value: 2e-5, at: expect.closeTo(293.15, 12), sutherland: 127 } });
   });
