@@ -17,7 +17,8 @@ export function loadOrExit(file: string): Model {
   if (!m.ok) {
     const errs = m.diagnostics;
     const n = errs.filter((d) => d.severity === 'error').length;
-    throw new UsageError(`${errs.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'} in ${file}; nothing was simulated or written`);
+    process.stderr.write(errs.map(formatDiagnostic).join('\n') + '\n');
+    throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${file}; nothing was simulated or written`);
   }
   for (const w of m.warnings) process.stderr.write(formatDiagnostic(w) + '\n');
   return m.value;

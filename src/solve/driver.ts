@@ -34,6 +34,13 @@ export interface DriverOptions {
   sample: number;
   /** Called at every sample time and every accepted step end, in time order, with kind. */
   observe(t: number, y: Float64Array, kind: 'sample' | 'step'): void;
+  /**
+   * Optional: called once per accepted step, in time order, with the step's dense output valid
+   * on [tOld, tNew] (tNew is the event time when an event cuts the step short). It runs before
+   * an event at tNew is applied, so values inside the step are those the step was computed with.
+   * The pieces tile [t0, t]; `dense` must not be kept after the call.
+   */
+  onStep?(tOld: number, tNew: number, dense: DenseOutput): void;
   maxSteps?: number;
   maxWallMs?: number;
   /** Polled once a step; a string stops the run with that message (e.g. Ctrl-C). */
@@ -129,8 +136,11 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
           const tc = locate(p, k, tOld, a, tNew, b, dense, yTmp, gTmp);
           if (tc < tFirst) { tFirst = tc; kFirst = k; }
         }
+        let reported = false;
         if (kFirst >= 0) {
           emitSamples(tFirst, dense, false);
+          o.onStep?.(tOld, tFirst, dense);
+          reported = true;
           dense(tFirst, yEv);
           const rising = gNew[kFirst] > gPrev[kFirst];
           const restart = p.fireEvent(kFirst, tFirst, yEv, rising);
@@ -144,6 +154,7 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
           }
         }
         emitSamples(tNew, dense, true);
+        if (!reported) o.onStep?.(tOld, tNew, dense);
         o.observe(tNew, yNew, 'step');
         gPrev.set(gNew);
         if (o.maxSteps !== undefined && work.steps + curSteps() >= o.maxSteps) {

@@ -35,3 +35,26 @@ export function display(value: number, kind: DisplayKind): string {
 }
 
 export { sig as significant };
+
+/** An axis unit: shown value = SI value × factor + offset. */
+export interface DisplayScale { unit: string; factor: number; offset: number }
+
+/**
+ * The unit `display` chooses for values up to `magnitude` (SI), for a whole axis or column,
+ * so that a plot and the table beside it speak the same units.
+ */
+export function displayScale(kind: DisplayKind, magnitude: number): DisplayScale {
+  const a = Math.abs(magnitude);
+  switch (kind) {
+    case 'pressure': return { unit: 'kPa abs', factor: 1e-3, offset: 0 };
+    case 'gauge': return { unit: 'kPa gauge', factor: 1e-3, offset: 0 };
+    case 'volume': return a < 1e-3 ? { unit: 'mL', factor: 1e6, offset: 0 } : { unit: 'L', factor: 1e3, offset: 0 };
+    case 'mass': return a < 1 ? { unit: 'g', factor: 1e3, offset: 0 } : { unit: 'kg', factor: 1, offset: 0 };
+    case 'temperature': return { unit: '°C', factor: 1, offset: -273.15 };
+    case 'flow': return a < 1 ? { unit: 'g/s', factor: 1e3, offset: 0 } : { unit: 'kg/s', factor: 1, offset: 0 };
+    case 'time': return a < 1 && a > 0 ? { unit: 'ms', factor: 1e3, offset: 0 } : { unit: 's', factor: 1, offset: 0 };
+    case 'stretch':
+    case 'reynolds':
+      return { unit: '', factor: 1, offset: 0 };
+  }
+}
