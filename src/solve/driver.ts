@@ -46,6 +46,12 @@ export interface DriverOptions {
   /** Polled once a step; a string stops the run with that message (e.g. Ctrl-C). */
   interrupt?: () => string | null;
   hMax?: number;
+  /**
+   * Integrator to continue with when the first one fails numerically (step-size collapse,
+   * non-finite values, singular matrix): `method: auto` starts explicit and falls back to the
+   * stiff method at a kink an explicit extrapolation code cannot pass.
+   */
+  fallback?: Integrator;
 }
 
 export type DriverStatus = 'completed' | 'failed';
@@ -57,6 +63,8 @@ export interface DriverResult {
   t: number;
   y: Float64Array;
   work: WorkCounts;
+  /** Time at which the driver switched to the fallback integrator, if it did. */
+  switchedAt?: number;
 }
 
 const ILLINOIS_ITER = 100;
@@ -116,6 +124,8 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
   const stops = [...p.breakpoints.filter((b) => b > o.t0 && b < o.tEnd), o.tEnd];
   let h0: number | undefined;
   let failure: DriverResult | null = null;
+  let integrator = o.integrator;
+  let switchedAt: number | undefined;
   for (const tb of stops) {
     while (t < tb) {
       let restartAt: number | null = null;
@@ -181,7 +191,7 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
         stepsThisCall++;
         return onStep(tOld, tNew, yNew, dense);
       };
-      const r = o.integrator(p, t, y, tb, counting, {
+      const r = integrator(p, t, y, tb, counting, {
         h0, hMax: o.hMax,
         maxSteps: o.maxSteps !== undefined ? Math.max(1, o.maxSteps - work.steps) : undefined,
       });
@@ -202,8 +212,15 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
         failure = { status: 'failed', cause: 'budget-steps', message: `step budget max-steps = ${o.maxSteps} used up at t = ${t.toPrecision(6)} s`, t, y, work };
         break;
       }
+      const numerical = r.status === 'step-too-small' || r.status === 'non-finite' || r.status === 'singular';
+      if (numerical && o.fallback && integrator !== o.fallback) {
+        integrator = o.fallback;
+        switchedAt = t;
+        h0 = undefined;
+        continue;
+      }
       if (r.status !== 'completed') {
-        failure = { status: 'failed', cause: r.status, message: r.message, t, y, work };
+        failure = { status: 'failed', cause: r.status, message: r.message, t, y, work, switchedAt };
         break;
       }
     }
@@ -214,6 +231,6 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
       h0 = undefined;
     }
   }
-  if (failure) return failure;
-  return { status: 'completed', cause: 'completed', message: `completed at t = ${o.tEnd} s`, t, y, work };
+  if (failure) return { ...failure, switchedAt };
+  return { status: 'completed', cause: 'completed', message: `completed at t = ${o.tEnd} s`, t, y, work, switchedAt };
 }

@@ -45,7 +45,7 @@ describe('gentLockStretch', () => {
 });
 
 describe('named gases (White, Viscous Fluid Flow, Table 1-2, from memory)', () => {
-  it('are the physics module's table (one source of gas data)', () => {
+  it('are the physics module table (one source of gas data)', () => {
     expect(NAMED_GASES.air).toEqual({ name: 'air', molarMass: 28.9647e-3, gamma: 1.4, viscosity: { value: 1.716e-5, at: 273.15, sutherland: 110.4 } });
     expect(NAMED_GASES.nitrogen.viscosity.sutherland).toBe(107);
     expect(NAMED_GASES.helium.molarMass).toBeCloseTo(4.002602e-3, 12);
