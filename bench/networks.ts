@@ -100,7 +100,7 @@ export function starNetlist(n: number, o: NetworkOptions = {}): string {
   for (let i = 1; i < n; i++) {
     out.push(i % 2 === 1
       ? `  s${i}: { ${POD}, start: { stretch: 1.0 } }\n`
-      : `  s${i}: { wall: linear, volume: 25 mL, compliance: 0.25 mL/kPa, start: { pressure: 0 kPa gauge } }\n`);
+      : `  s${i}: { wall: linear, volume: 25 mL, compliance: 0.1 mL/kPa, start: { pressure: 0 kPa gauge } }\n`);
     lines.push(`  r${i}: { from: hub, to: s${i}, diameter: 2 mm, length: ${100 + (i % 7) * 20} mm }\n`);
   }
   out.push('lines:\n', ...lines);

@@ -1,121 +1,431 @@
 /**
- * Evaluates `expect:` entries on a recorded solution (every accepted step and every sample).
+ * Evaluates `expect:` entries on the dense solution of a run, not on its samples.
+ *
+ * The monitor sees every accepted step with the integrator's dense output (the driver's
+ * `onStep` hook) and evaluates the probed channels inside the step:
+ * - `at: t` reads the dense output at exactly t. Where a flow jumps at t (a valve switching,
+ *   a relief valve lifting) the value just after the jump is taken; `at: end` is the final state.
+ * - `over` + `max`/`min`: each step is sampled at its ends and at four Gauss–Legendre nodes; when
+ *   the best of these lies inside the step (or a parabola through the three points at the best
+ *   end puts a turning point inside the first interval), golden-section search on the dense
+ *   output brackets the extremum to 1e-6 of the step, so the value is that of the interpolant
+ *   to far below solver accuracy. The time of the extremum is reported.
+ * - `over` + `mean`: the integral of the dense output, 4-point Gauss–Legendre on each step
+ *   (exact for polynomials of degree 7; the interpolants are of lower degree in the state),
+ *   divided by the window length. Steps are cut at events and breakpoints, so jumps in a flow
+ *   fall between steps, never inside a quadrature.
+ * - `settles: { within, band }`: for every chamber, its absolute pressure and its volume stay
+ *   within `band` (a fraction) of their final values for all t in [within, end]:
+ *   max |q(t) − q(end)| ≤ band·|q(end)|. Computed exactly from the running maximum and minimum
+ *   of each quantity over [within, end] (the largest distance from a constant is at one of them).
+ *
+ * Comparisons: `below` is strict (v < limit), `above` strict (v > limit), `near` inclusive
+ * (|v − value| ≤ within; a `%` within is relative to |value|, for a `gauge` probe to the gauge
+ * value). Pressure limits are stored absolute; `gauge` probes are shown and reported gauge.
+ *
+ * References: Gauss–Legendre nodes and weights, Abramowitz & Stegun, Handbook of Mathematical
+ * Functions (1964), Table 25.4; golden-section search, Press, Teukolsky, Vetterling & Flannery,
+ * Numerical Recipes, 3rd ed. (2007), §10.2; vertex of the interpolating parabola, ibid. §10.3,
+ * eq. 10.3.1.
  */
 import type { ExpectSpec } from '../netlist/types.js';
-import { display, type DisplayKind } from '../units/display.js';
+import type { DenseOutput } from '../solve/types.js';
+import type { DisplayKind } from '../units/display.js';
 import type { ExpectationResult } from './results.js';
 
-export interface Recording {
-  keys: Map<string, number>;
-  times: number[];
-  rows: Float64Array[];
+/** What the monitor needs from the system: channel columns and a way to evaluate a row. */
+export interface ChannelSource {
+  /** Channel key `<name>.<quantity>` → column in a row. */
+  keys: ReadonlyMap<string, number>;
+  /** Row length (number of channels). */
+  width: number;
+  /** State vector length. */
+  n: number;
+  /** Writes every channel's value at (t, y) into row. */
+  observe(t: number, y: Float64Array, row: Float64Array): void;
 }
 
-function valueAt(rec: Recording, c: number, t: number): number {
-  const ts = rec.times;
-  if (t <= ts[0]) return rec.rows[0][c];
-  if (t >= ts[ts.length - 1]) return rec.rows[ts.length - 1][c];
-  let lo = 0;
-  let hi = ts.length - 1;
-  while (hi - lo > 1) {
-    const mid = (lo + hi) >> 1;
-    if (ts[mid] <= t) lo = mid; else hi = mid;
+/** 4-point Gauss–Legendre on [−1, 1] (A&S Table 25.4), ascending nodes. */
+const GL_X = [-0.8611363115940526, -0.3399810435848563, 0.3399810435848563, 0.8611363115940526];
+const GL_W = [0.3478548451374538, 0.6521451548625461, 0.6521451548625461, 0.3478548451374538];
+/** Sample points of a step: both ends and the Gauss–Legendre nodes. */
+const NODES = GL_X.length + 2;
+/** Golden-section search stops when the bracket is this fraction of the step. */
+const GOLDEN_REL = 1e-6;
+const GOLDEN_MAX_ITER = 60;
+const INV_PHI = 0.6180339887498949;
+
+interface Extremum { c: number; t0: number; t1: number; sign: 1 | -1; best: number; at: number; seen: boolean }
+interface Integral { c: number; t0: number; t1: number; sum: number }
+interface Pointwise { c: number; t: number; value: number; seen: boolean }
+
+type ProbeSpec = Extract<ExpectSpec, { kind: 'probe' }>;
+type SettlesSpec = Extract<ExpectSpec, { kind: 'settles' }>;
+
+/** What each spec reads; indices into the monitor's tracker lists. */
+type Plan =
+  | { kind: 'missing'; spec: ExpectSpec }
+  | { kind: 'at-end'; spec: ProbeSpec; c: number }
+  | { kind: 'at'; spec: ProbeSpec; c: number; i: number }
+  | { kind: 'extremum'; spec: ProbeSpec; c: number; i: number }
+  | { kind: 'mean'; spec: ProbeSpec; c: number; i: number }
+  | { kind: 'settles'; spec: SettlesSpec; parts: { key: string; c: number; hi: number; lo: number }[] };
+
+// ---- formatting for people (engineering units, enough digits to tell values apart) ----------
+
+interface Shown { scale: number; offset: number; unit: string }
+
+function unitFor(kind: DisplayKind, magnitude: number): Shown {
+  switch (kind) {
+    case 'pressure': return { scale: 1e-3, offset: 0, unit: ' kPa abs' };
+    case 'gauge': return { scale: 1e-3, offset: 0, unit: ' kPa gauge' };
+    case 'volume': return magnitude < 1e-3 ? { scale: 1e6, offset: 0, unit: ' mL' } : { scale: 1e3, offset: 0, unit: ' L' };
+    case 'mass': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g' } : { scale: 1, offset: 0, unit: ' kg' };
+    case 'temperature': return { scale: 1, offset: -273.15, unit: ' °C' };
+    case 'flow': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g/s' } : { scale: 1, offset: 0, unit: ' kg/s' };
+    case 'time': return magnitude < 1 && magnitude > 0 ? { scale: 1e3, offset: 0, unit: ' ms' } : { scale: 1, offset: 0, unit: ' s' };
+    case 'stretch':
+    case 'reynolds': return { scale: 1, offset: 0, unit: '' };
   }
-  const w = ts[hi] === ts[lo] ? 1 : (t - ts[lo]) / (ts[hi] - ts[lo]);
-  return rec.rows[lo][c] + w * (rec.rows[hi][c] - rec.rows[lo][c]);
 }
 
-function over(rec: Recording, c: number, t0: number, t1: number, stat: 'max' | 'min' | 'mean'): { v: number; at: number } {
-  let best = valueAt(rec, c, t0);
-  let at = t0;
-  const end = valueAt(rec, c, t1);
-  if (stat !== 'mean') {
-    const better = (x: number): boolean => (stat === 'max' ? x > best : x < best);
-    for (let k = 0; k < rec.times.length; k++) {
-      const t = rec.times[k];
-      if (t < t0 || t > t1) continue;
-      const x = rec.rows[k][c];
-      if (better(x)) { best = x; at = t; }
+function sig(x: number, digits: number): string {
+  if (!Number.isFinite(x)) return Number.isNaN(x) ? 'not a number' : String(x);
+  if (x === 0) return '0';
+  const s = x.toPrecision(digits);
+  return s.includes('e') ? s : String(Number(s));
+}
+
+/** A value in engineering units with 4 significant digits (more when needed to differ from `other`). */
+function fmt(x: number, kind: DisplayKind, other?: number): string {
+  const u = unitFor(kind, Math.abs(x));
+  const show = (v: number, d: number): string => sig(v * u.scale + u.offset, d);
+  let d = 4;
+  if (other !== undefined && x !== other) while (d < 12 && show(x, d) === show(other, d)) d++;
+  return `${show(x, d)}${u.unit}`;
+}
+
+/** A difference (no gauge/abs qualifier, kelvin for temperatures). */
+function fmtDelta(x: number, kind: DisplayKind): string {
+  if (kind === 'temperature') return `${sig(x, 4)} K`;
+  const k: DisplayKind = kind === 'gauge' || kind === 'pressure' ? 'pressure' : kind;
+  const u = unitFor(k, Math.abs(x));
+  return `${sig(x * u.scale, 4)}${u.unit.replace(' abs', '')}`;
+}
+
+function pct(f: number): string {
+  return `${sig(f * 100, 3)} %`;
+}
+
+const time = (t: number): string => fmt(t, 'time');
+
+// ---- numerics on one step ---------------------------------------------------------------------
+
+/** Index of the best (largest sign·f) of fs, the first one on ties. */
+function argBest(fs: number[]): number {
+  let k = 0;
+  for (let i = 1; i < fs.length; i++) if (fs[i] > fs[k] || (Number.isNaN(fs[i]) && !Number.isNaN(fs[k]))) k = i;
+  return k;
+}
+
+/** True when the parabola through three points has a maximum strictly between t0 and t1. */
+function vertexBetween(t0: number, f0: number, t1: number, f1: number, t2: number, f2: number): boolean {
+  const d1 = (f1 - f0) / (t1 - t0);
+  const d2 = (f2 - f1) / (t2 - t1);
+  const curv = (d2 - d1) / (t2 - t0);
+  if (!(curv < 0)) return false;
+  const num = (t1 - t0) ** 2 * (f1 - f2) - (t1 - t2) ** 2 * (f1 - f0);
+  const den = (t1 - t0) * (f1 - f2) - (t1 - t2) * (f1 - f0);
+  if (den === 0) return false;
+  const tv = t1 - (0.5 * num) / den;
+  return tv > Math.min(t0, t1) && tv < Math.max(t0, t1);
+}
+
+/** Maximum of g on [lo, hi] by golden-section search (g unimodal there). */
+function golden(g: (t: number) => number, lo: number, hi: number, tol: number): { t: number; f: number } {
+  let x1 = hi - INV_PHI * (hi - lo);
+  let x2 = lo + INV_PHI * (hi - lo);
+  let f1 = g(x1);
+  let f2 = g(x2);
+  for (let i = 0; i < GOLDEN_MAX_ITER && hi - lo > tol; i++) {
+    if (f1 < f2) {
+      lo = x1; x1 = x2; f1 = f2;
+      x2 = lo + INV_PHI * (hi - lo); f2 = g(x2);
+    } else {
+      hi = x2; x2 = x1; f2 = f1;
+      x1 = hi - INV_PHI * (hi - lo); f1 = g(x1);
     }
-    if (better(end)) { best = end; at = t1; }
-    return { v: best, at };
   }
-  // trapezoid rule over recorded points inside [t0, t1]
-  let integral = 0;
-  let tp = t0;
-  let vp = best;
-  for (let k = 0; k < rec.times.length; k++) {
-    const t = rec.times[k];
-    if (t <= t0 || t >= t1) continue;
-    const x = rec.rows[k][c];
-    integral += 0.5 * (x + vp) * (t - tp);
-    tp = t; vp = x;
-  }
-  integral += 0.5 * (end + vp) * (t1 - tp);
-  return { v: t1 > t0 ? integral / (t1 - t0) : best, at: t0 };
+  return f1 >= f2 ? { t: x1, f: f1 } : { t: x2, f: f2 };
 }
 
-export function evaluateExpectations(specs: ExpectSpec[], rec: Recording, pa: number, end: number, chambers: string[]): ExpectationResult[] {
-  return specs.map((e) => {
-    const where = { file: e.pos.file, line: e.pos.line, column: e.pos.column };
-    if (e.kind === 'settles') {
-      const worst = { rel: 0, who: '', t: 0 };
+// ---- the monitor ------------------------------------------------------------------------------
+
+/** Sample points of one interval with every channel's row at each. */
+class NodeSet {
+  readonly ts = new Float64Array(NODES);
+  readonly rows: Float64Array[];
+  a = 0;
+  b = 0;
+  constructor(width: number) {
+    this.rows = Array.from({ length: NODES }, () => new Float64Array(width));
+  }
+}
+
+export class ExpectationMonitor {
+  private readonly plans: Plan[];
+  private readonly points: Pointwise[] = [];
+  private readonly extrema: Extremum[] = [];
+  private readonly integrals: Integral[] = [];
+  private readonly y: Float64Array;
+  private readonly row: Float64Array;
+  private readonly full: NodeSet;
+  private readonly part: NodeSet;
+  private dense: DenseOutput | null = null;
+  private fullFor = -1;
+
+  /**
+   * @param specs the netlist's expectations
+   * @param src channels of the system
+   * @param chambers chamber names (for `settles`)
+   * @param pa ambient pressure (Pa), to show and report gauge values
+   */
+  constructor(specs: ExpectSpec[], private readonly src: ChannelSource, chambers: string[], private readonly pa: number) {
+    this.y = new Float64Array(src.n);
+    this.row = new Float64Array(src.width);
+    this.full = new NodeSet(src.width);
+    this.part = new NodeSet(src.width);
+    this.plans = specs.map((spec) => this.plan(spec, chambers));
+  }
+
+  /** False when there is nothing to evaluate inside steps (the hook can be left off). */
+  get needsSteps(): boolean {
+    return this.points.length + this.extrema.length + this.integrals.length > 0;
+  }
+
+  private plan(spec: ExpectSpec, chambers: string[]): Plan {
+    if (spec.kind === 'settles') {
+      const parts: { key: string; c: number; hi: number; lo: number }[] = [];
       for (const name of chambers) {
         for (const q of ['pressure', 'volume']) {
-          const c = rec.keys.get(`${name}.${q}`)!;
-          const fin = rec.rows[rec.rows.length - 1][c];
-          for (let k = 0; k < rec.times.length; k++) {
-            if (rec.times[k] < e.within) continue;
-            const rel = Math.abs(rec.rows[k][c] - fin) / Math.abs(fin);
-            if (rel > worst.rel) { worst.rel = rel; worst.who = `${name}.${q}`; worst.t = rec.times[k]; }
-          }
+          const key = `${name}.${q}`;
+          const c = this.src.keys.get(key);
+          if (c === undefined) return { kind: 'missing', spec };
+          parts.push({ key, c, hi: this.track(c, spec.within, Infinity, 1), lo: this.track(c, spec.within, Infinity, -1) });
         }
       }
-      const passed = worst.rel <= e.band;
-      return {
-        name: e.name, passed, actual: worst.rel, ...where,
-        message: passed
-          ? `every chamber stays within ${display(e.band * 100, 'reynolds')} % of its final pressure and volume after ${display(e.within, 'time')} (largest deviation ${display(worst.rel * 100, 'reynolds')} %)`
-          : `${worst.who} is ${display(worst.rel * 100, 'reynolds')} % from its final value at t = ${display(worst.t, 'time')}, expected within ${display(e.band * 100, 'reynolds')} % after ${display(e.within, 'time')}`,
-      };
+      return { kind: 'settles', spec, parts };
     }
-    const q = e.probe.quantity;
-    const isGauge = q === 'gauge';
-    const key = `${e.probe.element}.${isGauge ? 'pressure' : q}`;
-    const c = rec.keys.get(key);
-    if (c === undefined) {
-      return { name: e.name, passed: false, actual: Number.NaN, ...where, message: `probe ${e.probe.text} has no recorded values` };
+    const q = spec.probe.quantity;
+    const c = this.src.keys.get(`${spec.probe.element}.${q === 'gauge' ? 'pressure' : q}`);
+    if (c === undefined) return { kind: 'missing', spec };
+    const w = spec.when;
+    if ('at' in w) {
+      if (w.at === 'end') return { kind: 'at-end', spec, c };
+      this.points.push({ c, t: w.at, value: Number.NaN, seen: false });
+      return { kind: 'at', spec, c, i: this.points.length - 1 };
     }
+    const [t0, t1] = w.over;
+    if (w.stat === 'mean') {
+      this.integrals.push({ c, t0, t1, sum: 0 });
+      return { kind: 'mean', spec, c, i: this.integrals.length - 1 };
+    }
+    return { kind: 'extremum', spec, c, i: this.track(c, t0, t1, w.stat === 'max' ? 1 : -1) };
+  }
+
+  private track(c: number, t0: number, t1: number, sign: 1 | -1): number {
+    this.extrema.push({ c, t0, t1, sign, best: Number.NaN, at: Number.NaN, seen: false });
+    return this.extrema.length - 1;
+  }
+
+  /** Row of every channel at t inside the current step (into `out`, default a scratch row). */
+  private rowAt(t: number, out: Float64Array = this.row): Float64Array {
+    this.dense!(t, this.y);
+    this.src.observe(t, this.y, out);
+    return out;
+  }
+
+  private fill(set: NodeSet, a: number, b: number): NodeSet {
+    const mid = 0.5 * (a + b);
+    const half = 0.5 * (b - a);
+    set.a = a;
+    set.b = b;
+    set.ts[0] = a;
+    for (let i = 0; i < GL_X.length; i++) set.ts[i + 1] = mid + half * GL_X[i];
+    set.ts[NODES - 1] = b;
+    for (let i = 0; i < NODES; i++) this.rowAt(set.ts[i], set.rows[i]);
+    return set;
+  }
+
+  private nodes(a: number, b: number, tOld: number, tNew: number, stepNo: number): NodeSet {
+    if (a === tOld && b === tNew) {
+      if (this.fullFor !== stepNo) {
+        this.fill(this.full, a, b);
+        this.fullFor = stepNo;
+      }
+      return this.full;
+    }
+    return this.fill(this.part, a, b);
+  }
+
+  private stepNo = 0;
+
+  /** One accepted step piece [tOld, tNew] with its dense output (the driver's `onStep`). */
+  readonly step = (tOld: number, tNew: number, dense: DenseOutput): void => {
+    if (!(tNew >= tOld)) return;
+    this.dense = dense;
+    const no = ++this.stepNo;
+    for (const p of this.points) {
+      if (p.t >= tOld && p.t <= tNew) {
+        p.value = this.rowAt(p.t)[p.c];
+        p.seen = true;
+      }
+    }
+    for (const x of this.extrema) {
+      const a = Math.max(tOld, x.t0);
+      const b = Math.min(tNew, x.t1);
+      if (a > b) continue;
+      if (a === b) {
+        this.offer(x, a, x.sign * this.rowAt(a)[x.c]);
+        continue;
+      }
+      this.refine(x, this.nodes(a, b, tOld, tNew, no));
+    }
+    for (const m of this.integrals) {
+      const a = Math.max(tOld, m.t0);
+      const b = Math.min(tNew, m.t1);
+      if (!(b > a)) continue;
+      const set = this.nodes(a, b, tOld, tNew, no);
+      let s = 0;
+      for (let i = 0; i < GL_W.length; i++) s += GL_W[i] * set.rows[i + 1][m.c];
+      m.sum += 0.5 * (b - a) * s;
+    }
+    this.dense = null;
+  };
+
+  private offer(x: Extremum, t: number, f: number): void {
+    if (!x.seen || f > x.best || (Number.isNaN(f) && !Number.isNaN(x.best))) {
+      x.best = f;
+      x.at = t;
+      x.seen = true;
+    }
+  }
+
+  /** The extremum of one channel on [set.a, set.b], refined on the dense output when inside. */
+  private refine(x: Extremum, set: NodeSet): void {
+    const fs = Array.from({ length: NODES }, (_, i) => x.sign * set.rows[i][x.c]);
+    const ts = set.ts;
+    const k = argBest(fs);
+    let lo = Number.NaN;
+    let hi = Number.NaN;
+    if (k > 0 && k < NODES - 1) {
+      lo = ts[k - 1]; hi = ts[k + 1];
+    } else if (k === 0 && vertexBetween(ts[0], fs[0], ts[1], fs[1], ts[2], fs[2])) {
+      lo = ts[0]; hi = ts[1];
+    } else if (k === NODES - 1 && vertexBetween(ts[k], fs[k], ts[k - 1], fs[k - 1], ts[k - 2], fs[k - 2])) {
+      lo = ts[k - 1]; hi = ts[k];
+    }
+    let best = fs[k];
+    let at = ts[k];
+    // the bracket's maximum exceeds its best node by less than the spread of its nodes
+    const spread = best - Math.min(fs[Math.max(0, k - 1)], fs[Math.min(NODES - 1, k + 1)]);
+    if (Number.isFinite(lo) && (!x.seen || best + spread >= x.best) && Number.isFinite(best)) {
+      const g = (t: number): number => x.sign * this.rowAt(t)[x.c];
+      const r = golden(g, lo, hi, GOLDEN_REL * (set.b - set.a));
+      if (r.f > best) { best = r.f; at = r.t; }
+    }
+    this.offer(x, at, best);
+  }
+
+  /** The results once the run has completed at tEnd with state yEnd. */
+  results(tEnd: number, yEnd: Float64Array): ExpectationResult[] {
+    const end = new Float64Array(this.src.width);
+    this.src.observe(tEnd, yEnd, end);
+    return this.plans.map((p) => this.judge(p, tEnd, end));
+  }
+
+  private judge(p: Plan, tEnd: number, end: Float64Array): ExpectationResult {
+    const spec = p.spec;
+    const where = { file: spec.pos.file, line: spec.pos.line, column: spec.pos.column };
+    if (p.kind === 'missing') {
+      const what = spec.kind === 'settles' ? 'the chambers' : `probe ${spec.probe.text}`;
+      return { name: spec.name, passed: false, actual: Number.NaN, ...where, message: `${what} has no recorded values` };
+    }
+    if (p.kind === 'settles') return { name: spec.name, ...this.settles(p.spec, p.parts, end), ...where };
+    const s = p.spec;
+    const q = s.probe.quantity;
     let v: number;
     let when: string;
-    if ('at' in e.when) {
-      const t = e.when.at === 'end' ? end : e.when.at;
-      v = valueAt(rec, c, t);
-      when = `at t = ${display(t, 'time')}`;
+    let atT = '';
+    if (p.kind === 'at-end') {
+      v = end[p.c];
+      when = `at the end (t = ${time(tEnd)})`;
+    } else if (p.kind === 'at') {
+      const pt = this.points[p.i];
+      v = pt.seen ? pt.value : Number.NaN;
+      when = `at t = ${time(pt.t)}`;
+    } else if (p.kind === 'mean') {
+      const m = this.integrals[p.i];
+      v = m.sum / (m.t1 - m.t0);
+      when = `over [${time(m.t0)}, ${time(m.t1)}]`;
     } else {
-      const [t0, t1] = e.when.over;
-      const r = over(rec, c, t0, Math.min(t1, end), e.when.stat);
-      v = r.v;
-      when = `${e.when.stat} over [${display(t0, 'time')}, ${display(t1, 'time')}]${e.when.stat === 'mean' ? '' : ` (at t = ${display(r.at, 'time')})`}`;
+      const x = this.extrema[p.i];
+      v = x.sign * x.best;
+      when = `over [${time(x.t0)}, ${time(x.t1)}]`;
+      if (Number.isFinite(x.at)) atT = ` at t = ${time(x.at)}`;
     }
+    const stat = 'over' in s.when ? `${s.when.stat} of ` : '';
+    const gauge = q === 'gauge';
     const kind: DisplayKind = q;
-    const shown = (x: number): string => (q === 'gauge' ? display(x - pa, 'gauge') : display(x, kind));
-    const cmp = e.compare;
+    // pressures are compared absolute and shown (and reported) in the probe's reference
+    const ref = (x: number): number => (gauge ? x - this.pa : x);
+    const actual = ref(v);
+    const cmp = s.compare;
     let passed: boolean;
     let want: string;
-    if (cmp.kind === 'below') { passed = v < cmp.value; want = `below ${shown(cmp.value)}`; }
-    else if (cmp.kind === 'above') { passed = v > cmp.value; want = `above ${shown(cmp.value)}`; }
-    else {
-      const target = isGauge ? cmp.value - pa : cmp.value;
-      const actual = isGauge ? v - pa : v;
+    let off = '';
+    if (cmp.kind === 'below' || cmp.kind === 'above') {
+      passed = cmp.kind === 'below' ? v < cmp.value : v > cmp.value;
+      want = `${cmp.kind} ${fmt(ref(cmp.value), kind, actual)}`;
+    } else {
+      const target = ref(cmp.value);
       const tol = 'abs' in cmp.within ? cmp.within.abs : cmp.within.rel * Math.abs(target);
       passed = Math.abs(actual - target) <= tol;
-      want = `${shown(cmp.value)} ± ${'abs' in cmp.within ? (isGauge ? display(tol, 'gauge').replace(' gauge', '') : display(tol, kind)) : `${display(cmp.within.rel * 100, 'reynolds')} %`}`;
+      want = `${fmt(target, kind, actual)} ± ${'abs' in cmp.within ? fmtDelta(tol, kind) : pct(cmp.within.rel)}`;
+      if (!passed && Number.isFinite(actual)) {
+        off = ` (off by ${fmtDelta(actual - target, kind)}${target !== 0 ? `, ${pct((actual - target) / Math.abs(target))}` : ''})`;
+      }
     }
-    const actual = isGauge ? v - pa : v;
+    if (!Number.isFinite(v)) passed = false;
     return {
-      name: e.name, passed, actual, ...where,
-      message: `${e.probe.text} ${when} is ${shown(v)}; expected ${want}`,
+      name: s.name, passed, actual, ...where,
+      message: `${stat}${s.probe.text} ${when} is ${fmt(actual, kind, ref(cmp.value))}${atT}${off}; expected ${want}`,
     };
-  });
+  }
+
+  private settles(s: SettlesSpec, parts: { key: string; c: number; hi: number; lo: number }[], end: Float64Array): { passed: boolean; actual: number; message: string } {
+    let worst = { rel: 0, key: '', t: s.within, fin: Number.NaN, c: -1 };
+    for (const part of parts) {
+      const fin = end[part.c];
+      for (const i of [part.hi, part.lo]) {
+        const x = this.extrema[i];
+        if (!x.seen) continue;
+        const rel = Math.abs(x.sign * x.best - fin) / Math.abs(fin);
+        if (rel > worst.rel || Number.isNaN(rel)) worst = { rel, key: part.key, t: x.at, fin, c: part.c };
+      }
+    }
+    const passed = worst.rel <= s.band;
+    const after = `for t ≥ ${time(s.within)}`;
+    if (passed) {
+      return {
+        passed, actual: worst.rel,
+        message: `every chamber's pressure and volume stay within ${pct(s.band)} of their final values ${after} (largest deviation ${pct(worst.rel)}${worst.key ? `, ${worst.key} at t = ${time(worst.t)}` : ''})`,
+      };
+    }
+    const kind: DisplayKind = worst.key.endsWith('.pressure') ? 'pressure' : 'volume';
+    return {
+      passed, actual: worst.rel,
+      message: `${worst.key} is ${pct(worst.rel)} from its final value ${fmt(worst.fin, kind)} at t = ${time(worst.t)}; expected within ${pct(s.band)} ${after}`,
+    };
+  }
 }

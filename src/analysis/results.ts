@@ -38,6 +38,39 @@ export interface RunStats {
   wall_ms: number;
 }
 
+/**
+ * How one group of chambers (joined by branches that pass gas at some time) ends the run;
+ * see analysis/outcome.ts for the criteria.
+ */
+export interface GroupOutcome {
+  chambers: string[];
+  /** No reservoir and no feed: the group conserves its gas. */
+  closed: boolean;
+  outcome: 'settled' | 'moving' | 'diverging' | 'oscillating';
+  /** Time after which every chamber stays within the band of its final pressure and volume (s); settled only. */
+  settling_time: number | null;
+  /** Band as a fraction of each signal's excursion from its final value. */
+  band: number;
+  /** Rate at which the departure from the start grows (diverging), 1/s. */
+  growth_rate?: number;
+  /** Period of the oscillation (oscillating), s. */
+  period?: number;
+  evidence: string;
+}
+
+/** Why and where a run stopped early (status `failed`); see analysis/fault.ts. */
+export interface RunFault {
+  /** The element most likely at fault, or null (e.g. when interrupted). */
+  element: string | null;
+  kind: 'chamber' | 'line' | 'valve' | 'reservoir' | null;
+  /** Time reached, s. */
+  t: number;
+  /** What stopped the run: the integrator's status, a budget, or the user. */
+  cause: 'non-finite' | 'step-too-small' | 'singular' | 'budget-steps' | 'budget-wall' | 'interrupted' | 'stopped' | 'max-steps';
+  /** The likely cause, in words. */
+  likely: string;
+}
+
 export interface RunResult {
   format: 1;
   title: string;
@@ -53,6 +86,10 @@ export interface RunResult {
   events: { t: number; what: string }[];
   warnings: string[];
   expectations: ExpectationResult[];
+  /** Set when the run stopped early (status `failed`): the element, the time and a likely cause. */
+  fault?: RunFault;
+  /** How each group of chambers ends the run (always set by `simulate`). */
+  outcomes?: GroupOutcome[];
   trace: Trace;
   /** Ambient pressure (Pa) used for gauge values, for printing. */
   ambient: number;

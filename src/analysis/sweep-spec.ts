@@ -35,6 +35,8 @@ export interface ScalarValue {
   /** The unit as written back: `mm`, `kPa`, `%`, or '' for a bare number. */
   unit: string;
   reference?: PressureReference;
+  /** A standard volume flow (ISO 8778), written with `ANR` after the unit. */
+  anr?: boolean;
   /** SI value (Pa gauge or abs for pressures, 0..1 for `%`). */
   si: number;
   /** SI unit for column headers: `m`, `Pa gauge`, `-`. */
@@ -44,7 +46,7 @@ export interface ScalarValue {
 }
 
 /** Maps x in one unit to SI: si = offset + factor·x (affine for °C and °F). */
-interface UnitMap { unit: string; reference?: PressureReference; offset: number; factor: number; siLabel: string; base: number[] }
+interface UnitMap { unit: string; reference?: PressureReference; anr?: boolean; offset: number; factor: number; siLabel: string; base: number[] }
 
 export interface Distribution {
   kind: 'normal' | 'uniform';
@@ -102,6 +104,11 @@ function problem(code: string, message: string, hint: string, path: string[] = [
   return { code, severity: 'error', message, file: '--vary', line: 0, column: 0, path, hint };
 }
 
+/** What follows the unit: `gauge`, `abs`, `ANR` or nothing. */
+function qualifier(v: ScalarValue): string {
+  return v.anr ? 'ANR' : v.reference ?? '';
+}
+
 function sameBase(a: number[], b: number[]): boolean {
   return a.length === b.length && a.every((x, i) => x === b[i]);
 }
@@ -113,10 +120,11 @@ function numberText(x: number, digits?: number): string {
 }
 
 /** The netlist text for x in a unit map's unit. */
-export function valueText(x: number, map: Pick<UnitMap, 'unit' | 'reference'>, digits?: number): string {
+export function valueText(x: number, map: Pick<UnitMap, 'unit' | 'reference' | 'anr'>, digits?: number): string {
   const n = numberText(x, digits);
   if (map.unit === '%') return `${n}%`;
   const u = map.unit ? `${n} ${map.unit}` : n;
+  if (map.anr) return `${u} ANR`;
   return map.reference ? `${u} ${map.reference}` : u;
 }
 
@@ -128,12 +136,14 @@ export function readScalar(text: string): { ok: true; value: ScalarValue } | { o
     const x = Number(pct[1]);
     return { ok: true, value: { x, unit: '%', si: x / 100, siLabel: '-', base: new Array<number>(9).fill(0) } };
   }
-  const { body, reference } = splitQualifier(t);
+  const anrMatch = /^(.*\S)\s+ANR$/i.exec(t);
+  const anr = anrMatch !== null;
+  const { body, reference } = anrMatch ? { body: anrMatch[1], reference: undefined } : splitQualifier(t);
   const r = readUnit(body);
   if (!r.ok) return { ok: false, message: r.message, hint: r.hint };
   const u = r.unit;
   if (u.units.length === 0) {
-    if (reference) return { ok: false, message: `\`${t}\` says ${reference} but has no pressure unit`, hint: 'write e.g. `20 kPa gauge`' };
+    if (reference || anr) return { ok: false, message: `\`${t}\` says ${anr ? 'ANR' : reference} but has no unit`, hint: anr ? 'write e.g. `10 L/min ANR`' : 'write e.g. `20 kPa gauge`' };
     const x = u.toNumber();
     return { ok: true, value: { x, unit: '', si: x, siLabel: '-', base: new Array<number>(9).fill(0) } };
   }
@@ -142,8 +152,11 @@ export function readScalar(text: string): { ok: true; value: ScalarValue } | { o
   const dim = nameDimension(u.dimensions);
   const siUnit = dim ? DIMENSIONS[dim].si : u.toSI().formatUnits();
   const si = u.toNumber(siUnit);
-  const label = dim === 'pressure' && reference ? `Pa ${reference}` : siUnit;
-  return { ok: true, value: { x, unit, reference, si, siLabel: label, base: u.dimensions.slice() } };
+  const label = anr ? `${siUnit} ANR` : dim === 'pressure' && reference ? `${siUnit} ${reference}` : siUnit;
+  const value: ScalarValue = { x, unit, si, siLabel: label, base: u.dimensions.slice() };
+  if (reference) value.reference = reference;
+  if (anr) value.anr = true;
+  return { ok: true, value };
 }
 
 function unitMap(v: ScalarValue): UnitMap {
@@ -153,7 +166,7 @@ function unitMap(v: ScalarValue): UnitMap {
   const siUnit = dim ? DIMENSIONS[dim].si : mathUnit(`1 ${v.unit}`).toSI().formatUnits();
   const at = (x: number): number => mathUnit(`${x} ${v.unit}`).toNumber(siUnit);
   const offset = at(0);
-  return { unit: v.unit, reference: v.reference, offset, factor: at(1) - offset, siLabel: v.siLabel, base: v.base };
+  return { unit: v.unit, reference: v.reference, anr: v.anr, offset, factor: at(1) - offset, siLabel: v.siLabel, base: v.base };
 }
 
 /** x (in `map.unit`) → SI. */
@@ -161,7 +174,7 @@ function toSi(map: UnitMap, x: number): number {
   return map.offset + map.factor * x;
 }
 
-/** Reads b as a number in a's unit: same dimension and the same pressure reference. */
+/** Reads b as a number in a's unit: same dimension and the same qualifier (gauge, abs, ANR). */
 function inUnitOf(a: ScalarValue, bText: string, what: string, allowRelative: boolean, difference: boolean): { ok: true; x: number } | { ok: false; message: string; hint: string } {
   const t = bText.trim();
   if (allowRelative && /%$/.test(t)) {
@@ -179,8 +192,8 @@ function inUnitOf(a: ScalarValue, bText: string, what: string, allowRelative: bo
   }
   if (b.unit === '' && a.unit !== '') return { ok: false, message: `${what} \`${t}\` has no unit`, hint: `write it with a unit, e.g. \`${valueText(b.x, a)}\`` };
   if (!sameBase(a.base, b.base)) return { ok: false, message: `${what} \`${t}\` is not the same kind of quantity as \`${valueText(a.x, a)}\``, hint: UNIT_HINT };
-  if (!difference && (a.reference ?? '') !== (b.reference ?? '')) {
-    return { ok: false, message: `${what} \`${t}\` and \`${valueText(a.x, a)}\` must both be gauge or both absolute`, hint: 'give both the same qualifier' };
+  if (!difference && qualifier(a) !== qualifier(b)) {
+    return { ok: false, message: `${what} \`${t}\` and \`${valueText(a.x, a)}\` must carry the same qualifier`, hint: 'write both gauge, both abs (or both ANR)' };
   }
   if (difference && b.reference === 'abs') return { ok: false, message: `${what} \`${t}\` is a difference of pressures and cannot be absolute`, hint: 'write a plain pressure, e.g. `1 kPa`' };
   if (a.unit === '') return { ok: true, x: b.x };
@@ -273,7 +286,7 @@ function readList(arg: string, path: string, body: string): Result<VarySpec> {
   const withUnit = numbers.find((v) => v.unit !== '' && v.unit !== '%') ?? numbers[0];
   for (const v of numbers) {
     const bare = v.unit === '' && withUnit.unit !== '';
-    if (!bare && (!sameBase(v.base, withUnit.base) || (v.reference ?? '') !== (withUnit.reference ?? '') || (v.unit === '%') !== (withUnit.unit === '%'))) {
+    if (!bare && (!sameBase(v.base, withUnit.base) || qualifier(v) !== qualifier(withUnit) || (v.unit === '%') !== (withUnit.unit === '%'))) {
       return { ok: false, diagnostics: [problem('vary-value', `${path}: the values of \`${body}\` are not all the same kind of quantity`, 'give every value of one --vary in units of the same dimension (and the same gauge/abs)', [path])] };
     }
   }

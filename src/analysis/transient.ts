@@ -8,9 +8,11 @@ import { rosenbrock } from '../solve/rosenbrock.js';
 import { odex } from '../solve/odex.js';
 import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
-import { evaluateExpectations, type Recording } from './expectations.js';
-import type { ChamberSummary, LineSummary, RunResult, ValveSummary } from './results.js';
+import { ExpectationMonitor } from './expectations.js';
+import { diagnoseFault } from './fault.js';
+import type { ChamberSummary, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
+import { classifyOutcomes } from './outcome.js';
 
 export interface SimulateOptions {
   /** Polled every step; return a message to stop (e.g. on Ctrl-C). */
@@ -19,6 +21,11 @@ export interface SimulateOptions {
   progress?: (t: number, tEnd: number) => void;
 }
 
+/**
+ * Step budget when the netlist sets no `max-steps`, so that no run goes on for ever.
+ * Generous: the example networks take a few thousand steps.
+ */
+const DEFAULT_MAX_STEPS = 1_000_000;
 /** Number of samples when the netlist gives no `sample`. */
 const DEFAULT_SAMPLES = 1000;
 /** Relative mass drift above which a run warns (the integrators conserve mass to round-off). */
@@ -44,14 +51,16 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const sys = new NetworkSystem(model);
   const y0 = sys.initialState();
   sys.settleInitialModes(0, y0);
-  const { integrator, name: method } = chooseMethod(model, sys, y0);
+  const { integrator, name: chosen } = chooseMethod(model, sys, y0);
   const duration = model.simulate.duration;
   const sample = model.simulate.sample ?? duration / DEFAULT_SAMPLES;
   const channels = sys.channels();
   const nch = channels.length;
   const keys = new Map(channels.map((c, i) => [c.key, i] as const));
   const trace = { channels, times: [] as number[], values: channels.map(() => [] as number[]) };
-  const rec: Recording = { keys, times: [], rows: [] };
+  // expectations are judged on the dense output inside every step, not on samples
+  const monitor = new ExpectationMonitor(model.expect, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) },
+    model.chambers.map((c) => c.name), model.pa);
   const nc = model.chambers.length;
   const nb = model.branches.length;
   const peak = model.chambers.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
@@ -59,11 +68,9 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
   let lastProgress = 0;
 
+  const row = new Float64Array(nch);
   const observe = (t: number, y: Float64Array, kind: 'sample' | 'step'): void => {
-    const row = new Float64Array(nch);
     sys.observe(t, y, row);
-    rec.times.push(t);
-    rec.rows.push(row);
     if (kind === 'sample') {
       trace.times.push(t);
       for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
@@ -88,22 +95,26 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   };
 
   const r = drive(sys, {
-    integrator, t0: 0, tEnd: duration, y0, sample, observe,
-    maxSteps: model.simulate.maxSteps,
+    integrator, t0: 0,
+    // auto: an explicit start hands over to the stiff method if it meets a kink it cannot pass
+    fallback: model.simulate.method === 'auto' && integrator === odex ? rosenbrock : undefined,
+    tEnd: duration, y0, sample, observe,
+    onStep: monitor.needsSteps ? monitor.step : undefined,
+    maxSteps: model.simulate.maxSteps ?? DEFAULT_MAX_STEPS,
     maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
     interrupt: options.interrupt,
   });
+  const method = r.switchedAt !== undefined ? `${chosen}, then rodas from t = ${+r.switchedAt.toPrecision(6)} s` : chosen;
 
   let message = r.message;
+  let fault: RunFault | undefined;
   if (r.status === 'failed') {
-    sys.evaluate(r.t, r.y);
-    const who = sys.fault ? ` in chamber ${sys.fault}` : '';
-    const likely: Record<string, string> = {
-      'step-too-small': 'the step size collapsed; a likely cause is a chamber driven to zero mass or a valve switching back and forth',
-      'non-finite': `the state left the range where the laws are defined${who}; a likely cause is a chamber emptied below vacuum or inflated to its stretch lock`,
-      singular: 'the iteration matrix is singular; check for a chamber with no volume or a network with no path for gas',
-    };
-    message = `${r.message}${likely[r.cause] ? `: ${likely[r.cause]}` : ''}`;
+    // sys.fault still holds what the integrator's last evaluation (usually a rejected trial) saw
+    fault = diagnoseFault(sys, model, r.cause as RunFault['cause'], r.t, r.y, sys.fault, r.work.steps, method);
+    const base = r.cause === 'budget-steps' && model.simulate.maxSteps === undefined
+      ? `the default step budget of ${DEFAULT_MAX_STEPS} steps was used up at t = ${r.t.toPrecision(6)} s (set \`max-steps\` in \`simulate\` to change it)`
+      : r.message;
+    message = `${base}: ${fault.likely}`;
   }
 
   // final values and summaries
@@ -145,7 +156,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   });
 
   const expectations = r.status === 'completed'
-    ? evaluateExpectations(model.expect, rec, model.pa, r.t, model.chambers.map((c) => c.name))
+    ? monitor.results(r.t, yEnd)
     : [];
 
   return {
@@ -161,6 +172,8 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     events: sys.log.map((e) => ({ t: e.t, what: e.what })),
     warnings,
     expectations,
+    ...(fault ? { fault } : {}),
+    outcomes: classifyOutcomes(model, trace, sys.log),
     trace,
     ambient: model.pa,
   };

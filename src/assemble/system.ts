@@ -8,6 +8,11 @@
  * same number at another, so the sum of all mass slots is an exact invariant of the rhs:
  * mass is conserved by construction, and the integrators (linear-invariant preserving)
  * conserve it to round-off.
+ *
+ * Performance: nothing allocates in `evaluate` or `rhs`; `evaluate` remembers its last (t, y)
+ * and the valve modes, so the rhs, event functions and observers at the same point share one
+ * set of chamber solves; the jacobian is assembled element by element into a pattern reserved
+ * here (jacobian.ts), so the stiff integrator can use sparse LU on large networks.
  */
 import type { Gas } from '../physics/gas.js';
 import type { EventfulProblem } from '../solve/driver.js';
@@ -15,6 +20,8 @@ import type { Model, NodeRef } from '../model/types.js';
 import { ChamberState } from '../elements/chamber.js';
 import { BranchState, type BranchFlow } from '../elements/branch.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
+import type { SparsePattern } from '../linalg/sparse-pattern.js';
+import { NetworkJacobian } from './jacobian.js';
 
 export interface SystemEvent {
   kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch';
@@ -63,6 +70,16 @@ export class NetworkSystem implements EventfulProblem {
   /** The first element whose state left its law's range during the last evaluation. */
   fault: string | null = null;
   private readonly solved = { p: 0, V: 0, kappa: 0 };
+  /** True when some chamber has a temperature or hysteresis state (rows beyond the mass balance). */
+  private readonly energyRows: boolean;
+  /** Memo of `evaluate`: the (t, y) and relief-valve modes it last ran for. */
+  private memoValid = false;
+  private memoT = 0;
+  private readonly memoY: Float64Array;
+  private readonly reliefIdx: number[] = [];
+  private readonly memoOpen: Uint8Array;
+  /** Element-wise jacobian, built on first use. */
+  private jac: NetworkJacobian | null = null;
 
   constructor(readonly model: Model) {
     const nc = model.chambers.length;
@@ -98,6 +115,10 @@ export class NetworkSystem implements EventfulProblem {
     this.hIn = new Float64Array(nc);
     this.flows = model.branches.map(() => ({ mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const }));
     this.feedFlow = new Float64Array(model.feeds.length);
+    this.energyRows = !this.isothermal || model.chambers.some((c) => c.deflation !== undefined);
+    this.memoY = new Float64Array(this.n);
+    model.branches.forEach((b, i) => { if (b.valve?.operation.kind === 'relief') this.reliefIdx.push(i); });
+    this.memoOpen = new Uint8Array(this.reliefIdx.length);
 
     // tolerances: masses relative to the largest chamber mass, temperatures in K
     this.rtol = model.simulate.tolerance;
@@ -153,6 +174,7 @@ export class NetworkSystem implements EventfulProblem {
    * events and observers so that they all see the same numbers.
    */
   evaluate(t: number, y: Float64Array): void {
+    if (this.memoHit(t, y)) return;
     const nc = this.nc;
     this.fault = null;
     for (let i = 0; i < nc; i++) {
@@ -179,6 +201,24 @@ export class NetworkSystem implements EventfulProblem {
     for (let f = 0; f < this.feeds.length; f++) {
       this.feedFlow[f] = this.feeds[f].rate * this.feeds[f].schedule.at(t);
     }
+    this.memoT = t;
+    this.memoY.set(y);
+    for (let k = 0; k < this.reliefIdx.length; k++) this.memoOpen[k] = this.branches[this.reliefIdx[k]].open ? 1 : 0;
+    this.memoValid = true;
+  }
+
+  /** Whether the scratch already holds `evaluate(t, y)` (same t, same y, same valve modes). */
+  private memoHit(t: number, y: Float64Array): boolean {
+    if (!this.memoValid || t !== this.memoT) return false;
+    const m = this.memoY;
+    for (let k = 0; k < m.length; k++) if (y[k] !== m[k]) return false;
+    for (let k = 0; k < this.reliefIdx.length; k++) if ((this.branches[this.reliefIdx[k]].open ? 1 : 0) !== this.memoOpen[k]) return false;
+    return true;
+  }
+
+  /** Forgets the memo of `evaluate` (after anything that changes the rhs other than t and y). */
+  invalidate(): void {
+    this.memoValid = false;
   }
 
   /** The one way flows enter the balance: q (kg/s) leaves slot `a` and enters slot `b`. */
@@ -214,18 +254,11 @@ export class NetworkSystem implements EventfulProblem {
       const fd = this.feeds[f];
       this.transfer(dydt, this.feedIdx[f], -1, this.mIdx[fd.into], fd.into, this.feedFlow[f], fd.T);
     }
-    if (!this.isothermal || this.hIdx.some((k) => k >= 0)) {
-      const { R, cv, cp } = this.gas;
+    if (this.energyRows) {
       for (let i = 0; i < nc; i++) {
         const mdot = dydt[this.mIdx[i]];
         if (this.TIdx[i] >= 0) {
-          const m = y[this.mIdx[i]];
-          const T = this.T[i];
-          const p = this.p[i];
-          const kap = this.kappa[i];
-          const c = this.model.chambers[i];
-          const A = cp * this.hIn[i] - cv * T * this.mIn[i] - R * T * this.mOut[i] + c.heatTransfer * (this.Ta - T);
-          dydt[this.TIdx[i]] = (A - p * kap * R * T * mdot) / (m * cv + p * kap * m * R);
+          dydt[this.TIdx[i]] = this.temperatureRate(i, y[this.mIdx[i]], this.T[i], this.p[i], this.kappa[i], mdot);
         }
         if (this.hIdx[i] >= 0) {
           const h = y[this.hIdx[i]];
@@ -234,6 +267,52 @@ export class NetworkSystem implements EventfulProblem {
         }
       }
     }
+  }
+
+  /**
+   * Ṫ (K/s) of chamber i at mass m, temperature T, pressure p and κ, given its net inflow mdot
+   * and the direction-split inflows of the last rhs (mIn, mOut, hIn): the energy equation of
+   * elements/chamber.ts.
+   */
+  temperatureRate(i: number, m: number, T: number, p: number, kap: number, mdot: number): number {
+    const { R, cv, cp } = this.gas;
+    const c = this.model.chambers[i];
+    const A = cp * this.hIn[i] - cv * T * this.mIn[i] - R * T * this.mOut[i] + c.heatTransfer * (this.Ta - T);
+    return (A - p * kap * R * T * mdot) / (m * cv + p * kap * m * R);
+  }
+
+  // ---- jacobian -----------------------------------------------------------------------
+
+  /** Where ∂f/∂y may be nonzero (see jacobian.ts); reserved on first use. */
+  get jacobianPattern(): SparsePattern {
+    this.jac ??= new NetworkJacobian(this);
+    return this.jac.pattern;
+  }
+
+  /** ∂f/∂y at (t, y) in the order of `jacobianPattern`. */
+  jacobianSparse(t: number, y: Float64Array, values: Float64Array): void {
+    this.jac ??= new NetworkJacobian(this);
+    this.jac.compute(t, y, values);
+  }
+
+  /**
+   * True when nothing in the rhs depends on t explicitly over [t0, t1]: no valve or feed ramp
+   * under way and every reservoir pressure constant. Then ∂f/∂t = 0 needs no differencing.
+   */
+  timeInvariant(t0: number, t1: number): boolean {
+    for (const r of this.model.reservoirs) if (!r.pressure.constant) return false;
+    const still = (s: Schedule | null): boolean => {
+      if (!s) return true;
+      for (const r of s.ramps) {
+        // a ramp changes the value on [r.t0, r.t1] (a step, r.t0 = r.t1, at that instant)
+        if (r.t0 < t1 && r.t1 > t0) return false;
+        if (r.t0 === r.t1 && r.t0 > t0 && r.t0 < t1) return false;
+      }
+      return true;
+    };
+    for (const b of this.branches) if (!still(b.schedule)) return false;
+    for (const f of this.feeds) if (!still(f.schedule)) return false;
+    return true;
   }
 
   // ---- events -------------------------------------------------------------------------
@@ -277,6 +356,7 @@ export class NetworkSystem implements EventfulProblem {
 
   fireEvent(k: number, t: number, _y: Float64Array, rising: boolean): boolean {
     const e = this.events[k];
+    this.invalidate();
     const note = (what: string): void => { this.log.push({ t, what, kind: e.kind, element: e.element }); };
     switch (e.kind) {
       case 'relief': {

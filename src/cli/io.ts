@@ -1,18 +1,25 @@
 /** Output files are written whole or not at all: write a temporary sibling, then rename. */
-import { closeSync, fsyncSync, openSync, realpathSync, renameSync, unlinkSync, writeSync } from 'node:fs';
+import { closeSync, fsyncSync, openSync, realpathSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 
+/**
+ * Writes `text` to `path` through a temporary file in the same directory and a rename, so
+ * that a reader sees the old file or the new one, never a part. On any failure the temporary
+ * file is removed and the error passed on (the file at `path` is then untouched).
+ */
 export function writeAtomic(path: string, text: string): void {
   const dir = dirname(resolve(path));
   const tmp = join(dir, `.${basename(path)}.${process.pid}.tmp`);
-  const fd = openSync(tmp, 'w');
+  try { unlinkSync(tmp); } catch { /* no stale file of this process */ }
+  // 'wx' (O_EXCL) creates the file or fails: it never follows a link planted at the name
+  const fd = openSync(tmp, 'wx');
   try {
-    writeSync(fd, text);
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
-  }
-  try {
+    try {
+      writeSync(fd, text);
+      fsyncSync(fd);
+    } finally {
+      closeSync(fd);
+    }
     renameSync(tmp, path);
   } catch (e) {
     try { unlinkSync(tmp); } catch { /* already gone */ }
@@ -20,12 +27,51 @@ export function writeAtomic(path: string, text: string): void {
   }
 }
 
+/** writeAtomic for a command's output: a failure is a usage error naming the option and the file. */
+export function writeOutput(path: string, text: string, what: string): void {
+  try {
+    writeAtomic(path, text);
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(`cannot write ${what} ${path} (${code ?? String(e)}); nothing was written there`);
+  }
+}
+
+/**
+ * Checks the output paths of a command before any work: none is the netlist, none is a
+ * directory, each lies in an existing directory, and no two are the same file. `-` (standard
+ * output) and absent options are skipped. Keys are the option names, for messages.
+ */
+export function checkOutputPaths(netlist: string, outputs: Record<string, string | undefined>): void {
+  const given = Object.entries(outputs).filter((e): e is [string, string] => e[1] !== undefined && e[1] !== '-');
+  given.forEach(([option, path], i) => {
+    if (samePath(path, netlist)) throw new UsageError(`refusing to overwrite the netlist ${netlist} with ${option}`);
+    const other = given.slice(0, i).find(([, p]) => samePath(p, path));
+    if (other) throw new UsageError(`${other[0]} and ${option} name the same file ${path}`);
+    let isDir = false;
+    try { isDir = statSync(path).isDirectory(); } catch { /* does not exist yet: fine */ }
+    if (isDir) throw new UsageError(`${option} ${path} is a directory; give a file name`);
+    const dir = dirname(resolve(path));
+    let dirOk = false;
+    try { dirOk = statSync(dir).isDirectory(); } catch { /* reported below */ }
+    if (!dirOk) throw new UsageError(`${option} ${path}: the directory ${dir} does not exist`);
+  });
+}
+
 /** True when two paths name the same file (so an output never overwrites the input). */
 export function samePath(a: string, b: string): boolean {
   const real = (p: string): string => {
     try { return realpathSync(p); } catch { return resolve(p); }
   };
-  return real(a) === real(b);
+  if (real(a) === real(b)) return true;
+  // hard links: two names, one file
+  try {
+    const sa = statSync(a);
+    const sb = statSync(b);
+    return sa.ino === sb.ino && sa.dev === sb.dev;
+  } catch {
+    return false;
+  }
 }
 
 /** A user-facing error: printed without a stack trace, with an exit code. */

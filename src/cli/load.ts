@@ -1,25 +1,76 @@
 /** Reads a netlist file for a command: diagnostics printed, exit 2 on any error. */
-import { readFileSync, statSync } from 'node:fs';
-import { formatDiagnostic, loadModel, type Model } from '../index.js';
+import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
+import { formatDiagnostic, loadModel, type Diagnostic, type Model } from '../index.js';
+import { MAX_SOURCE_BYTES } from '../netlist/yaml-tree.js';
 import { UsageError } from './io.js';
 
-export function loadOrExit(file: string): Model {
-  let text: string;
+/** Diagnostics printed before the rest are only counted (a broken file can have thousands). */
+const MAX_PRINTED = 50;
+
+/**
+ * The text of a netlist file, read without ever holding more than the size limit plus one
+ * chunk: a huge file, /dev/zero or an endless pipe is refused rather than read into memory.
+ * Returns the text, or the diagnostic for an input over the limit.
+ */
+export function readNetlistFile(file: string): { text: string } | { tooLarge: Diagnostic } {
+  let fd: number;
   try {
-    if (statSync(file).isDirectory()) throw new UsageError(`${file}: is a directory, expected a netlist file (.yaml)`);
-    text = readFileSync(file, 'utf8');
+    fd = openSync(file, 'r');
   } catch (e) {
-    if (e instanceof UsageError) throw e;
     const code = (e as NodeJS.ErrnoException).code;
     throw new UsageError(`${file}: cannot read the netlist (${code === 'ENOENT' ? 'no such file' : code ?? String(e)})`);
   }
-  const m = loadModel(text, file);
+  try {
+    const st = fstatSync(fd);
+    if (st.isDirectory()) throw new UsageError(`${file}: is a directory, expected a netlist file (.yaml)`);
+    const chunks: Buffer[] = [];
+    let total = 0;
+    const chunk = Buffer.alloc(64 * 1024);
+    for (;;) {
+      let n: number;
+      try {
+        n = readSync(fd, chunk, 0, chunk.length, null);
+      } catch (e) {
+        if ((e as NodeJS.ErrnoException).code === 'EAGAIN') continue;
+        throw new UsageError(`${file}: cannot read the netlist (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
+      }
+      if (n === 0) break;
+      chunks.push(Buffer.from(chunk.subarray(0, n)));
+      total += n;
+      if (total > MAX_SOURCE_BYTES) {
+        const limit = `${MAX_SOURCE_BYTES} bytes (2 MiB)`;
+        return {
+          tooLarge: {
+            code: 'input-too-large', severity: 'error', file, line: 1, column: 1, path: [],
+            message: st.isFile() ? `the netlist is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
+            hint: 'split the network or generate a smaller netlist',
+          },
+        };
+      }
+    }
+    // invalid UTF-8 becomes U+FFFD, which the reader refuses as binary input
+    return { text: Buffer.concat(chunks).toString('utf8') };
+  } finally {
+    closeSync(fd);
+  }
+}
+
+/** Prints diagnostics to stderr, at most MAX_PRINTED of them and then a count of the rest. */
+function printDiagnostics(ds: readonly Diagnostic[]): void {
+  const shown = ds.slice(0, MAX_PRINTED).map(formatDiagnostic);
+  if (ds.length > MAX_PRINTED) shown.push(`... and ${ds.length - MAX_PRINTED} more problems not shown`);
+  if (shown.length) process.stderr.write(shown.join('\n') + '\n');
+}
+
+export function loadOrExit(file: string): Model {
+  const read = readNetlistFile(file);
+  const m = 'text' in read ? loadModel(read.text, file) : { ok: false as const, diagnostics: [read.tooLarge] };
   if (!m.ok) {
     const errs = m.diagnostics;
     const n = errs.filter((d) => d.severity === 'error').length;
-    process.stderr.write(errs.map(formatDiagnostic).join('\n') + '\n');
+    printDiagnostics(errs);
     throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${file}; nothing was simulated or written`);
   }
-  for (const w of m.warnings) process.stderr.write(formatDiagnostic(w) + '\n');
+  printDiagnostics(m.warnings);
   return m.value;
 }

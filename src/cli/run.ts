@@ -1,40 +1,53 @@
 /** `plenum run NETLIST`: simulate, print a summary, write CSV/JSON. */
-import { resultJson, simulate, summaryText, traceCsv } from '../index.js';
+import { baselineJson, resultJson, summaryText, traceCsv } from '../index.js';
 import { loadOrExit } from './load.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
+import { interruptOnSigint, simulateInterruptibly, type Interrupter } from './run-thread.js';
+import { checkPlotsDir, writePlots } from './report.js';
 
-export interface RunOptions { csv?: string; json?: string; quiet?: boolean }
+export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
 
-export function runCommand(file: string, opts: RunOptions): number {
-  for (const out of [opts.csv, opts.json]) {
+export async function runCommand(file: string, opts: RunOptions): Promise<number> {
+  for (const out of [opts.csv, opts.json, opts.baseline]) {
     if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
   }
   if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
-  const model = loadOrExit(file);
+  checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
+  if (opts.plots) checkPlotsDir(opts.plots);
+  // Ctrl-C is caught from here on: during the run it stops the simulation, which then
+  // writes what it has (exit 3); see run-thread.ts
+  const stop = interruptOnSigint();
+  try {
+    return await simulateAndWrite(file, opts, stop);
+  } finally {
+    stop.dispose();
+  }
+}
 
-  let interrupted = false;
-  const onSigint = (): void => { interrupted = true; };
-  process.on('SIGINT', onSigint);
+async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupter): Promise<number> {
+  const model = loadOrExit(file);
   const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
-  const result = simulate(model, {
-    interrupt: () => (interrupted ? 'interrupted (Ctrl-C)' : null),
-    progress: tty
-      ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
-      : undefined,
-  });
-  process.off('SIGINT', onSigint);
+  const result = await simulateInterruptibly(model, stop, tty
+    ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
+    : undefined);
   if (tty) process.stderr.write('\r\x1b[K');
 
   const toStdout = opts.json === '-' || opts.csv === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(summaryText(result));
   if (opts.json) {
     const text = resultJson(result);
-    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
+    if (opts.json === '-') process.stdout.write(text); else writeOutput(opts.json, text, '--json');
   }
   if (opts.csv) {
     const text = traceCsv(result.trace);
-    if (opts.csv === '-') process.stdout.write(text); else writeAtomic(opts.csv, text);
+    if (opts.csv === '-') process.stdout.write(text); else writeOutput(opts.csv, text, '--csv');
   }
-  if (result.status === 'failed') return 3;
+  if (opts.baseline) writeOutput(opts.baseline, baselineJson(result), '--baseline');
+  if (opts.plots) writePlots(opts.plots, model, result);
+  if (result.status === 'failed') {
+    const written = [opts.json, opts.csv, opts.baseline].some((o) => o && o !== '-') ? '; the results up to then were written' : '';
+    process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s${written}: ${result.message}\n`);
+    return 3;
+  }
   return result.expectations.every((e) => e.passed) ? 0 : 1;
 }

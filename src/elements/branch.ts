@@ -12,9 +12,9 @@
  *   discharges from → to only (never backwards).
  */
 import type { Gas } from '../physics/gas.js';
-import { tubeFlow } from '../physics/tube.js';
-import { valveFlow } from '../physics/valve-flow.js';
-import { seriesFlow } from '../physics/series.js';
+import { frictionFactor, RE_LAMINAR, tubeFlowInto, type TubeFlow } from '../physics/tube.js';
+import { valveFlowInto, type ValveFlow } from '../physics/valve-flow.js';
+import { brent } from '../physics/roots.js';
 import type { BranchModel } from '../model/types.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import type { ValveRating } from '../netlist/types.js';
@@ -37,16 +37,44 @@ export function equivalentDiameter(rating: ValveRating, gas: Gas): number {
 
 export interface BranchFlow { mdot: number; reynolds: number; choked: boolean; regime: 'laminar' | 'transitional' | 'turbulent' | 'orifice' }
 
+/** A branch flow q (kg/s) and its partial derivatives in the end pressures (Pa) and temperatures (K). */
+export interface BranchPartials { q: number; dp1: number; dp2: number; dT1: number; dT2: number }
+
+const SQRT_EPS = Math.sqrt(2.220446049250313e-16);
+
+/** A forward-difference increment of about √eps relative to `scale`, exactly representable at x. */
+function step(x: number, scale: number): number {
+  return (x + SQRT_EPS * scale) - x;
+}
+
 export class BranchState {
   readonly schedule: Schedule | null;
   /** Relief valve state. */
   open = false;
   readonly dEq: number;
+  // Scratch, so that evaluating a flow never allocates (it runs inside the rhs).
+  private readonly tube: TubeFlow = { mdot: 0, reynolds: 0, regime: 'laminar', friction: 0 };
+  private readonly valve: ValveFlow = { mdot: 0, choked: false };
+  private readonly probe: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
+  /** Arguments of the series balance `mismatch` (valve inside a line). */
+  private sA = 0;
+  private sB = 0;
+  private sT = 0;
+  private sOpening = 0;
+  /** Line flow minus valve flow at the pressure pMid between them (decreasing in pMid). */
+  private readonly mismatch: (pMid: number) => number;
 
   constructor(readonly b: BranchModel, readonly gas: Gas, readonly pa: number) {
     const op = b.valve?.operation;
     this.schedule = op?.kind === 'schedule' ? makeSchedule(op.initially, op.steps) : null;
     this.dEq = b.valve ? equivalentDiameter(b.valve.rating, gas) : b.line!.diameter;
+    this.mismatch = (pMid) => this.lineOnly(this.sA, pMid, this.sT).mdot - this.valveOnly(pMid, this.sB, this.sT, this.sT, this.sOpening).mdot;
+  }
+
+  /** Flow through the line alone (into the tube scratch). */
+  private lineOnly(p1: number, p2: number, Tup: number): TubeFlow {
+    const l = this.b.line!;
+    return tubeFlowInto(this.tube, p1, p2, Tup, this.gas, l.diameter, l.length, l.roughness);
   }
 
   /** Opening fraction 0..1 at time t (schedules and relief state; check valves are 1). */
@@ -58,28 +86,27 @@ export class BranchState {
     return 1;
   }
 
-  /** Flow from → to for the valve alone, given end pressures and temperatures. */
-  private valveOnly(p1: number, p2: number, T1: number, T2: number, opening: number): { mdot: number; choked: boolean } {
+  /** Flow from → to for the valve alone, given end pressures and temperatures (into the valve scratch). */
+  private valveOnly(p1: number, p2: number, T1: number, T2: number, opening: number): ValveFlow {
     const v = this.b.valve!;
     const op = v.operation;
-    if (opening <= 0) return { mdot: 0, choked: false };
+    const out = this.valve;
+    if (opening <= 0) { out.mdot = 0; out.choked = false; return out; }
     if (op.kind === 'check') {
       const pEff = p1 - op.cracking;
-      if (pEff <= p2) return { mdot: 0, choked: false };
-      return valveFlow(v.rating, pEff, p2, T1, T2, this.gas, opening);
+      if (pEff <= p2) { out.mdot = 0; out.choked = false; return out; }
+      return valveFlowInto(out, v.rating, pEff, p2, T1, T2, this.gas, opening);
     }
-    const r = valveFlow(v.rating, p1, p2, T1, T2, this.gas, opening);
-    if (op.kind === 'relief' && r.mdot < 0) return { mdot: 0, choked: false };
-    return r;
+    valveFlowInto(out, v.rating, p1, p2, T1, T2, this.gas, opening);
+    if (op.kind === 'relief' && out.mdot < 0) { out.mdot = 0; out.choked = false; }
+    return out;
   }
 
   flow(t: number, p1: number, p2: number, T1: number, T2: number, out: BranchFlow): void {
     const b = this.b;
     const Tup = p1 >= p2 ? T1 : T2;
-    const mu = this.gas.viscosity(Tup);
     if (!b.valve) {
-      const l = b.line!;
-      const f = tubeFlow(p1, p2, Tup, this.gas, l.diameter, l.length, l.roughness);
+      const f = this.lineOnly(p1, p2, Tup);
       out.mdot = f.mdot; out.reynolds = f.reynolds; out.choked = false; out.regime = f.regime;
       return;
     }
@@ -87,20 +114,85 @@ export class BranchState {
     if (!b.line) {
       const r = this.valveOnly(p1, p2, T1, T2, opening);
       out.mdot = r.mdot; out.choked = r.choked; out.regime = 'orifice';
-      out.reynolds = (4 * Math.abs(r.mdot)) / (Math.PI * this.dEq * mu);
+      out.reynolds = (4 * Math.abs(r.mdot)) / (Math.PI * this.dEq * this.gas.viscosity(Tup));
       return;
     }
-    const l = b.line;
     if (opening <= 0 || p1 === p2) {
       out.mdot = 0; out.reynolds = 0; out.choked = false; out.regime = 'laminar';
       return;
     }
-    // valve at the downstream end of its line; the pressure between them is solved exactly
-    const s = seriesFlow(p1, p2,
-      (a, c) => tubeFlow(a, c, Tup, this.gas, l.diameter, l.length, l.roughness).mdot,
-      (a, c) => this.valveOnly(a, c, Tup, Tup, opening).mdot);
-    const f = tubeFlow(p1, s.pMid, Tup, this.gas, l.diameter, l.length, l.roughness);
-    const v = this.valveOnly(s.pMid, p2, Tup, Tup, opening);
-    out.mdot = s.mdot; out.reynolds = f.reynolds; out.regime = f.regime; out.choked = v.choked;
+    // Valve at the downstream end of its line: the pressure between them balances the two
+    // flows (physics/series.ts, done here without allocating). The mismatch is line(p1, pMid) −
+    // valve(pMid, p2): −valve(p1, p2) at pMid = p1 and line(p1, p2) at pMid = p2, so Brent's
+    // method brackets its one root; the flow is the mean of the two, equal to round-off.
+    this.sA = p1; this.sB = p2; this.sT = Tup; this.sOpening = opening;
+    const h = this.mismatch;
+    const pMid = brent(h, p1, p2, h(p1), h(p2));
+    if (Number.isNaN(pMid)) {
+      out.mdot = Number.NaN; out.reynolds = Number.NaN; out.choked = false; out.regime = 'laminar';
+      return;
+    }
+    const f = this.lineOnly(p1, pMid, Tup);
+    const v = this.valveOnly(pMid, p2, Tup, Tup, opening);
+    out.mdot = 0.5 * (f.mdot + v.mdot); out.reynolds = f.reynolds; out.regime = f.regime; out.choked = v.choked;
+  }
+
+  /**
+   * The flow and its partial derivatives in the end states by forward differences of `flow`
+   * (increments √eps relative to the larger end pressure and to each temperature). Local and
+   * cheap: two or four extra flow evaluations. Temperature partials only when `withT`.
+   *
+   * References: Dennis & Schnabel, Numerical Methods for Unconstrained Optimization and
+   * Nonlinear Equations, 1983, §5.4 (difference increments, from memory).
+   */
+  partials(t: number, p1: number, p2: number, T1: number, T2: number, withT: boolean, out: BranchPartials): void {
+    const f = this.probe;
+    this.flow(t, p1, p2, T1, T2, f);
+    const q = f.mdot;
+    out.q = q;
+    if (!this.b.valve && !withT) {
+      this.linePressurePartials(p1, p2, f.reynolds, p1 >= p2 ? T1 : T2, out);
+      return;
+    }
+    const scale = Math.max(Math.abs(p1), Math.abs(p2), 1);
+    const d1 = step(p1, scale);
+    this.flow(t, p1 + d1, p2, T1, T2, f);
+    out.dp1 = (f.mdot - q) / d1;
+    const d2 = step(p2, scale);
+    this.flow(t, p1, p2 + d2, T1, T2, f);
+    out.dp2 = (f.mdot - q) / d2;
+    if (!withT) { out.dT1 = 0; out.dT2 = 0; return; }
+    const e1 = step(T1, T1);
+    this.flow(t, p1, p2, T1 + e1, T2, f);
+    out.dT1 = (f.mdot - q) / e1;
+    const e2 = step(T2, T2);
+    this.flow(t, p1, p2, T1, T2 + e2, f);
+    out.dT2 = (f.mdot - q) / e2;
+  }
+
+  /**
+   * ∂q/∂p1 and ∂q/∂p2 of a plain line in closed form, given the Reynolds number of its flow
+   * (physics/tube.ts): q = ±(π·D·μ/4)·Re with F(Re) = f(Re)·Re² = X = |p1² − p2²|·D³/(L·R·T·μ²), so
+   * ∂q/∂p1 = (π·D·μ/4)·2·p1·D³/(L·R·T·μ²)/F′(Re) and ∂q/∂p2 the same with −p2, in either
+   * direction. F′ = 64 in the laminar range (Hagen–Poiseuille); above it a central difference
+   * of F, whose blended friction law is C¹. A turbulent line then costs no further friction
+   * solves.
+   */
+  private linePressurePartials(p1: number, p2: number, Re: number, Tup: number, out: BranchPartials): void {
+    const l = this.b.line!;
+    const mu = this.gas.viscosity(Tup);
+    const D = l.diameter;
+    let dF = 64;
+    if (Re > RE_LAMINAR) {
+      const rel = l.roughness / D;
+      const h = Re * 1e-5;
+      const a = Re - h, b = Re + h;
+      dF = (frictionFactor(b, rel) * b * b - frictionFactor(a, rel) * a * a) / (b - a);
+    }
+    const k = ((Math.PI * D * mu) / 4) * (2 * D * D * D) / (l.length * this.gas.R * Tup * mu * mu * dF);
+    out.dp1 = k * p1;
+    out.dp2 = -k * p2;
+    out.dT1 = 0;
+    out.dT2 = 0;
   }
 }

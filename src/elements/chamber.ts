@@ -21,6 +21,11 @@ import type { WallLaw } from '../physics/wall.js';
 import type { ChamberModel } from '../model/types.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from '../model/volume.js';
 
+/** Newton iterations tried from the warm start before handing over to the safeguarded solver. */
+const WARM_NEWTON_ITER = 6;
+/** Relative step at which the warm-started Newton iteration stops. */
+const WARM_NEWTON_TOL = 1e-12;
+
 /** A measured wall blended between its inflation and deflation curves by h. */
 export function hysteresisWall(inflation: WallLaw, deflation: WallLaw): WallLaw & { h: number } {
   const a: VolumeScratch = { p: 0, dpdV: 0 };
@@ -37,6 +42,9 @@ export function hysteresisWall(inflation: WallLaw, deflation: WallLaw): WallLaw 
   return w;
 }
 
+/** ∂p/∂m (Pa/kg), ∂p/∂T (Pa/K) and ∂p/∂h (Pa) of a chamber's pressure in its own states. */
+export interface PressurePartials { dm: number; dT: number; dh: number }
+
 export class ChamberState {
   readonly wall: WallLaw & { h?: number };
   readonly lo: number;
@@ -45,6 +53,8 @@ export class ChamberState {
   Vguess: number;
   /** Mass scale of the hysteresis transition, kg. */
   readonly dmHyst: number;
+  private readonly probe: VolumeScratch = { p: 0, dpdV: 0 };
+  private readonly probe2: VolumeScratch = { p: 0, dpdV: 0 };
 
   constructor(readonly c: ChamberModel, readonly gas: Gas, readonly pa: number) {
     this.wall = c.deflation ? hysteresisWall(c.wall, c.deflation) : c.wall;
@@ -73,7 +83,9 @@ export class ChamberState {
       return;
     }
     if (this.wall.h !== undefined) this.wall.h = Math.min(1, Math.max(0, h));
-    const V = solveVolume(this.wall, this.pa, c.deadVolume, m * this.gas.R * T, this.Vguess, this.lo, this.scratch);
+    const mRT = m * this.gas.R * T;
+    let V = this.warmNewton(mRT);
+    if (Number.isNaN(V)) V = solveVolume(this.wall, this.pa, c.deadVolume, mRT, this.Vguess, this.lo, this.scratch);
     if (!Number.isFinite(V)) {
       out.V = Number.NaN; out.p = Number.NaN; out.kappa = Number.NaN;
       return;
@@ -83,5 +95,79 @@ export class ChamberState {
     out.V = V;
     out.p = this.pa + this.scratch.p;
     out.kappa = 1 / (out.p + (V + c.deadVolume) * this.scratch.dpdV);
+  }
+
+  /**
+   * The volume for mRT by plain Newton from the last solution, the common case inside an
+   * integration (the state moves little between evaluations): F(V) = (pa + Δp(V))(V + Vd) − mRT
+   * is strictly increasing (checked at build), so a converging Newton sequence has found the one
+   * root, and from a nearby start it converges quadratically. Stops once a step is below 1e-12 of
+   * the volume (even at a kink of a C¹ law the error is then at round-off). Returns NaN at any sign of trouble (a step
+   * leaving the law's range, a non-positive slope, slow convergence): the caller then runs the
+   * safeguarded solver (model/volume.ts), which also decides when no root exists.
+   *
+   * References: Press et al., Numerical Recipes, 3rd ed., §9.4 (Newton–Raphson, quadratic
+   * convergence near a simple root).
+   */
+  private warmNewton(mRT: number): number {
+    const { wall, pa, lo, scratch: s } = this;
+    const Vd = this.c.deadVolume;
+    const Vmax = wall.Vmax;
+    let V = this.Vguess;
+    if (!(V > lo && V < Vmax) || !(mRT >= 0)) return Number.NaN;
+    for (let i = 0; i < WARM_NEWTON_ITER; i++) {
+      wall.eval(V, s);
+      const f = (pa + s.p) * (V + Vd) - mRT;
+      if (f === 0) return V;
+      const d = s.dpdV * (V + Vd) + (pa + s.p);
+      if (!(d > 0)) return Number.NaN;
+      const next = V - f / d;
+      if (!(next > lo && next < Vmax)) return Number.NaN;
+      if (Math.abs(next - V) <= WARM_NEWTON_TOL * (V + Vd)) return next;
+      V = next;
+    }
+    return Number.NaN;
+  }
+
+  /**
+   * Partial derivatives of the pressure in m, T and h at a solved state (V, p, κ from `solve`).
+   * From p(V)·(V + Vd) = m·R·T: dV = κ·(R·T·dm + m·R·dT), so ∂p/∂m = p′·κ·R·T and
+   * ∂p/∂T = p′·κ·m·R (p′ = dΔp/dV); a rigid wall gives R·T/(V + Vd) and m·R/(V + Vd). For the
+   * hysteresis blend at fixed m and T, ∂p/∂h = p·κ·(Δp_infl(V) − Δp_defl(V)) inside [0, 1].
+   */
+  pressurePartials(m: number, T: number, h: number, V: number, p: number, kappa: number, out: PressurePartials): void {
+    const c = this.c;
+    const R = this.gas.R;
+    if (c.wall.rigid) {
+      const Vg = c.wall.V0 + c.deadVolume;
+      out.dm = (R * T) / Vg;
+      out.dT = (m * R) / Vg;
+      out.dh = 0;
+      return;
+    }
+    if (this.wall.h !== undefined) this.wall.h = Math.min(1, Math.max(0, h));
+    this.wall.eval(V, this.probe);
+    const slope = this.probe.dpdV;
+    out.dm = slope * kappa * R * T;
+    out.dT = slope * kappa * m * R;
+    if (c.deflation && h >= 0 && h <= 1) { // the blend is clamped to [0, 1]: flat outside
+      c.wall.eval(V, this.probe);
+      c.deflation.eval(V, this.probe2);
+      out.dh = p * kappa * (this.probe.p - this.probe2.p);
+    } else {
+      out.dh = 0;
+    }
+  }
+
+  /**
+   * `solve` at a nearby trial state (for local difference quotients) without disturbing the
+   * warm start or the hysteresis blend of the state the chamber is tracking.
+   */
+  solveAside(m: number, T: number, h: number, out: { p: number; V: number; kappa: number }): void {
+    const guess = this.Vguess;
+    const blend = this.wall.h;
+    this.solve(m, T, h, out);
+    this.Vguess = guess;
+    if (blend !== undefined) this.wall.h = blend;
   }
 }

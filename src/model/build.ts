@@ -7,7 +7,8 @@
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
 import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
-import type { ChamberSpec, NetlistDoc, SourcePos } from '../netlist/types.js';
+import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
+import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import type { BranchModel, ChamberModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
 
@@ -19,6 +20,10 @@ function diag(pos: SourcePos, code: string, message: string, hint?: string): Dia
 
 function kPa(p: number): string {
   return `${(p / 1000).toPrecision(4)} kPa`;
+}
+
+function gram(m: number): string {
+  return `${Number((m * 1000).toPrecision(4))} g`;
 }
 
 /** Bisection for Δp(V) = target on [a, b] where Δp(a) ≤ target ≤ Δp(b) or the reverse. */
@@ -62,18 +67,28 @@ function volumeForPressure(wall: WallLaw, pa: number, pAbs: number, pos: SourceP
     if (pa0 > target) break; // a pressure maximum lies below the target
   }
   const max = wall.extrema.find((e) => e.kind === 'max');
+  wall.eval(hi, s);
+  const top = s.p;
+  const flatTop = !max && wall.kind === 'measured' && top <= target;
   errs.push(diag(pos, 'start-unreachable',
     max
       ? `start pressure ${kPa(target)} gauge lies above this wall's pressure maximum of ${kPa(max.p)} gauge`
-      : `start pressure ${kPa(target)} gauge is outside this wall's range`,
+      : flatTop
+        ? `start pressure ${kPa(target)} gauge is at or above the highest pressure of the measured curve (${kPa(top)} gauge), which ends flat: the start volume would be undetermined`
+        : `start pressure ${kPa(target)} gauge is outside this wall's range`,
     max && wall.sphere
       ? `start the chamber by stretch instead (the maximum is at stretch ${wall.stretch(max.V).toFixed(4)}); a stretch beyond it starts on the falling branch`
-      : 'check the start pressure and the wall parameters'));
+      : flatTop ? 'start the chamber by volume or mass instead, or give the measured curve points up to a higher pressure' : 'check the start pressure and the wall parameters'));
   return Number.NaN;
 }
 
+/** Where a start problem is reported: the start key used (`pressure:`, `mass:`...), else the chamber. */
+function startPos(c: ChamberSpec): SourcePos {
+  return c.fieldPos[`start.${c.start.by}`] ?? c.fieldPos['start'] ?? c.pos;
+}
+
 function startVolume(c: ChamberSpec, wall: WallLaw, gas: Gas, pa: number, Vd: number, T: number, errs: Diagnostic[]): number {
-  const pos = c.fieldPos['start'] ?? c.pos;
+  const pos = startPos(c);
   const st = c.start;
   if (wall.rigid) {
     if (st.by === 'pressure' || st.by === 'mass') return wall.V0;
@@ -97,7 +112,16 @@ function startVolume(c: ChamberSpec, wall: WallLaw, gas: Gas, pa: number, Vd: nu
       return st.value;
     case 'mass': {
       const V = solveVolume(wall, pa, Vd, st.value * gas.R * T, wall.V0, vacuumVolume(wall, pa), { p: 0, dpdV: 0 });
-      if (!Number.isFinite(V)) errs.push(diag(pos, 'start-range', 'start mass is outside the wall law\'s range', 'check the mass against the wall parameters'));
+      if (!Number.isFinite(V)) {
+        errs.push(diag(pos, 'start-range', 'start mass is outside the wall law\'s range', 'check the mass against the wall parameters'));
+      } else if (wall.sphere && V < wall.V0 * (1 - 1e-12)) {
+        // the same rule as a start by stretch, volume or pressure (netlist/chambers.ts)
+        const mMin = (pa * (wall.V0 + Vd)) / (gas.R * T);
+        errs.push(diag(pos, 'start-range',
+          `the start mass ${gram(st.value)} leaves the sphere below its unstretched size (stretch ${wall.stretch(V).toFixed(3)})`,
+          `start a sphere at stretch 1 or more: at least ${gram(mMin)} of gas at this temperature; it shrinks below its unstretched size only while it empties`));
+        return Number.NaN;
+      }
       return V;
     }
   }
@@ -148,15 +172,40 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   }
 
   const chambers: ChamberModel[] = [];
+  // Large networks repeat a few chamber designs: build each wall law once (its extrema search
+  // and monotonicity scan cost thousands of evaluations) and share it, and check each
+  // (law, dead volume) pair once. Wall laws are immutable, so sharing is safe.
+  const laws = new Map<string, WallLaw>();
+  const wallFor = (spec: WallSpec): WallLaw => {
+    const key = JSON.stringify(spec);
+    let w = laws.get(key);
+    if (!w) laws.set(key, (w = makeWall(spec, pa)));
+    return w;
+  };
+  const monotone = new Map<WallLaw, Map<number, ReturnType<typeof pvMonotone>>>();
+  const monotoneFor = (w: WallLaw, Vd: number): ReturnType<typeof pvMonotone> => {
+    let byVd = monotone.get(w);
+    if (!byVd) monotone.set(w, (byVd = new Map()));
+    let r = byVd.get(Vd);
+    if (!r) byVd.set(Vd, (r = pvMonotone(w, pa, Vd)));
+    return r;
+  };
   doc.chambers.forEach((c, i) => {
     const wallPos = c.fieldPos['wall'] ?? c.pos;
     let wall: WallLaw;
     let deflation: WallLaw | undefined;
-    if (c.wall.law === 'measured' && c.wall.deflation) {
-      wall = makeWall({ law: 'measured', points: c.wall.points }, pa);
-      deflation = makeWall({ law: 'measured', points: c.wall.deflation }, pa);
-    } else {
-      wall = makeWall(c.wall, pa);
+    try {
+      if (c.wall.law === 'measured' && c.wall.deflation) {
+        wall = wallFor({ law: 'measured', points: c.wall.points });
+        deflation = wallFor({ law: 'measured', points: c.wall.deflation });
+      } else {
+        wall = wallFor(c.wall);
+      }
+    } catch (e) {
+      // The reader checks every parameter; this catches a combination the wall law still
+      // cannot use (e.g. a stiffness that underflows), so that input never crashes a run.
+      errs.push(diag(wallPos, 'wall-invalid', `the wall parameters cannot be used: ${e instanceof Error ? e.message : String(e)}`, 'check the wall parameters and their units'));
+      return;
     }
     if (wall.kind === 'linear' && vacuumVolume(wall, pa) <= 0) {
       errs.push(diag(wallPos, 'wall-range',
@@ -168,7 +217,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
     const Vd = dead[i];
     for (const w of deflation ? [wall, deflation] : [wall]) {
       if (w.rigid) continue;
-      const mono = pvMonotone(w, pa, Vd);
+      const mono = monotoneFor(w, Vd);
       if (!mono.ok) {
         errs.push(diag(wallPos, 'wall-ambiguous',
           `the gas mass is not an increasing function of volume for this wall${Vd > 0 ? ' with the tubing volume lumped into it' : ''} (near ${(mono.at ?? 0) * 1e6} mL): its state would be ambiguous`,
@@ -185,6 +234,14 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
       const s: VolumeScratch = { p: 0, dpdV: 0 };
       wall.eval(V0, s);
       m0 = ((pa + s.p) * (V0 + Vd)) / (gas.R * T0);
+    }
+    const p0 = (m0 * gas.R * T0) / (V0 + Vd);
+    if (!(p0 <= MAX_GAS_PRESSURE)) {
+      const lock = wall.kind === 'gent' ? ': the Gent wall is held at its lock stretch, where its pressure grows without bound' : '';
+      errs.push(diag(startPos(c), 'start-range',
+        `the start state needs a gas pressure of ${(p0 / 1e6).toPrecision(4)} MPa absolute, above ${MAX_GAS_PRESSURE / 1e6} MPa${lock}`,
+        'check the start value and its unit'));
+      return;
     }
     chambers.push({
       name: c.name, wall, deflation, deadVolume: Vd, V0, T0, m0,

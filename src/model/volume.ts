@@ -63,6 +63,10 @@ export function solveVolume(
     if (f < 0) a = V; else b = V;
     const d = s.dpdV * (V + Vd) + (pa + s.p);
     let next = V - f / d;
+    // Converged: a Newton step at round-off level. Tested before the bracket safeguard, which a
+    // step at round-off can leave (the bracket's ends are then round-off close to the root) and
+    // whose bisection would otherwise wander the whole bracket before stopping.
+    if (Math.abs(next - V) <= 1e-14 * (V + Vd) + 1e-300) return next > a && next < b ? next : V;
     if (!(next > a && next < b) || !Number.isFinite(next)) next = 0.5 * (a + b);
     if (Math.abs(next - V) <= 1e-14 * (V + Vd) + 1e-300) return next;
     V = next;

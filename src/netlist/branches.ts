@@ -64,6 +64,10 @@ export function readLine(ck: Checker, entry: NameEntry, names: Names): LineSpec 
     ck.error(ck.get(map, 'roughness') ?? map, 'out-of-range', '`roughness` must be much smaller than the diameter', 'typical roughness is 0 to a few µm');
     return undefined;
   }
+  if (spec.length < spec.diameter) {
+    // a stub this short is an orifice, not a tube: friction laws assume a developed flow
+    ck.warn(ck.get(map, 'length') ?? map, 'short-line', `line \`${entry.name}\` is shorter than its diameter (${spec.length} m against ${spec.diameter} m): the tube-friction law does not describe it`, 'model a short connection as a valve with an orifice, or join the chambers into one');
+  }
   return spec;
 }
 

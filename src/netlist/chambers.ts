@@ -67,6 +67,11 @@ function readPoints(ck: Checker, node: YNode, what: string): [number, number][] 
       ok = false;
       return;
     }
+    if (p + ck.ambientPa <= 0) {
+      ck.error(pn, 'out-of-range', `the pressure of point ${i + 1} is at or below vacuum (${(p / 1000).toPrecision(4)} kPa gauge against an ambient of ${(ck.ambientPa / 1000).toPrecision(4)} kPa)`, 'a measured curve gives gauge pressures above vacuum, i.e. above minus the ambient pressure');
+      ok = false;
+      return;
+    }
     if (points.length && V <= points[points.length - 1][0]) {
       ck.error(vn, 'table-order', `the volume of point ${i + 1} is not larger than the previous point's`, 'volumes must be strictly increasing');
       ok = false;
@@ -160,6 +165,30 @@ function checkStretch(ck: Checker, where: Where, lambda: number, wall: WallSpec,
   }
 }
 
+/**
+ * A sphere starts at or above its unstretched size. Below it the wall law is only the slack
+ * regime that lets an emptying chamber reach zero mass smoothly (physics/wall.ts), not a state
+ * a rubber sphere is found in, so a start there is a slip (a stretch below 1, a volume in the
+ * wrong unit, a gauge pressure with the wrong sign). A start by mass is checked in the model.
+ */
+function checkNotSlack(ck: Checker, where: Where, by: string, value: number, wall: WallSpec | undefined): boolean {
+  const hint = 'start a sphere at stretch 1 or more (0 kPa gauge or above); it shrinks below its unstretched size only while it empties';
+  if (by === 'stretch' && value < 1) {
+    ck.error(where, 'start-range', `the start stretch ${value} is below 1: the sphere would start smaller than its unstretched size`, hint);
+    return false;
+  }
+  const V0 = wall ? sphereVolume(wall) : undefined;
+  if (by === 'volume' && V0 !== undefined && value < V0 * (1 - 1e-12)) {
+    ck.error(where, 'start-range', `the start volume ${(value * 1e6).toPrecision(4)} mL is below the sphere's unstretched volume ${(V0 * 1e6).toPrecision(4)} mL`, hint);
+    return false;
+  }
+  if (by === 'pressure' && value < ck.ambientPa) {
+    ck.error(where, 'start-range', `the start pressure ${((value - ck.ambientPa) / 1000).toPrecision(4)} kPa gauge is below ambient: the sphere would start smaller than its unstretched size`, hint);
+    return false;
+  }
+  return true;
+}
+
 function readStart(ck: Checker, node: YNode, law: string | undefined, wall: WallSpec | undefined, fieldPos: Record<string, SourcePos>): { start?: StartSpec; temperature?: number } {
   const map = ck.map(node, '`start`', 'write e.g. `start: { pressure: 0 kPa gauge }`');
   if (!map) return {};
@@ -169,6 +198,7 @@ function readStart(ck: Checker, node: YNode, law: string | undefined, wall: Wall
   const v = ck.params(map, START.params);
   const temperature = v.temperature as number | undefined;
   if (given.length === 0) {
+    if (START_KEYS.some((k) => ck.wasSuggested(map, k))) return { temperature }; // a misspelt key, already reported
     ck.error(ck.missingAt(map, 'pressure'), 'missing-key', '`start` needs one of pressure, stretch, volume, mass', 'write e.g. `start: { pressure: 0 kPa gauge }`');
     return { temperature };
   }
@@ -188,6 +218,7 @@ function readStart(ck: Checker, node: YNode, law: string | undefined, wall: Wall
     ck.error(where, 'not-applicable', 'a rigid chamber’s volume is fixed by its wall', 'start it with pressure or mass');
     return { temperature };
   }
+  if (law !== undefined && isSphere(law) && !checkNotSlack(ck, where, by, value, wall)) return { temperature };
   if (wall) {
     if (by === 'stretch') checkStretch(ck, where, value, wall, 'the start stretch');
     const V0 = sphereVolume(wall);

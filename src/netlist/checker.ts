@@ -24,7 +24,7 @@ export interface Where {
 function describeBounds(b: Bounds): string {
   const parts: string[] = [];
   if (b.gt !== undefined) parts.push(`greater than ${b.gt}`);
-  if (b.ge !== undefined) parts.push(b.ge === 0 ? 'not negative' : `at least ${b.ge}`);
+  if (b.ge !== undefined) parts.push(`at least ${b.ge}`);
   if (b.lt !== undefined) parts.push(`less than ${b.lt}`);
   if (b.le !== undefined) parts.push(`at most ${b.le}`);
   return parts.join(' and ');
@@ -125,12 +125,17 @@ export class Checker {
     }
   }
 
+  /** True when an unknown key of `map` was reported as a likely misspelling of `key`. */
+  wasSuggested(map: YMap, key: string): boolean {
+    return this.suggested.get(map)?.has(key) ?? false;
+  }
+
   /**
    * Reports a missing key, unless a misspelling of it was already reported (`diamter` for
    * `diameter`: one problem, one diagnostic).
    */
   missing(map: YMap, key: string, message: string, hint: string): void {
-    if (this.suggested.get(map)?.has(key)) return;
+    if (this.wasSuggested(map, key)) return;
     this.error(this.missingAt(map, key), 'missing-key', message, hint);
   }
 

@@ -19,6 +19,8 @@ import type { YMap, YNode, YScalar } from './yaml-tree.js';
 
 const PROBE_HINT = 'write `<element>.<quantity>`, e.g. `cell_a.gauge`, `supply.flow` or `total.mass`';
 const COMPARISONS = ['below', 'above', 'near'] as const;
+/** Most output samples a run may record (a million rows; every row is kept in memory). */
+export const MAX_SAMPLES = 1_000_000;
 
 const QUANTITY_DIMENSION: Record<ProbeQuantity, Dimension> = {
   pressure: 'pressure',
@@ -44,6 +46,10 @@ export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): 
   const sample = v.sample as number | undefined;
   if (duration !== undefined && sample !== undefined && sample > duration) {
     ck.error(ck.get(map, 'sample') ?? map, 'out-of-range', `\`sample\` (${sample} s) is longer than \`duration\` (${duration} s)`, 'choose a sample interval no longer than the duration');
+    return undefined;
+  }
+  if (duration !== undefined && sample !== undefined && duration / sample > MAX_SAMPLES) {
+    ck.error(ck.get(map, 'sample') ?? map, 'too-many-samples', `\`sample\` (${sample} s) gives ${Math.ceil(duration / sample).toExponential(2)} samples over the duration, more than the limit of ${MAX_SAMPLES}`, `choose a sample interval of at least ${(duration / MAX_SAMPLES).toPrecision(3)} s`);
     return undefined;
   }
   if (duration === undefined || v.method === undefined || v.tolerance === undefined) return undefined;

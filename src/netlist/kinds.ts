@@ -356,7 +356,7 @@ export const SIMULATE: KindTable = {
     p('duration', 'time', 'simulated time', { bounds: POSITIVE }),
     opt('sample', 'time', 'output interval (≤ duration; default chosen by the solver)', { bounds: POSITIVE }),
     opt('method', 'enum', 'integrator family', { values: METHODS, default: 'auto' }),
-    opt('tolerance', 'dimensionless', 'relative tolerance', { default: 1e-6, bounds: { gt: 0, le: 0.1 } }),
+    opt('tolerance', 'dimensionless', 'relative tolerance', { default: 1e-6, bounds: { ge: 1e-12, le: 0.1 } }),
     opt('max-steps', 'integer', 'step budget: the run stops with status failed when exhausted', { bounds: POSITIVE }),
     opt('max-wall', 'time', 'wall-clock budget', { bounds: POSITIVE }),
   ],

@@ -102,20 +102,28 @@ function readReservoir(ck: Checker, entry: NameEntry, duration?: number): Reserv
 }
 
 /**
- * Warns about chambers nothing refers to. Reads the references as written (not the validated
- * branches), so that a branch with an unrelated error does not also produce this warning.
+ * A chamber that no line, valve or feed mentions is an error: sealed and alone it has nothing
+ * to do in a transient, and in practice it is a slip (a misspelt name in a line, a line left
+ * out). A chamber with only a feed is fine (a vessel being charged). The references are read
+ * as written, from every entry of the sections, including entries with other errors (a bad or
+ * duplicate name, a misspelt key), so that a slip elsewhere is not reported twice.
  */
-function warnUnconnected(ck: Checker, sections: Record<ElementKind, NameEntry[]>): void {
+function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, NameEntry[]>): void {
   const touched = new Set<string>();
-  for (const entry of [...sections.line, ...sections.valve, ...sections.feed]) {
-    if (entry.node.kind !== 'map') continue;
-    for (const e of entry.node.entries) {
-      if (['from', 'to', 'into'].includes(e.key) && e.value.kind === 'scalar') touched.add(String(e.value.value));
+  for (const key of [SECTIONS.line, SECTIONS.valve, SECTIONS.feed]) {
+    const section = ck.get(root, key);
+    if (section?.kind !== 'map') continue;
+    for (const element of section.entries) {
+      if (element.value.kind !== 'map') continue;
+      for (const e of element.value.entries) {
+        if (e.value.kind === 'scalar' && typeof e.value.value === 'string') touched.add(e.value.value.trim());
+      }
     }
   }
   for (const c of sections.chamber) {
     if (!touched.has(c.name)) {
-      ck.warn(c.where, 'unconnected-chamber', `chamber \`${c.name}\` is not connected to anything`, 'connect it with a line, a valve or a feed, or remove it');
+      ck.error(c.where, 'unconnected-chamber', `chamber \`${c.name}\` is not connected to anything`,
+        'connect it with a line, a valve or a feed, or remove it (to keep it sealed, join it to `ambient` by a valve with `initially: closed`)');
     }
   }
 }
@@ -164,7 +172,7 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   const taken = new Map<string, string>();
   const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
-  warnUnconnected(ck, sections);
+  checkConnected(ck, root, sections);
 
   const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
   const expectNode = ck.get(root, 'expect');

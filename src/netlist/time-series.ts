@@ -11,7 +11,7 @@
  *   or `abs`). t is the time in seconds; see units/expression.ts for what is allowed.
  */
 import { compileExpression } from '../units/expression.js';
-import { splitQualifier, type PressureReference } from '../units/pressure.js';
+import { MAX_GAS_PRESSURE, splitQualifier, type PressureReference } from '../units/pressure.js';
 import { readUnit } from '../units/quantity.js';
 import type { Checker } from './checker.js';
 import type { TimeSeries } from './types.js';
@@ -96,6 +96,10 @@ function readExpression(ck: Checker, node: YNode, body: string, reference: Press
         ck.error(node, Number.isFinite(p) ? 'out-of-range' : 'not-finite', `the pressure expression ${why} at t = ${t} s`, 'keep the absolute pressure at or above 0');
         return undefined;
       }
+      if (p > MAX_GAS_PRESSURE) {
+        ck.error(node, 'out-of-range', `the pressure expression reaches ${p.toPrecision(4)} Pa absolute at t = ${t} s, above ${MAX_GAS_PRESSURE / 1e6} MPa, the highest gas pressure plenum accepts`, 'check the units and exponents of the expression');
+        return undefined;
+      }
     }
   }
   return { at, breakpoints: [], constant: compiled.constant, text };
@@ -113,6 +117,13 @@ function readExpressionMap(ck: Checker, map: YMap, duration?: number): TimeSerie
   const reference: PressureReference = ref === 'gauge' ? 'gauge' : 'abs';
   return readExpression(ck, exprNode, expr, reference, `${expr} ${reference}`, duration);
 }
+
+/**
+ * Characters that only a formula has (operators, brackets, `t`, and what mathjs would read as
+ * an assignment, a call, a string or an object), so that `p = 1 bar` or `f(x) = x` is refused
+ * as an expression with its reason rather than read as a strange unit.
+ */
+const FORMULA = /[-+*/^()=<>!?:;,'"[\]{}]|\bt\b/;
 
 /**
  * True when `body` is a single number with a unit rather than a formula. mathjs's unit
@@ -133,7 +144,7 @@ export function readPressureSeries(ck: Checker, node: YNode, duration?: number):
   if (v === undefined) return undefined;
   if (typeof v === 'number') return void ck.absolutePressure(node, '`pressure`'); // reports: no unit, no reference
   const { body, reference } = splitQualifier(v);
-  if (isPlainValue(body) || !/[-+*/^()]|\bt\b/.test(body.trim().replace(/^[-+]/, ''))) {
+  if (isPlainValue(body) || !FORMULA.test(body.trim().replace(/^[-+]/, ''))) {
     const abs = ck.absolutePressure(node, '`pressure`');
     return abs === undefined ? undefined : constantSeries(abs, v.trim());
   }

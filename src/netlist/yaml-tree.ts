@@ -114,10 +114,25 @@ const YAML_HINTS: Record<string, string> = {
   MISSING_CHAR: 'check the indentation and that every `[` and `{` is closed',
 };
 
-function fromYamlError(file: string, e: YAMLError, warning: boolean): Diagnostic {
+/**
+ * Where an unterminated quoted string opens: the parser reports the end of the input, but
+ * the quote that was never closed is the last unescaped one of its kind before that point.
+ */
+function openingQuote(source: string, e: YAMLError): number | undefined {
+  const q = /Missing closing (["'])quote/.exec(e.message)?.[1];
+  if (!q) return undefined;
+  for (let i = Math.min(e.pos[0], source.length) - 1; i >= 0; i--) {
+    if (source[i] === q && !(q === '"' && source[i - 1] === '\\')) return i;
+  }
+  return undefined;
+}
+
+function fromYamlError(file: string, e: YAMLError, warning: boolean, source: string): Diagnostic {
+  const quote = openingQuote(source, e);
   const at = e.linePos?.[0];
-  const pos = at ? { line: at.line, column: at.col } : { line: 1, column: 1 };
+  const pos = quote !== undefined ? lineColumn(source, quote) : at ? { line: at.line, column: at.col } : { line: 1, column: 1 };
   const code = e.code === 'DUPLICATE_KEY' ? 'duplicate-key' : e.code === 'TAG_RESOLVE_FAILED' || warning ? 'yaml-tag' : 'yaml-syntax';
+  if (quote !== undefined) return diag(file, code, pos, `the quoted text opened here (\`${source[quote]}\`) is never closed`, 'close the quote on the same line');
   const hint = YAML_HINTS[e.code] ?? 'check the YAML syntax near here';
   return diag(file, code, pos, yamlMessage(e), hint);
 }
@@ -142,6 +157,10 @@ function preflight(source: string, file: string): Diagnostic | undefined {
 
 class TreeBuilder {
   readonly diagnostics: Diagnostic[] = [];
+  /** The first alias found (the one reported) and how many there are. */
+  private firstAlias: Diagnostic | undefined;
+  private firstAliasText = '';
+  private aliases = 0;
   constructor(
     private readonly file: string,
     private readonly lines: LineCounter,
@@ -163,7 +182,14 @@ class TreeBuilder {
     }
     if (node === null || node === undefined) return empty;
     if (isAlias(node)) {
-      this.diagnostics.push(diag(this.file, 'yaml-alias', pos, `YAML aliases (\`*${node.source}\`) are not allowed in a netlist`, 'write the value out in full', path));
+      // One diagnostic for all aliases, with a count: a bomb has thousands.
+      if (this.aliases++ === 0) {
+        this.firstAliasText = `YAML aliases (\`*${node.source}\`) are not allowed in a netlist`;
+        this.firstAlias = diag(this.file, 'yaml-alias', pos, this.firstAliasText, 'write the value out in full', path);
+        this.diagnostics.push(this.firstAlias);
+      } else if (this.firstAlias) {
+        this.firstAlias.message = `${this.firstAliasText} (and ${this.aliases - 1} more)`;
+      }
       return empty;
     }
     if (isScalar(node)) {
@@ -176,6 +202,9 @@ class TreeBuilder {
     }
     if (isMap(node)) {
       const entries: YEntry[] = [];
+      // Duplicate keys are found here with a set (the parser's own check is pairwise, quadratic
+      // in the size of a map: seconds for a netlist with ten thousand chambers).
+      const seen = new Set<unknown>();
       for (const pair of node.items) {
         if (!isPair(pair)) continue;
         const key = pair.key;
@@ -184,6 +213,10 @@ class TreeBuilder {
           this.diagnostics.push(diag(this.file, 'yaml-complex-key', kpos, 'a key must be a plain name', 'write `name: value`', path));
           continue;
         }
+        if (seen.has(key.value)) {
+          this.diagnostics.push(diag(this.file, 'duplicate-key', kpos, 'Map keys must be unique', YAML_HINTS.DUPLICATE_KEY));
+        }
+        seen.add(key.value);
         const name = String(key.value);
         entries.push({ key: name, keyPos: kpos, value: this.build(pair.value, [...path, name], depth + 1, kpos) });
       }
@@ -204,7 +237,7 @@ export function parseYamlTree(source: string, file: string): YamlTree {
   const lines = new LineCounter();
   const doc = parseDocument(source, {
     lineCounter: lines,
-    uniqueKeys: true,
+    uniqueKeys: false, // checked in TreeBuilder, in linear time
     prettyErrors: true,
     version: '1.2',
     schema: 'core',
@@ -217,9 +250,9 @@ export function parseYamlTree(source: string, file: string): YamlTree {
     if (e.code === 'RESOURCE_EXHAUSTION') {
       if (!exhausted) diagnostics.push(diag(file, 'too-deep', { line: e.linePos?.[0].line ?? 1, column: e.linePos?.[0].col ?? 1 }, 'the YAML is nested too deeply to read', 'a netlist needs only a few levels of nesting'));
       exhausted = true;
-    } else diagnostics.push(fromYamlError(file, e, false));
+    } else diagnostics.push(fromYamlError(file, e, false, source));
   }
-  for (const w of doc.warnings) diagnostics.push(fromYamlError(file, w, true));
+  for (const w of doc.warnings) diagnostics.push(fromYamlError(file, w, true, source));
   const fatal = doc.errors.some((e) => e.code !== 'DUPLICATE_KEY');
   if (fatal) return { diagnostics };
   if (doc.contents === null || doc.contents === undefined) {

@@ -15,6 +15,8 @@ export function resultJson(r: RunResult): string {
     events: r.events,
     warnings: r.warnings,
     expectations: r.expectations.map((e) => ({ name: e.name, passed: e.passed, actual: e.actual, message: e.message })),
+    ...(r.fault ? { fault: r.fault } : {}),
+    ...(r.outcomes ? { outcomes: r.outcomes } : {}),
     title: r.title,
     ambient: r.ambient,
   };

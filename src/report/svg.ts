@@ -90,7 +90,8 @@ function niceStep(raw: number): number {
 export function niceTicks(lo: number, hi: number, target = 5): Ticks {
   if (!Number.isFinite(lo) || !Number.isFinite(hi)) { lo = 0; hi = 1; }
   if (hi < lo) [lo, hi] = [hi, lo];
-  if (hi - lo <= 1e-12 * Math.max(1, Math.abs(lo), Math.abs(hi))) {
+  // a range below a part in 10⁹ of its values is flat (round-off, not a signal)
+  if (hi - lo <= 1e-9 * Math.max(Math.abs(lo), Math.abs(hi)) || hi - lo === 0) {
     const pad = lo === 0 ? 1 : Math.abs(lo) * 0.1;
     lo -= pad;
     hi += pad;
@@ -114,8 +115,7 @@ export function tickLabel(v: number, decimals: number): string {
 export function sigText(v: number, digits = 3): string {
   if (!Number.isFinite(v)) return String(v);
   if (v === 0) return '0';
-  const s = v.toPrecision(digits);
-  const out = s.includes('e') ? String(Number(s)) : String(Number(s));
+  const out = String(Number(v.toPrecision(digits)));
   return out.startsWith('-') ? `\u2212${out.slice(1)}` : out;
 }
 
@@ -192,8 +192,8 @@ export function textWidth(s: string, fontSize: number): number {
     else if ('frtj()[]-'.includes(ch)) w += 0.36;
     else if ('mwMW'.includes(ch)) w += 0.86;
     else if (ch === ' ') w += 0.28;
-    else if (/[A-Z]/.test(ch)) w += 0.66;
-    else w += 0.56;
+    else if (/[A-Z]/.test(ch)) w += 0.7;
+    else w += 0.6;
   }
   return w * fontSize;
 }

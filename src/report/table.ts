@@ -54,6 +54,12 @@ export function summaryText(r: RunResult): string {
   }
   const m = r.mass;
   out.push(`mass: initial ${display(m.initial, 'mass')}, final ${display(m.final, 'mass')}, in through boundaries ${display(m.through_boundaries, 'mass')}, drift ${m.drift.toExponential(1)}`);
+  for (const o of r.outcomes ?? []) {
+    const when = o.outcome === 'settled' ? ` within ${o.band * 100} % by ${display(o.settling_time ?? 0, 'time')}`
+      : o.outcome === 'diverging' ? ` (growth ≈ ${o.growth_rate?.toPrecision(3)} 1/s)`
+        : o.outcome === 'oscillating' ? ` (period ≈ ${display(o.period ?? 0, 'time')})` : '';
+    out.push(`outcome: ${o.chambers.join(', ')} (${o.closed ? 'closed' : 'open'}): ${o.outcome === 'moving' ? 'still moving at the end' : o.outcome}${when}`);
+  }
   for (const w of r.warnings) out.push(`warning: ${w}`);
   if (r.expectations.length) {
     out.push('');

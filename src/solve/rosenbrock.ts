@@ -2,15 +2,16 @@
  * RODAS, the stiff integrator: a 6-stage Rosenbrock method of order 4 with an embedded order-3
  * error estimate, L-stable and stiffly accurate, with an order-3 continuous extension for dense
  * output. One jacobian and one LU factorisation of (1/(hγ))·I − J per step attempt; no Newton
- * iteration. Nothing allocates per step.
+ * iteration. Nothing allocates per step. The linear algebra (dense, or sparse for large problems
+ * that give a jacobian pattern) lives in iteration-matrix.ts.
  *
  * References: Hairer & Wanner, Solving Ordinary Differential Equations II, 2nd ed., Springer
  * 1996, §VI.4 (RODAS) and §IV.7 (Rosenbrock methods, their implementation and step control;
  * rodas.f's own header cites §IV.7 and §VI.3); Hairer's code rodas.f (version of October 28,
  * 1996), subroutines ROSCOR and ROCOE (METH = 1).
  */
-import { DenseLu } from '../linalg/dense-lu.js';
 import { FiniteJacobian } from './finite-jacobian.js';
+import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
 import {
   zeroWork,
   type DenseOutput,
@@ -119,28 +120,24 @@ class Rodas {
   readonly yNew: Float64Array;
   /** Dense output of the last accepted step; reads `q`, so valid until the next `accept`. */
   readonly dense: DenseOutput;
-  private readonly J: Float64Array;
-  private readonly E: Float64Array;
   private readonly ft: Float64Array;
   private readonly ys: Float64Array;
   private readonly k: Float64Array[];
   private readonly q: Float64Array[];
-  private readonly lu: DenseLu;
+  private readonly lu: IterationMatrix;
   private readonly fd: FiniteJacobian;
   private tOld = 0;
   private hOld = 1;
 
-  constructor(private readonly p: OdeProblem) {
+  constructor(private readonly p: OdeProblem, linearAlgebra?: IntegrateOptions['linearAlgebra']) {
     const n = (this.n = p.n);
     this.f0 = new Float64Array(n);
     this.yNew = new Float64Array(n);
-    this.J = new Float64Array(n * n);
-    this.E = new Float64Array(n * n);
     this.ft = new Float64Array(n);
     this.ys = new Float64Array(n);
     this.k = Array.from({ length: 6 }, () => new Float64Array(n));
     this.q = Array.from({ length: 4 }, () => new Float64Array(n));
-    this.lu = new DenseLu(n);
+    this.lu = makeIterationMatrix(p, linearAlgebra);
     this.fd = new FiniteJacobian(n);
     const [q0, q1, q2, q3] = this.q;
     // References: rodas.f, function CONTRO: y(t0 + s h) ≈ (1−s) y0 + s (y1 + (1−s)(q2 + s q3)).
@@ -163,16 +160,16 @@ class Rodas {
    * False when either is not finite: no step size can cure that.
    */
   linearise(t: number, y: Float64Array, h: number, tLimit: number, work: WorkCounts): boolean {
-    const { p, J } = this;
-    if (p.jacobian) {
-      J.fill(0);
-      p.jacobian(t, y, J);
-    } else {
-      work.rhs += this.fd.jacobian(p, t, y, this.f0, J);
-    }
+    const { p } = this;
+    const used = this.lu.linearise(t, y, this.f0);
     work.jacobians++;
-    work.rhs += this.fd.timeDerivative(p, t, y, this.f0, h, tLimit, this.ft);
-    return allFinite(J) && allFinite(this.ft);
+    if (used < 0) return false;
+    work.rhs += used;
+    // ∂f/∂t: zero without differencing where the problem says f does not depend on t.
+    const tFar = t + h;
+    if (p.timeInvariant?.(Math.min(t, tFar), Math.max(t, tFar))) this.ft.fill(0);
+    else work.rhs += this.fd.timeDerivative(p, t, y, this.f0, h, tLimit, this.ft);
+    return allFinite(this.ft);
   }
 
   /**
@@ -183,12 +180,9 @@ class Rodas {
    * References: rodas.f, subroutine ROSCOR (stages, embedded solution, error estimate).
    */
   attempt(t: number, y: Float64Array, h: number, tLast: number, work: WorkCounts): 'ok' | 'singular' | 'non-finite' {
-    const { n, J, E, k, ys, ft, lu, p } = this;
-    const diag = 1 / (h * GAMMA);
-    for (let i = 0; i < n * n; i++) E[i] = -J[i];
-    for (let i = 0; i < n; i++) E[i * n + i] += diag;
+    const { n, k, ys, ft, lu, p } = this;
     work.lu++;
-    if (!lu.factor(E)) return 'singular';
+    if (!lu.factor(1 / (h * GAMMA))) return 'singular';
     for (let s = 0; s < 6; s++) {
       const ks = k[s];
       if (s === 0) {
@@ -286,7 +280,7 @@ export const rosenbrock: Integrator = (problem, t0, y0, tEnd, onStep, options: I
   const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
   const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
   const tInside = justInside(tEnd, dir);
-  const st = new Rodas(problem);
+  const st = new Rodas(problem, options.linearAlgebra);
 
   if (!st.evalRhs(t, y, work)) return finish('non-finite', `rhs is not finite at the initial point t = ${t}`);
   let h = Math.min(positive(options.h0) ? options.h0 : st.initialStep(y, span), hMax);
@@ -381,12 +375,13 @@ export function rosenbrockFixedSteps(
   tEnd: number,
   steps: number,
   onStep?: StepCallback,
+  linearAlgebra?: IntegrateOptions['linearAlgebra'],
 ): IntegrateResult {
   checkArguments(problem, t0, y0, tEnd);
   if (!Number.isInteger(steps) || steps < 1) throw new RangeError(`rosenbrockFixedSteps: steps must be a positive integer, got ${steps}`);
   const work = zeroWork();
   const y = Float64Array.from(y0);
-  const st = new Rodas(problem);
+  const st = new Rodas(problem, linearAlgebra);
   let t = t0;
   const h = (tEnd - t0) / steps;
   const tInside = justInside(tEnd, Math.sign(h));

@@ -1,3 +1,5 @@
+import type { SparsePattern } from '../linalg/sparse-pattern.js';
+
 /**
  * The contract between the driver and the integrators.
  *
@@ -15,6 +17,19 @@ export interface OdeProblem {
    * When absent the integrator builds it by finite differences.
    */
   jacobian?(t: number, y: Float64Array, J: Float64Array): void;
+  /**
+   * Optional sparsity of ∂f/∂y: the positions (i, j) where it may be nonzero, diagonal
+   * included. With it the stiff integrator factorises with sparse LU when n is large and,
+   * without `jacobianSparse`, builds the jacobian by coloured finite differences.
+   */
+  jacobianPattern?: SparsePattern;
+  /** Optional ∂f/∂y at (t, y), written into values in the order of `jacobianPattern`'s entries. */
+  jacobianSparse?(t: number, y: Float64Array, values: Float64Array): void;
+  /**
+   * Optional: true when f does not depend on t explicitly anywhere in [t0, t1] (t0 ≤ t1), so
+   * that the stiff integrator may take ∂f/∂t = 0 without differencing.
+   */
+  timeInvariant?(t0: number, t1: number): boolean;
   /** Relative tolerance (scalar) and absolute tolerance per component. */
   rtol: number;
   atol: Float64Array;
@@ -48,6 +63,11 @@ export interface IntegrateOptions {
   hMax?: number;
   /** Budget of accepted + rejected steps for this call. */
   maxSteps?: number;
+  /**
+   * Linear algebra of the stiff integrator: 'auto' (default) picks sparse LU for problems with
+   * a jacobian pattern above a size threshold, dense LU otherwise.
+   */
+  linearAlgebra?: 'auto' | 'dense' | 'sparse';
 }
 
 export interface IntegrateResult {

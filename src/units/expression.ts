@@ -23,6 +23,8 @@ export type CompiledExpression = {
 };
 
 const MAX_EXPRESSION_LENGTH = 1000;
+/** Deepest bracket nesting accepted (a formula needs a handful; this bounds the parser's recursion). */
+const MAX_EXPRESSION_DEPTH = 32;
 const ANGLE = 7; // index of the angle base dimension in mathjs
 
 type Fn = (t: number) => number;
@@ -77,6 +79,17 @@ function nounOf(d: readonly number[]): string {
 
 function refuse(message: string, hint = ALLOWED_HINT): ValueError {
   return fail('expression-forbidden', message, hint);
+}
+
+/** The deepest nesting of ( [ { in `text`. */
+function bracketDepth(text: string): number {
+  let depth = 0;
+  let deepest = 0;
+  for (const c of text) {
+    if (c === '(' || c === '[' || c === '{') deepest = Math.max(deepest, ++depth);
+    else if (c === ')' || c === ']' || c === '}') depth = Math.max(0, depth - 1);
+  }
+  return deepest;
 }
 
 function isFail(x: Out): x is ValueError {
@@ -209,6 +222,8 @@ function compileNode(node: RawNode): Out {
  */
 export function compileExpression(text: string, dimension: Dimension): CompiledExpression | ValueError {
   if (text.length > MAX_EXPRESSION_LENGTH) return fail('expression-syntax', `the expression is ${text.length} characters long (at most ${MAX_EXPRESSION_LENGTH})`, 'split the signal into a time table');
+  const depth = bracketDepth(text);
+  if (depth > MAX_EXPRESSION_DEPTH) return fail('too-deep', `the expression is nested ${depth} levels deep (at most ${MAX_EXPRESSION_DEPTH})`, 'write a simpler formula, or the signal as a time table');
   let tree: RawNode;
   try {
     tree = mathParse(text) as unknown as RawNode;

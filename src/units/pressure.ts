@@ -10,6 +10,15 @@ import { fail, parseQuantity, type QuantityResult, type ValueError } from './qua
 
 export type PressureReference = 'gauge' | 'abs';
 
+/**
+ * Highest gas pressure accepted, Pa absolute (1 GPa, ten thousand bar): far beyond any
+ * pneumatic rig and beyond where the ideal-gas law means anything. Moduli are pressures too
+ * but are not gas pressures; they are bounded by PLAUSIBLE in quantity.ts.
+ */
+export const MAX_GAS_PRESSURE = 1e9;
+/** Lowest ambient pressure accepted, Pa (gauge values are read against it). */
+const MIN_AMBIENT = 100;
+
 export type PressureResult = { ok: true; abs: number; gauge: number; reference: PressureReference } | ValueError;
 
 const WORD_QUALIFIER = /^(.*?)\s*(gauge|absolute|abs|\(g\)|\(a\))\s*$/i;
@@ -64,6 +73,9 @@ export function parsePressure(text: string | number, ambientPa: number): Pressur
   if (abs < 0) {
     return fail('out-of-range', `\`${text.trim()}\` is below vacuum (${kiloPascal(abs)} absolute)`, `the lowest possible pressure is 0 kPa abs = ${kiloPascal(-ambientPa)} gauge`);
   }
+  if (abs > MAX_GAS_PRESSURE) {
+    return fail('out-of-range', `\`${text.trim()}\` is above ${MAX_GAS_PRESSURE / 1e6} MPa absolute, the highest gas pressure plenum accepts`, 'check the unit prefix and the exponent');
+  }
   return { ok: true, abs, gauge: abs - ambientPa, reference };
 }
 
@@ -79,6 +91,9 @@ export function parseAmbientPressure(text: string | number): QuantityResult {
   const q = parseQuantity(body, 'pressure');
   if (!q.ok) return q;
   if (q.value <= 0) return fail('out-of-range', `the ambient pressure must be above 0, got ${q.value} Pa`, 'write e.g. `101.325 kPa`');
+  if (q.value < MIN_AMBIENT || q.value > MAX_GAS_PRESSURE) {
+    return fail('out-of-range', `the ambient pressure must be between ${MIN_AMBIENT} Pa and ${MAX_GAS_PRESSURE / 1e6} MPa, got ${q.value.toPrecision(4)} Pa`, 'write e.g. `101.325 kPa`; model a vacuum with a reservoir at low pressure, not with the ambient');
+  }
   return q;
 }
 

@@ -20,13 +20,42 @@ export type ValueErrorCode =
   | 'pressure-reference'
   | 'expression-syntax'
   | 'expression-forbidden'
-  | 'expression-dimension';
+  | 'expression-dimension'
+  | 'too-deep';
 
 export type ValueError = { ok: false; code: ValueErrorCode; message: string; hint: string };
 export type QuantityResult = { ok: true; value: number } | ValueError;
 
 /** Longer strings are not values; refusing them keeps mathjs away from pathological input. */
 const MAX_VALUE_LENGTH = 200;
+
+/**
+ * The magnitudes plenum accepts for a non-zero value of each dimension, SI. Far outside them
+ * a value is a slip (a unit, an exponent) and the numerics would under- or overflow long
+ * before the physics means anything; the limits are wide enough for any pneumatic rig, from
+ * micro-valves to plant networks. Dimensionless numbers are bounded field by field instead.
+ */
+export const PLAUSIBLE: Partial<Record<Dimension, { lo: number; hi: number; shown: string }>> = {
+  length: { lo: 1e-9, hi: 1e5, shown: '1 nm to 100 km' },
+  area: { lo: 1e-18, hi: 1e10, shown: '1e-18 to 1e10 m²' },
+  volume: { lo: 1e-15, hi: 1e6, shown: '1e-15 m³ (1 pL) to 1e6 m³' },
+  // no lower bound: a tiny gauge or absolute pressure is simply near ambient or vacuum
+  pressure: { lo: 0, hi: 1e12, shown: 'up to 1e12 Pa' },
+  time: { lo: 1e-12, hi: 1e9, shown: '1 ps to 1e9 s (about 32 years)' },
+  temperature: { lo: 1, hi: 1e5, shown: '1 K to 1e5 K' },
+  'temperature-difference': { lo: 1e-9, hi: 1e5, shown: '1e-9 K to 1e5 K' },
+  mass: { lo: 1e-18, hi: 1e9, shown: '1e-18 kg to 1e9 kg' },
+  'mass-flow': { lo: 1e-18, hi: 1e6, shown: '1e-18 kg/s to 1e6 kg/s' },
+  'volume-flow': { lo: 1e-18, hi: 1e6, shown: '1e-18 m³/s to 1e6 m³/s' },
+  compliance: { lo: 1e-24, hi: 1e3, shown: '1e-24 m³/Pa to 1e3 m³/Pa' },
+  conductance: { lo: 1e-24, hi: 1e3, shown: '1e-24 to 1e3 m³/(s·Pa)' },
+  'heat-conductance': { lo: 1e-12, hi: 1e9, shown: '1e-12 W/K to 1e9 W/K' },
+  viscosity: { lo: 1e-9, hi: 1e3, shown: '1e-9 Pa·s to 1e3 Pa·s' },
+  'molar-mass': { lo: 1e-4, hi: 10, shown: '0.1 g/mol to 10 kg/mol' },
+};
+
+/** `NaN kPa`, `Infinity m`, `-inf`: spelled-out non-numbers, which mathjs would call unknown units. */
+const NON_NUMBER = /^[-+]?(?:nan|inf(?:inity)?)(?![A-Za-z0-9_])/i;
 
 /** Friendly spellings mathjs does not read, mapped to ones it does. */
 const SPELLINGS: [RegExp, string][] = [
@@ -65,6 +94,7 @@ export function readUnit(text: string): { ok: true; unit: Unit } | ValueError {
   const s = normaliseSpelling(text);
   if (!s) return fail('unit-syntax', 'the value is empty', 'write a number with its unit, e.g. `4 mm`');
   if (s.length > MAX_VALUE_LENGTH) return fail('unit-syntax', `the value is ${s.length} characters long`, 'write a number with its unit, e.g. `4 mm`');
+  if (NON_NUMBER.test(s)) return fail('not-finite', `\`${text.trim()}\` is not a finite number`, 'write a finite value (NaN and infinity are not values)');
   try {
     const unit = mathUnit(s);
     if (unit.value === null || unit.value === undefined) {
@@ -86,10 +116,28 @@ function checkFinite(value: number, text: string): QuantityResult {
   return fail('not-finite', `\`${text}\` is not a finite number`, 'write a finite value (.nan and .inf are not values)');
 }
 
+/** A number for messages: six significant digits, no round-off tail (-26.850000000000023 → -26.85). */
+function shownNumber(x: number): string {
+  return String(Number(x.toPrecision(6)));
+}
+
+/** Refuses a non-zero value whose magnitude lies outside PLAUSIBLE for its dimension. */
+function checkPlausible(value: number, dimension: Dimension, text: string): QuantityResult {
+  const range = PLAUSIBLE[dimension];
+  const size = Math.abs(value);
+  if (!range || value === 0 || (size >= range.lo && size <= range.hi)) return { ok: true, value };
+  const unit = DIMENSIONS[dimension].label;
+  return fail('out-of-range', `\`${text.trim()}\` (${value.toExponential(2)} ${unit}) is outside the range plenum accepts for ${DIMENSIONS[dimension].noun}: ${range.shown}`,
+    size < range.lo ? 'check the unit prefix and the exponent; the value is far too small to simulate' : 'check the unit prefix and the exponent; the value is far too large to simulate');
+}
+
 function fromBareNumber(value: number, dimension: Dimension, text: string): QuantityResult {
   const r = checkFinite(value, text);
-  if (!r.ok || dimension !== 'temperature') return r;
-  return r.value > 0 ? r : fail('out-of-range', `${r.value} K is not above absolute zero`, 'a temperature must be above 0 K, e.g. `20 degC` or `293.15 K`');
+  if (!r.ok) return r;
+  if (dimension === 'temperature' && !(r.value > 0)) {
+    return fail('out-of-range', `${shownNumber(r.value)} K is not above absolute zero`, 'a temperature must be above 0 K, e.g. `20 degC` or `293.15 K`');
+  }
+  return checkPlausible(r.value, dimension, text);
 }
 
 /**

@@ -201,10 +201,19 @@ describe('readNetlist: names and references', () => {
     expectAt(src, 'wrong-reference', 13, 14);
   });
 
-  it('a chamber connected to nothing is a warning', () => {
-    const ok = readNetlist(BASE.replace('lines:\n  vent: { from: cell, to: ambient, diameter: 1 mm, length: 1 m }\n', ''), 'rig.yaml');
-    expect(ok.ok).toBe(true);
-    if (ok.ok) expect(ok.warnings).toMatchObject([{ code: 'unconnected-chamber', severity: 'warning', line: 3, column: 3 }]);
+  it('a chamber connected to nothing is an error (an isolated chamber is almost always a slip)', () => {
+    const d = expectAt(BASE.replace('lines:\n  vent: { from: cell, to: ambient, diameter: 1 mm, length: 1 m }\n', ''), 'unconnected-chamber', 3, 3);
+    expect(d.hint).toContain('initially: closed');
+  });
+
+  it('a chamber with only a feed is connected (a vessel being charged)', () => {
+    const r = readNetlist(BASE.replace('lines:\n  vent: { from: cell, to: ambient, diameter: 1 mm, length: 1 m }\n', 'feeds:\n  pump: { into: cell, rate: 1 g/s }\n'), 'rig.yaml');
+    expect(r.ok && r.warnings).toEqual([]);
+  });
+
+  it('a reference with another error does not also make the chamber unconnected', () => {
+    const ds = problems(edit('  vent:', '  vent-1:'));
+    expect(ds.map((d) => d.code)).toEqual(['bad-name']);
   });
 });
 

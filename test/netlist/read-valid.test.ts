@@ -207,8 +207,12 @@ simulate: { duration: 1 s }
     expect(b.ok && b.value.chambers[0].start.value).toBeCloseTo(14.5 * PSI + 10000, 6);
   });
 
-  it('allows a slack sphere to start below stretch 1', () => {
-    const slack = readNetlist(minimal.replace('{ wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }', '{ wall: neo-hookean, radius: 2 cm, thickness: 1 mm, shear-modulus: 0.5 MPa, start: { stretch: 0.5 } }'), 'x.yaml');
-    expect(slack.ok && slack.value.chambers[0].start).toEqual({ by: 'stretch', value: 0.5 });
+  it('starts a sphere at stretch 1 (its unstretched size) but not below (the slack regime is for emptying only)', () => {
+    const sphere = (start: string): string => minimal.replace('{ wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }', `{ wall: neo-hookean, radius: 2 cm, thickness: 1 mm, shear-modulus: 0.5 MPa, start: ${start} }`);
+    const one = readNetlist(sphere('{ stretch: 1 }'), 'x.yaml');
+    expect(one.ok && one.value.chambers[0].start).toEqual({ by: 'stretch', value: 1 });
+    const slack = readNetlist(sphere('{ stretch: 0.5 }'), 'x.yaml');
+    expect(slack.ok).toBe(false);
+    if (!slack.ok) expect(slack.diagnostics.map((d) => d.code)).toEqual(['start-range']);
   });
 });

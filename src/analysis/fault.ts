@@ -1,0 +1,195 @@
+/**
+ * When a run stops early: which element is most likely at fault, and why, in words an
+ * engineer can act on. Called once, after the driver has given up, on the last accepted state.
+ *
+ * The checks, in order (the first that finds something wins):
+ *   1. interrupted by the user: no element.
+ *   2. a check or relief valve that switched very often: chattering.
+ *   3. a reservoir whose pressure, just after the stop, is not finite, negative or beyond the
+ *      highest gas pressure: a singular or runaway expression.
+ *   4. for a numerical fault, a chamber at the edge of its wall law's range and moving towards
+ *      it: nearly empty (under 0.1 % of its start mass) and losing gas, at a Gent lock and
+ *      gaining gas, squeezed to the end of a linear wall, or already outside; or a line or
+ *      valve whose flow is not finite. Then the chamber the integrator's last (rejected)
+ *      evaluation saw leave its range, if any.
+ *   5. otherwise the fastest element: the chamber with the largest |∂ṁ/∂m| (finite
+ *      difference on its mass) and the line or valve that makes it so; its time constant
+ *      against the duration explains a step-size collapse or a budget used up.
+ */
+import type { NetworkSystem } from '../assemble/system.js';
+import type { Model } from '../model/types.js';
+import { vacuumVolume } from '../model/volume.js';
+import { MAX_GAS_PRESSURE } from '../units/pressure.js';
+import type { RunFault } from './results.js';
+
+/** An element limits the step size when its time constant and the mean step are within this factor. */
+const LIMITING = 100;
+/** A valve that switched at least this often is called chattering. */
+const CHATTER_EVENTS = 200;
+
+type Cause = RunFault['cause'];
+
+function fmt(x: number): string {
+  if (x === 0) return '0';
+  return Math.abs(x) >= 1e-3 && Math.abs(x) < 1e6 ? String(Number(x.toPrecision(4))) : x.toExponential(2);
+}
+
+function chatter(sys: NetworkSystem): Omit<RunFault, 't' | 'cause'> | undefined {
+  const counts = new Map<string, number>();
+  for (const e of sys.log) {
+    if (e.kind === 'relief' || e.kind === 'check') counts.set(e.element, (counts.get(e.element) ?? 0) + 1);
+  }
+  let worst: [string, number] | undefined;
+  for (const c of counts) if (!worst || c[1] > worst[1]) worst = c;
+  if (!worst || worst[1] < CHATTER_EVENTS) return undefined;
+  return {
+    element: worst[0], kind: 'valve',
+    likely: `valve \`${worst[0]}\` opened and closed ${worst[1]} times: it is chattering; a likely cause is a relief band (opens-above − reseats-below) or a cracking pressure too small for the flow it passes, or a valve much larger than the chamber it relieves`,
+  };
+}
+
+function reservoirFault(model: Model, t: number): Omit<RunFault, 't' | 'cause'> | undefined {
+  const scale = Math.max(1, Math.abs(t));
+  for (const r of model.reservoirs) {
+    if (r.pressure.constant) continue;
+    for (const dt of [0, 1e-15, 1e-13, 1e-11, 1e-9, 1e-7, 1e-6]) {
+      const p = r.pressure.at(t + dt * scale);
+      if (Number.isFinite(p) && p >= 0 && p <= MAX_GAS_PRESSURE) continue;
+      const what = Number.isFinite(p) ? `${fmt(p)} Pa absolute` : 'not a finite number';
+      return {
+        element: r.name, kind: 'reservoir',
+        likely: `the pressure of reservoir \`${r.name}\` is ${what} at t = ${fmt(t + dt * scale)} s: its pressure expression has a singularity or grows without bound there; check the expression (\`${r.pressure.text}\`)`,
+      };
+    }
+  }
+  return undefined;
+}
+
+/** A chamber holding less than this share of its start mass, and losing gas, is "nearly empty". */
+const NEARLY_EMPTY = 1e-3;
+/** A chamber within this relative distance of its wall law's end of range is "at" that end. */
+const AT_END = 1e-3;
+
+/**
+ * A chamber at the edge of its wall law's range, moving towards it (or past it), or a branch
+ * whose flow is not finite, at the last accepted state.
+ */
+function rangeFault(sys: NetworkSystem, model: Model, t: number, y: Float64Array): Omit<RunFault, 't' | 'cause'> | undefined {
+  const f = new Float64Array(sys.n);
+  sys.rhs(t, y, f); // also fills p, V and the flows at (t, y)
+  for (let i = 0; i < sys.nc; i++) {
+    const c = model.chambers[i];
+    const m = y[sys.mIdx[i]];
+    const mdot = f[sys.mIdx[i]];
+    if (m < 0 || (m <= NEARLY_EMPTY * c.m0 && mdot < 0)) {
+      return {
+        element: c.name, kind: 'chamber',
+        likely: `chamber \`${c.name}\` is being emptied to zero mass (near vacuum, ${fmt(m)} kg left of ${fmt(c.m0)} kg at the start) faster than the integrator can follow; a likely cause is a large opening to a vacuum or near-vacuum node (choked outflow until the chamber is empty): use a smaller orifice or a longer line, or end the run before the chamber is empty`,
+      };
+    }
+    const V = sys.V[i];
+    const atLock = c.wall.kind === 'gent' && Number.isFinite(c.wall.Vmax) && V >= (1 - AT_END) * c.wall.Vmax && mdot > 0;
+    const squeezed = c.wall.kind === 'linear' && V <= (1 + AT_END) * vacuumVolume(c.wall, model.pa) && mdot < 0;
+    if (atLock || squeezed || !(sys.p[i] >= 0) || !Number.isFinite(V)) {
+      const why = c.wall.kind === 'gent'
+        ? 'filled to its Gent lock stretch, where the wall pressure grows without bound'
+        : c.wall.kind === 'linear' ? 'squeezed to the end of its linear wall law (the volume where its gas reaches vacuum)' : 'driven outside the range of its wall law';
+      return {
+        element: c.name, kind: 'chamber',
+        likely: `chamber \`${c.name}\` is being ${why}; a likely cause is a supply or a vent far stronger than the chamber can take: check the supply pressure, the opening and the wall parameters`,
+      };
+    }
+  }
+  for (let b = 0; b < model.branches.length; b++) {
+    if (Number.isFinite(sys.flows[b].mdot)) continue;
+    const bm = model.branches[b];
+    return {
+      element: bm.hostLine ?? bm.name, kind: bm.kind === 'line' || bm.hostLine ? 'line' : 'valve',
+      likely: `the flow through ${bm.kind} \`${bm.name}\` is not a finite number: a likely cause is an extreme pressure at one of its ends`,
+    };
+  }
+  return undefined;
+}
+
+interface Fastest { element: string; kind: 'chamber' | 'line' | 'valve'; chamber: string; tau: number }
+
+/** The chamber with the fastest own dynamics, the branch responsible, and its time constant (s). */
+function fastest(sys: NetworkSystem, model: Model, t: number, y: Float64Array): Fastest | undefined {
+  if (sys.nc === 0) return undefined;
+  const f0 = new Float64Array(sys.n);
+  const f1 = new Float64Array(sys.n);
+  sys.rhs(t, y, f0);
+  const q0 = sys.flows.map((q) => q.mdot);
+  const yp = Float64Array.from(y);
+  let best = { rate: 0, chamber: -1, branch: -1 };
+  for (let i = 0; i < sys.nc; i++) {
+    const k = sys.mIdx[i];
+    const dm = 1e-7 * Math.max(Math.abs(y[k]), model.chambers[i].m0 * 1e-6, 1e-18);
+    yp[k] = y[k] + dm;
+    sys.rhs(t, yp, f1);
+    yp[k] = y[k];
+    const rate = Math.abs((f1[k] - f0[k]) / dm);
+    if (!(rate > best.rate)) continue;
+    let branch = -1;
+    let most = 0;
+    sys.flows.forEach((q, b) => {
+      const d = Math.abs(q.mdot - q0[b]);
+      if (d > most) { most = d; branch = b; }
+    });
+    best = { rate, chamber: i, branch };
+  }
+  if (best.chamber < 0) return undefined;
+  const chamber = model.chambers[best.chamber].name;
+  if (best.branch < 0) return { element: chamber, kind: 'chamber', chamber, tau: 1 / best.rate };
+  const bm = model.branches[best.branch];
+  return { element: bm.hostLine ?? bm.name, kind: bm.kind === 'line' || bm.hostLine ? 'line' : 'valve', chamber, tau: 1 / best.rate };
+}
+
+function describeFastest(f: Fastest, duration: number): string {
+  const what = f.kind === 'chamber' ? `chamber \`${f.element}\`` : `${f.kind} \`${f.element}\` at chamber \`${f.chamber}\``;
+  return `the fastest part of the network is ${what}, with a time constant of about ${fmt(f.tau)} s against a duration of ${fmt(duration)} s`;
+}
+
+/**
+ * Explains why a run stopped at (t, y). `trialFault` is the chamber the system flagged during
+ * the integrator's last (rejected) evaluation, if any; `steps` the steps accepted so far.
+ */
+export function diagnoseFault(sys: NetworkSystem, model: Model, cause: Cause, t: number, y: Float64Array,
+  trialFault: string | null, steps: number, method: string): RunFault {
+  const at = (found: Omit<RunFault, 't' | 'cause'>): RunFault => ({ ...found, t, cause });
+  if (cause === 'interrupted') return at({ element: null, kind: null, likely: 'stopped by the user' });
+  const numerical = cause === 'non-finite' || cause === 'step-too-small' || cause === 'singular';
+  const found = chatter(sys) ?? reservoirFault(model, t)
+    ?? (numerical ? rangeFault(sys, model, t, y) : undefined);
+  if (found) return at(found);
+  if (numerical && trialFault) {
+    return at({ element: trialFault, kind: 'chamber', likely: `chamber \`${trialFault}\` left the range of its wall law during a step; a likely cause is a chamber emptied to vacuum or filled to a Gent lock` });
+  }
+  const fast = fastest(sys, model, t, y);
+  const duration = model.simulate.duration;
+  const odexUsed = method.startsWith('odex');
+  if (cause === 'budget-steps' || cause === 'budget-wall') {
+    const raise = cause === 'budget-steps' ? 'raise `max-steps`' : 'raise `max-wall`';
+    const share = t > 0 ? `; it reached ${fmt((100 * t) / duration)} % of the duration, so the whole run needs about ${fmt(duration / t)} times the budget` : '';
+    // name the fastest element only when it is what keeps the steps short: an explicit method
+    // must step within a small multiple of it (stability), an implicit one only takes steps
+    // that short while that element is busy
+    const hMean = t / Math.max(steps, 1);
+    const limits = fast !== undefined && fast.tau <= LIMITING * hMean && (odexUsed || hMean <= LIMITING * fast.tau);
+    const why = limits
+      ? `; the steps are short because ${describeFastest(fast, duration)}${odexUsed ? ': the network is stiff, use `method: implicit`' : ''}`
+      : '';
+    return at({
+      element: limits ? fast.element : null, kind: limits ? fast.kind : null,
+      likely: `the budget was too small for this run${share}: ${raise}${why}`,
+    });
+  }
+  if (!fast) return at({ element: null, kind: null, likely: 'the integrator could not continue' });
+  const advice = odexUsed
+    ? 'use `method: implicit`, or merge the chambers it joins into one'
+    : 'merge the chambers it joins into one, or check its size';
+  return at({
+    element: fast.element, kind: fast.kind,
+    likely: `${describeFastest(fast, duration)}; a likely cause is an element far faster than the rest (a very short or very wide line or valve, a tiny chamber): ${advice}`,
+  });
+}

@@ -1,0 +1,71 @@
+/**
+ * `plenum report NETLIST --out FILE.html`: simulate and write one self-contained HTML report.
+ * Also the writer of `--plots DIR` (one SVG file a figure), shared with `plenum run`.
+ * Nothing is written when the netlist is invalid (exit 2); a run that stops early still gets
+ * its report, saying so (exit 3).
+ */
+import { mkdirSync, statSync } from 'node:fs';
+import { join } from 'node:path';
+import { reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
+import { loadOrExit } from './load.js';
+import { checkOutputPaths, UsageError, writeOutput } from './io.js';
+import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
+
+export interface ReportOptions {
+  out?: string;
+  /** Directory for one SVG file a figure. */
+  plots?: string;
+  quiet?: boolean;
+  /** plenum's version, for the report's footer. */
+  version?: string;
+}
+
+/** Fails early (before simulating) when a plots directory cannot be one. */
+export function checkPlotsDir(dir: string): void {
+  let isDir = true;
+  try { isDir = statSync(dir).isDirectory(); } catch { /* absent: created after the run */ }
+  if (!isDir) throw new UsageError(`--plots ${dir} exists and is not a directory`);
+}
+
+/** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */
+export function writePlots(dir: string, model: Model, result: RunResult): string[] {
+  try {
+    mkdirSync(dir, { recursive: true });
+  } catch (e) {
+    throw new UsageError(`cannot create --plots ${dir} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
+  }
+  const figures = reportFigures(reportInput(model, result), { standalone: true });
+  return figures.map((f) => {
+    const path = join(dir, `${f.id}.svg`);
+    writeOutput(path, f.svg, '--plots');
+    return path;
+  });
+}
+
+export async function reportCommand(file: string, opts: ReportOptions): Promise<number> {
+  if (!opts.out) throw new UsageError('report needs --out FILE.html (where to write the report)');
+  if (opts.out === '-') throw new UsageError('--out needs a file name: the report is a file to open in a browser');
+  checkOutputPaths(file, { '--out': opts.out });
+  if (opts.plots) checkPlotsDir(opts.plots);
+  // Ctrl-C stops the run; the report then covers what was computed (exit 3)
+  const stop = interruptOnSigint();
+  try {
+    const model = loadOrExit(file);
+    const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
+    const result = await simulateInterruptibly(model, stop, tty
+      ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
+      : undefined);
+    if (tty) process.stderr.write('\r\x1b[K');
+    if (!opts.quiet) process.stdout.write(summaryText(result));
+    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version })), '--out');
+    const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
+    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
+    if (result.status === 'failed') {
+      process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
+      return 3;
+    }
+    return result.expectations.every((e) => e.passed) ? 0 : 1;
+  } finally {
+    stop.dispose();
+  }
+}

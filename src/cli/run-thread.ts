@@ -1,0 +1,99 @@
+/**
+ * Ctrl-C for `plenum run`: the simulation runs on a worker thread (run-worker.ts) while the
+ * main thread listens for SIGINT. The first Ctrl-C sets a shared flag; the run stops at its
+ * next step with status `failed` and everything computed so far, which the command then
+ * writes as usual (exit 3). A second Ctrl-C ends the process at once (exit 130); outputs are
+ * written by rename, so none is left half-written.
+ *
+ * When the bundled worker cannot be found (running from the TypeScript sources) the run
+ * happens on this thread, where Ctrl-C cannot interrupt it.
+ */
+import { existsSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { Worker } from 'node:worker_threads';
+import { simulate } from '../analysis/transient.js';
+import type { RunResult } from '../analysis/results.js';
+import type { Model } from '../model/types.js';
+
+/** Index of the stop flag in the shared control array. */
+export const STOP_FLAG = 0;
+
+export interface RunWorkerData {
+  source: string;
+  file: string;
+  control: SharedArrayBuffer;
+  /** Post progress messages. */
+  progress: boolean;
+}
+
+export type RunWorkerMessage =
+  | { kind: 'progress'; t: number; tEnd: number }
+  | { kind: 'result'; result: RunResult }
+  | { kind: 'error'; message: string };
+
+/** Where the bundled worker may be, relative to the module holding this code. */
+const WORKER_CANDIDATES = ['./cli/run-worker.js', './run-worker.js'];
+
+function workerFile(): string | undefined {
+  for (const rel of WORKER_CANDIDATES) {
+    const url = new URL(rel, import.meta.url);
+    if (url.protocol === 'file:' && existsSync(fileURLToPath(url))) return fileURLToPath(url);
+  }
+  return undefined;
+}
+
+/** The SIGINT handling of one command: a shared stop flag, released by `dispose`. */
+export interface Interrupter {
+  control: SharedArrayBuffer;
+  /** True once Ctrl-C was pressed. */
+  readonly requested: boolean;
+  dispose(): void;
+}
+
+/**
+ * Starts listening for Ctrl-C. Installed before the netlist is read, so that a Ctrl-C at any
+ * time after start-up stops the run rather than killing the process.
+ */
+export function interruptOnSigint(): Interrupter {
+  const control = new SharedArrayBuffer(4);
+  const flag = new Int32Array(control);
+  const onSigint = (): void => {
+    if (Atomics.load(flag, STOP_FLAG)) {
+      process.stderr.write('\nplenum: interrupted twice; stopping without writing results\n');
+      process.exit(130);
+    }
+    Atomics.store(flag, STOP_FLAG, 1);
+    process.stderr.write('\nplenum: interrupted; stopping and writing the results so far (Ctrl-C again to quit at once)\n');
+  };
+  process.on('SIGINT', onSigint);
+  return {
+    control,
+    get requested() { return Atomics.load(flag, STOP_FLAG) !== 0; },
+    dispose: () => { process.off('SIGINT', onSigint); },
+  };
+}
+
+/** Simulates `model` on a worker thread; the run stops early when the interrupter's flag is set. */
+export async function simulateInterruptibly(model: Model, stop: Interrupter, progress?: (t: number, tEnd: number) => void): Promise<RunResult> {
+  const entry = workerFile();
+  if (!entry) {
+    return simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress });
+  }
+  const data: RunWorkerData = { source: model.doc.source, file: model.doc.file, control: stop.control, progress: Boolean(progress) };
+  const worker = new Worker(entry, { workerData: data });
+  return await new Promise<RunResult>((resolve, reject) => {
+    let settled = false;
+    const finish = (f: () => void): void => {
+      if (settled) return;
+      settled = true;
+      f();
+    };
+    worker.on('message', (m: RunWorkerMessage) => {
+      if (m.kind === 'progress') progress?.(m.t, m.tEnd);
+      else if (m.kind === 'result') finish(() => resolve(m.result));
+      else finish(() => reject(new Error(m.message)));
+    });
+    worker.on('error', (e) => finish(() => reject(e)));
+    worker.on('exit', (code) => finish(() => reject(new Error(`the simulation thread ended (code ${code}) without a result`))));
+  });
+}

@@ -1,0 +1,86 @@
+/** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
+import { readFileSync, statSync } from 'node:fs';
+import { formatDiagnostic } from '../diag/diagnostic.js';
+import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
+import { samePath, UsageError, writeAtomic } from './io.js';
+
+export interface SweepCliOptions {
+  vary: string[];
+  samples?: string;
+  seed?: string;
+  jobs?: string;
+  shard?: string;
+  json?: string;
+  csv?: string;
+  quiet?: boolean;
+}
+
+function wholeNumber(text: string | undefined, option: string, min: number): number | undefined {
+  if (text === undefined) return undefined;
+  if (!/^\d+$/.test(text.trim()) || !Number.isSafeInteger(Number(text)) || Number(text) < min) {
+    throw new UsageError(`${option} ${text}: expected a whole number of at least ${min}`);
+  }
+  return Number(text);
+}
+
+function parseShard(text: string | undefined): Shard | undefined {
+  if (text === undefined) return undefined;
+  const m = /^\s*(\d+)\s*\/\s*(\d+)\s*$/.exec(text);
+  if (!m) throw new UsageError(`--shard ${text}: expected K/N, e.g. --shard 2/4`);
+  const index = Number(m[1]);
+  const count = Number(m[2]);
+  if (!(count >= 1 && index >= 1 && index <= count)) throw new UsageError(`--shard ${text}: K must be 1..N, e.g. --shard 2/4`);
+  return { index, count };
+}
+
+function readText(file: string, what: string): string {
+  try {
+    if (statSync(file).isDirectory()) throw new UsageError(`${file}: is a directory, expected ${what}`);
+    return readFileSync(file, 'utf8');
+  } catch (e) {
+    if (e instanceof UsageError) throw e;
+    const code = (e as NodeJS.ErrnoException).code;
+    throw new UsageError(`${file}: cannot read ${what} (${code === 'ENOENT' ? 'no such file' : code ?? String(e)})`);
+  }
+}
+
+export async function sweepCommand(file: string, opts: SweepCliOptions): Promise<number> {
+  for (const out of [opts.csv, opts.json]) {
+    if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
+  }
+  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  const samples = wholeNumber(opts.samples, '--samples', 1);
+  const seed = wholeNumber(opts.seed, '--seed', 0);
+  const jobs = wholeNumber(opts.jobs, '--jobs', 1);
+  const shard = parseShard(opts.shard);
+  const source = readText(file, 'the netlist');
+
+  const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
+  const r = await runSweep({
+    source, file, vary: opts.vary, samples, seed, jobs, shard,
+    progress: tty ? (done, total) => process.stderr.write(`\r  cases: ${done} of ${total}   `) : undefined,
+  });
+  if (tty) process.stderr.write('\r\x1b[K');
+  if (!r.ok) {
+    const n = r.diagnostics.filter((d) => d.severity === 'error').length;
+    throw new UsageError(`${r.diagnostics.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'}; nothing was run or written`);
+  }
+  for (const w of r.warnings) process.stderr.write(formatDiagnostic(w) + '\n');
+  const result = r.value;
+  const bad = result.cases.filter((c) => c.status !== 'completed');
+  if (bad.length) {
+    const first = bad[0];
+    process.stderr.write(`plenum: ${bad.length} of ${result.cases.length} cases did not complete (they count as outcomes); the first, case ${first.index} (${first.params.map((p) => `${p.path} = ${p.text}`).join(', ')}): ${first.status}: ${first.message.split('\n')[0]}\n`);
+  }
+  const toStdout = opts.json === '-' || opts.csv === '-';
+  if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(sweepSummaryText(result));
+  if (opts.json) {
+    const text = sweepJson(result);
+    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
+  }
+  if (opts.csv) {
+    const text = sweepCsv(result);
+    if (opts.csv === '-') process.stdout.write(text); else writeAtomic(opts.csv, text);
+  }
+  return 0;
+}

@@ -1,0 +1,55 @@
+/** `plenum trace NETLIST --vary PARAM --from A --to B`: branches of equilibria by continuation. */
+import { traceBranchesCsv, traceEquilibria, traceJson, traceText, type ValveState } from '../index.js';
+import { loadOrExit } from './load.js';
+import { samePath, UsageError, writeAtomic } from './io.js';
+
+export interface TraceCliOptions {
+  vary?: string;
+  from?: string;
+  to?: string;
+  valves?: string;
+  csv?: string;
+  json?: string;
+  step?: string;
+  starts?: string;
+  quiet?: boolean;
+}
+
+const VALVES: readonly ValveState[] = ['open', 'closed', 'end'];
+
+function positive(text: string | undefined, what: string, integer: boolean): number | undefined {
+  if (text === undefined) return undefined;
+  const x = Number(text);
+  if (!Number.isFinite(x) || x < 0 || (integer && !Number.isInteger(x)) || (!integer && x === 0)) {
+    throw new UsageError(`${what} must be ${integer ? 'a whole number' : 'a positive number'}, not \`${text}\``);
+  }
+  return x;
+}
+
+export function traceCommand(file: string, opts: TraceCliOptions): number {
+  if (!opts.vary || opts.from === undefined || opts.to === undefined) {
+    throw new UsageError('trace needs --vary PARAM --from A --to B, e.g. --vary chambers.cell_a.thickness --from "1.2 mm" --to "1.8 mm"');
+  }
+  const valves = (opts.valves ?? 'end') as ValveState;
+  if (!VALVES.includes(valves)) throw new UsageError(`--valves must be one of ${VALVES.join(', ')}, not \`${opts.valves}\``);
+  for (const out of [opts.csv, opts.json]) {
+    if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
+  }
+  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  const maxStep = positive(opts.step, '--step', false);
+  const interior = positive(opts.starts, '--starts', true);
+  const model = loadOrExit(file);
+  const r = traceEquilibria(model, { vary: opts.vary, from: opts.from, to: opts.to, valves, maxStep, interior });
+  if (!r.ok) throw new UsageError(`${r.message}\n  hint: ${r.hint}`);
+  const toStdout = opts.csv === '-' || opts.json === '-';
+  if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(traceText(r.value));
+  if (opts.json) {
+    const text = traceJson(r.value);
+    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
+  }
+  if (opts.csv) {
+    const text = traceBranchesCsv(r.value);
+    if (opts.csv === '-') process.stdout.write(text); else writeAtomic(opts.csv, text);
+  }
+  return r.value.status === 'ok' ? 0 : 3;
+}

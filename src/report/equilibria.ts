@@ -1,0 +1,145 @@
+/**
+ * Equilibria and traced branches for people (compact tables) and machines (JSON, CSV; SI).
+ */
+import type { ChamberRest, EquilibriaResult } from '../analysis/equilibria.js';
+import type { TraceResult } from '../analysis/continuation.js';
+import { display } from '../units/display.js';
+
+/** JSON has no Infinity/NaN: write them as null. */
+function json(value: unknown): string {
+  return JSON.stringify(value, (_k, v) => (typeof v === 'number' && !Number.isFinite(v) ? null : v), 2) + '\n';
+}
+
+function table(head: string[], rows: string[][]): string {
+  const w = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
+  const line = (cells: string[]): string => cells.map((c, i) => (i === 0 ? c.padStart(w[i]) : c.padEnd(w[i]))).join('  ').trimEnd();
+  return [line(head), line(w.map((n) => '-'.repeat(n))), ...rows.map(line)].join('\n');
+}
+
+function rate(x: number | null): string {
+  return x === null ? '-' : Number.isFinite(x) ? x.toPrecision(4) : 'n/a';
+}
+
+function cell(c: ChamberRest): string {
+  const size = c.stretch !== undefined ? `λ ${c.stretch.toFixed(4)}` : display(c.volume, 'volume');
+  const branch = c.branch === 'rigid' ? '' : c.branch === 'rising' ? (c.segment === 0 ? ' R' : ` R${c.segment + 1}`) : ' F';
+  return `${display(c.gauge, 'gauge').replace(' gauge', '')} ${size}${branch}`;
+}
+
+/** The printed summary of `plenum equilibria`. */
+export function equilibriaText(r: EquilibriaResult): string {
+  const out: string[] = [];
+  out.push(`${r.title}  (${r.file})`);
+  const valves = r.valves === 'end' ? 'valves as at the end of their schedules' : `valves ${r.valves}`;
+  out.push(`${valves}; gas as held at the ${r.gas === 'start' ? 'start' : 'end of the transient'}; ${r.message}`);
+  for (const g of r.groups) {
+    const what = g.kind === 'closed'
+      ? `closed, ${display(g.mass ?? 0, 'mass')} of gas`
+      : g.kind === 'open' ? `open${g.flowing.length ? `, gas passing ${g.flowing.join(', ')}` : ''}` : 'fed, no outlet';
+    const how = g.method === 'enumeration' ? `by enumeration of ${g.combinations} branch combination${g.combinations === 1 ? '' : 's'}`
+      : g.method === 'deflation' ? `by deflated Newton from ${g.combinations} starts (may be incomplete)`
+        : g.method === 'steady-flow' ? 'from the steady flow' : '';
+    out.push(`group ${g.chambers.join(', ')} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
+    for (const n of g.notes) out.push(`  note: ${n}`);
+  }
+  out.push('');
+  if (r.equilibria.length) {
+    const names = Object.keys(r.equilibria[0].chambers);
+    const reached = r.transient?.reached ?? null;
+    const rows = r.equilibria.map((e, i) => [
+      `${reached === i ? '*' : ''}${i + 1}`,
+      e.stability + (e.consistent ? '' : ' (!)'),
+      rate(e.growth_rate),
+      e.time_constant === null ? '-' : display(e.time_constant, 'time'),
+      ...names.map((n) => cell(e.chambers[n])),
+    ]);
+    out.push(table(['#', 'stability', 'growth 1/s', 'slowest τ', ...names], rows));
+    out.push('(kPa gauge; λ stretch; R rising, F falling branch of the wall curve, R3 rising again past a minimum)');
+    if (reached !== null) out.push('* the equilibrium the transient reaches');
+    r.equilibria.forEach((e, i) => {
+      for (const w of e.warnings) out.push(`(!) #${i + 1}: ${w}`);
+      for (const n of e.notes) out.push(`    #${i + 1}: ${n}`);
+    });
+    if (r.count > r.equilibria.length) out.push(`... ${r.count - r.equilibria.length} more not listed`);
+    out.push('');
+  }
+  if (r.transient) {
+    out.push(`transient (${display(r.transient.end, 'time')}): ${r.transient.message}`);
+    for (const o of r.transient.outcomes) {
+      out.push(`  ${o.chambers.join(', ')}: ${o.outcome}${o.settling_time !== null ? ` by ${display(o.settling_time, 'time')}` : ''} (${o.evidence})`);
+    }
+  }
+  for (const n of r.notes) out.push(`note: ${n}`);
+  return out.join('\n') + '\n';
+}
+
+/** The machine-readable result of `plenum equilibria` (SI units). */
+export function equilibriaJson(r: EquilibriaResult): string {
+  return json({
+    format: r.format, title: r.title, status: r.status, message: r.message,
+    valves: r.valves, gas: r.gas, heat: r.heat, ambient: r.ambient,
+    count: r.count,
+    equilibria: r.equilibria.map((e) => ({
+      chambers: e.chambers, stable: e.stable, stability: e.stability, growth_rate: e.growth_rate,
+      time_constant: e.time_constant, eigenvalues: e.eigenvalues, consistent: e.consistent,
+      warnings: e.warnings, notes: e.notes, groups: e.members,
+    })),
+    groups: r.groups.map((g) => ({
+      chambers: g.chambers, kind: g.kind, mass: g.mass, method: g.method, combinations: g.combinations,
+      complete: g.complete, flowing: g.flowing, notes: g.notes, count: g.equilibria.length,
+    })),
+    transient: r.transient,
+    notes: r.notes,
+  });
+}
+
+/** The printed summary of `plenum trace`. */
+export function traceText(r: TraceResult): string {
+  const out: string[] = [];
+  const u = r.parameter.unit ? ` ${r.parameter.unit}` : '';
+  const v = (x: number): string => `${+x.toPrecision(6)}${u}`;
+  out.push(`${r.title}  (${r.file})`);
+  out.push(`${r.parameter.vary} from ${v(r.parameter.from)} to ${v(r.parameter.to)}: ${r.message}`);
+  out.push('');
+  for (const b of r.branches) {
+    const ps = b.points.map((p) => p.parameter);
+    const stable = b.points.filter((p) => p.stable).length;
+    out.push(`branch ${b.id} (${b.chambers.join(', ')}): ${b.points.length} points, ${r.parameter.vary} ${v(Math.min(...ps))} .. ${v(Math.max(...ps))}, stable at ${stable} of them`);
+    for (const p of b.points) {
+      if (!p.special || p.special === 'end') continue;
+      const states = Object.entries(p.chambers).map(([n, c]) => `${n} ${cell(c)}`).join(', ');
+      out.push(`  ${p.special} at ${v(p.parameter)}: ${states}`);
+    }
+    out.push(`  ends: ${b.ends[0]}; ${b.ends[1]}`);
+  }
+  for (const n of r.notes) out.push(`note: ${n}`);
+  return out.join('\n') + '\n';
+}
+
+/** Traced branches as JSON (SI units; the parameter in the unit of --from/--to). */
+export function traceJson(r: TraceResult): string {
+  return json(r);
+}
+
+/** Traced branches as CSV: one row per point, chambers' columns as in `plenum run --csv`. */
+export function traceBranchesCsv(r: TraceResult): string {
+  const names: string[] = [];
+  for (const b of r.branches) for (const n of b.chambers) if (!names.includes(n)) names.push(n);
+  const u = r.parameter.unit ? ` [${r.parameter.unit}]` : '';
+  const head = ['branch', 'point', `${r.parameter.vary}${u}`, 'special', 'stable', 'growth_rate [1/s]',
+    ...names.flatMap((n) => [`${n}.gauge [Pa]`, `${n}.volume [m^3]`, `${n}.stretch [-]`, `${n}.mass [kg]`])];
+  const rows = [head.join(',')];
+  const num = (x: number | null | undefined): string => (x === null || x === undefined || !Number.isFinite(x) ? '' : String(x));
+  for (const b of r.branches) {
+    b.points.forEach((p, k) => {
+      rows.push([
+        String(b.id), String(k), num(p.parameter), p.special ?? '', p.stable ? '1' : '0', num(p.growth_rate),
+        ...names.flatMap((n) => {
+          const c = p.chambers[n];
+          return c ? [num(c.gauge), num(c.volume), num(c.stretch), num(c.mass)] : ['', '', '', ''];
+        }),
+      ].join(','));
+    });
+  }
+  return rows.join('\n') + '\n';
+}
