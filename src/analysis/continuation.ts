@@ -49,7 +49,7 @@ import { DenseLu } from '../linalg/dense-lu.js';
 import { makeWall, type WallPoint } from '../physics/wall.js';
 import { readScalar, valueText } from './sweep-spec.js';
 import {
-  groupEquilibria, groupStability, pressureOfMass, restSetup, steadyPressures,
+  groupEquilibria, groupStability, pressureOfMass, restOf, restSetup, segmentOfVolume, steadyPressures,
   type ChamberRest, type RestGroup, type RestSetup, type ValveState,
 } from './equilibria.js';
 import type { StabilityVerdict } from './stability.js';
@@ -436,14 +436,7 @@ class GroupProblem {
       const ch = setup.chambers[group.chambers[i]];
       const m = this.scale * Math.exp(x[i]);
       const r = pressureOfMass(ch, m, pa, this.s, this.guess[i] || ch.wall.V0);
-      let segment = 0;
-      if (!ch.wall.rigid) while (segment < ch.segments.length - 1 && r.V > ch.segments[segment].Vb) segment++;
-      const rest: ChamberRest = {
-        pressure: r.p, gauge: r.p - pa, volume: r.V, mass: m, segment,
-        branch: ch.wall.rigid ? 'rigid' : ch.segments[segment]?.rising === false ? 'falling' : 'rising',
-      };
-      if (ch.wall.sphere) rest.stretch = ch.wall.stretch(r.V);
-      chambers[ch.name] = rest;
+      chambers[ch.name] = restOf(ch, r.p, pa, r.V, m, ch.wall.rigid ? 0 : segmentOfVolume(ch, r.V));
       gm.push(m);
     }
     const st = groupStability(setup, group, gm, c.masses);

@@ -370,7 +370,7 @@ function chamberAt(ch: RestChamber, seg: Segment | null, p: number, pa: number, 
   return true;
 }
 
-function restOf(ch: RestChamber, p: number, pa: number, V: number, m: number, segment: number): ChamberRest {
+export function restOf(ch: RestChamber, p: number, pa: number, V: number, m: number, segment: number): ChamberRest {
   const r: ChamberRest = {
     pressure: p, gauge: p - pa, volume: V, mass: m, segment,
     branch: ch.wall.rigid ? 'rigid' : ch.segments[segment]?.rising === false ? 'falling' : 'rising',
@@ -379,7 +379,7 @@ function restOf(ch: RestChamber, p: number, pa: number, V: number, m: number, se
   return r;
 }
 
-function segmentOfVolume(ch: RestChamber, V: number): number {
+export function segmentOfVolume(ch: RestChamber, V: number): number {
   for (let i = 0; i < ch.segments.length; i++) if (V <= ch.segments[i].Vb) return i;
   return Math.max(0, ch.segments.length - 1);
 }

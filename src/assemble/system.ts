@@ -441,7 +441,8 @@ export class NetworkSystem implements EventfulProblem {
     this.evaluate(t, y);
     let k = 0;
     let total = 0;
-    this.model.chambers.forEach((c, i) => {
+    const { chambers, branches } = this.model;
+    for (let i = 0; i < chambers.length; i++) {
       const m = y[this.mIdx[i]];
       total += m;
       out[k++] = this.p[i];
@@ -449,13 +450,15 @@ export class NetworkSystem implements EventfulProblem {
       out[k++] = this.V[i];
       out[k++] = m;
       out[k++] = this.T[i];
-      if (c.wall.sphere) out[k++] = c.wall.stretch(this.V[i]);
-    });
-    this.model.branches.forEach((b, i) => {
-      out[k++] = this.flows[i].mdot;
-      out[k++] = this.flows[i].reynolds;
-      if (b.hostLine) { out[k++] = this.flows[i].mdot; out[k++] = this.flows[i].reynolds; }
-    });
+      const wall = chambers[i].wall;
+      if (wall.sphere) out[k++] = wall.stretch(this.V[i]);
+    }
+    for (let i = 0; i < branches.length; i++) {
+      const f = this.flows[i];
+      out[k++] = f.mdot;
+      out[k++] = f.reynolds;
+      if (branches[i].hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
+    }
     out[k++] = total;
   }
 

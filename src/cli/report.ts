@@ -6,7 +6,7 @@
  */
 import { mkdirSync, statSync } from 'node:fs';
 import { join } from 'node:path';
-import { reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
+import { findEquilibria, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
 import { loadOrExit } from './load.js';
 import { checkOutputPaths, UsageError, writeOutput } from './io.js';
 import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
@@ -42,6 +42,18 @@ export function writePlots(dir: string, model: Model, result: RunResult): string
   });
 }
 
+/**
+ * The equilibria for the pressure–volume chart (stable filled, unstable hollow). The report
+ * is still written without them if the analysis fails: it is an addition, not the subject.
+ */
+function restStates(model: Model): ReturnType<typeof findEquilibria>['equilibria'] | undefined {
+  try {
+    return findEquilibria(model, { transient: false }).equilibria;
+  } catch {
+    return undefined;
+  }
+}
+
 export async function reportCommand(file: string, opts: ReportOptions): Promise<number> {
   if (!opts.out) throw new UsageError('report needs --out FILE.html (where to write the report)');
   if (opts.out === '-') throw new UsageError('--out needs a file name: the report is a file to open in a browser');
@@ -57,7 +69,7 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
       : undefined);
     if (tty) process.stderr.write('\r\x1b[K');
     if (!opts.quiet) process.stdout.write(summaryText(result));
-    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version })), '--out');
+    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, equilibria: restStates(model) })), '--out');
     const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
     if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {

@@ -75,13 +75,34 @@ export function interruptOnSigint(): Interrupter {
 
 /** Simulates `model` on a worker thread; the run stops early when the interrupter's flag is set. */
 export async function simulateInterruptibly(model: Model, stop: Interrupter, progress?: (t: number, tEnd: number) => void): Promise<RunResult> {
+  return startSimulation(model.doc.source, model.doc.file, stop, progress).result(model);
+}
+
+/** A simulation started on a worker thread from the netlist text, before its model is needed here. */
+export interface StartedSimulation {
+  /** The result; `model` (loaded on this thread from the same text) is used only without a worker. */
+  result(model: Model): Promise<RunResult>;
+  /** Stops the worker (when this thread found the netlist invalid). */
+  cancel(): void;
+}
+
+/**
+ * Starts the worker on the netlist text at once. The worker reads the text itself; started
+ * before this thread reads it (for the diagnostics and the model that plots need), the two
+ * readings overlap on a machine with two cores instead of following each other, which for a
+ * large netlist saves seconds (docs/dev-performance.md).
+ */
+export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void): StartedSimulation {
   const entry = workerFile();
   if (!entry) {
-    return simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress });
+    return {
+      result: async (model) => simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress }),
+      cancel: () => {},
+    };
   }
-  const data: RunWorkerData = { source: model.doc.source, file: model.doc.file, control: stop.control, progress: Boolean(progress) };
+  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress) };
   const worker = new Worker(entry, { workerData: data });
-  return await new Promise<RunResult>((resolve, reject) => {
+  const done = new Promise<RunResult>((resolve, reject) => {
     let settled = false;
     const finish = (f: () => void): void => {
       if (settled) return;
@@ -96,4 +117,6 @@ export async function simulateInterruptibly(model: Model, stop: Interrupter, pro
     worker.on('error', (e) => finish(() => reject(e)));
     worker.on('exit', (code) => finish(() => reject(new Error(`the simulation thread ended (code ${code}) without a result`))));
   });
+  done.catch(() => {}); // observed by `result`; a cancelled run's rejection is not an error
+  return { result: () => done, cancel: () => { void worker.terminate(); } };
 }

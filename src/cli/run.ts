@@ -1,8 +1,8 @@
 /** `plenum run NETLIST`: simulate, print a summary, write CSV/JSON. */
 import { baselineJson, resultJson, summaryText, traceCsv } from '../index.js';
-import { loadOrExit } from './load.js';
+import { loadOrExit, readNetlistFile } from './load.js';
 import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
-import { interruptOnSigint, simulateInterruptibly, type Interrupter } from './run-thread.js';
+import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
 import { checkPlotsDir, writePlots } from './report.js';
 
 export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
@@ -25,11 +25,21 @@ export async function runCommand(file: string, opts: RunOptions): Promise<number
 }
 
 async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupter): Promise<number> {
-  const model = loadOrExit(file);
   const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
-  const result = await simulateInterruptibly(model, stop, tty
-    ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
-    : undefined);
+  const progress = tty
+    ? (t: number, tEnd: number): void => { process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `); }
+    : undefined;
+  // The worker starts on the text while this thread reads it too (see startSimulation).
+  const text = readNetlistFile(file);
+  const started = 'text' in text ? startSimulation(text.text, file, stop, progress) : undefined;
+  let model;
+  try {
+    model = loadOrExit(file);
+  } catch (e) {
+    started?.cancel();
+    throw e;
+  }
+  const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
   if (tty) process.stderr.write('\r\x1b[K');
 
   const toStdout = opts.json === '-' || opts.csv === '-';

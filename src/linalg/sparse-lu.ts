@@ -32,7 +32,7 @@ import { patternSize, type SparsePattern } from './sparse-pattern.js';
 /** A pivot at most this fraction of its row's largest entry counts as zero. */
 const PIVOT_TOL = 1e-13;
 /** Largest accepted ratio of a row of U to the same row of the matrix (element growth). */
-const GROWTH_LIMIT = 1e10;
+const GROWTH_LIMIT = 1e8;
 
 export type SparseOrdering = 'minimum-degree' | 'natural';
 

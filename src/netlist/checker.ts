@@ -248,8 +248,10 @@ export class Checker {
   param(map: YMap, spec: ParamSpec): unknown {
     let node = this.get(map, spec.name);
     if (node === undefined || (node.kind === 'scalar' && node.empty)) {
-      if (spec.required) {
-        if (node) this.error(node, 'missing-key', `\`${spec.name}\` is empty`, `give \`${spec.name}\` a value (${spec.doc})`);
+      // a key written with no value is a slip whether or not the key is required (only an
+      // empty structure, such as `limits:`, may stand for "none")
+      if (spec.required || (node && spec.dimension !== 'structure')) {
+        if (node) this.error(node, 'missing-key', `\`${spec.name}\` is empty`, `give \`${spec.name}\` a value (${spec.doc})${spec.required ? '' : ', or remove the key'}`);
         else this.missing(map, spec.name, `\`${spec.name}\` is required here`, `add \`${spec.name}:\` (${spec.doc})`);
         return undefined;
       }

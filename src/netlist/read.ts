@@ -173,6 +173,15 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
   checkConnected(ck, root, sections);
+  // every element either reads or says why not: none may vanish without a diagnostic
+  if (!ck.hasErrors) {
+    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds };
+    for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
+      for (const e of sections[kind]) {
+        if (!read[kind].some((x) => x.name === e.name)) ck.error(e.where, 'invalid-element', `${kind} \`${e.name}\` could not be read`, 'check its keys and values');
+      }
+    }
+  }
 
   const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
   const expectNode = ck.get(root, 'expect');

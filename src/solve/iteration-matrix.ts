@@ -25,11 +25,11 @@ import { ColouredJacobian, FiniteJacobian } from './finite-jacobian.js';
 import type { IntegrateOptions, OdeProblem } from './types.js';
 
 /** Unknowns from which a problem with a jacobian pattern is solved with sparse LU. */
-export const SPARSE_MIN_N = 48;
+export const SPARSE_MIN_N = 16;
 /** A pattern denser than this fraction of n² is solved densely whatever its size. */
 const SPARSE_MAX_DENSITY = 0.2;
 /** Largest n for which a refused sparse factorisation is redone densely with pivoting. */
-export const DENSE_FALLBACK_MAX = 1200;
+export const DENSE_FALLBACK_MAX = 600;
 
 export interface IterationMatrix {
   readonly kind: 'dense' | 'sparse';

@@ -32,7 +32,17 @@ describe('sparse and dense LU agree on mid-size networks', () => {
   const withLinearAlgebra = (la: 'dense' | 'sparse'): Integrator =>
     (p, t0, y0, tEnd, onStep, options) => rosenbrock(p, t0, y0, tEnd, onStep, { ...options, linearAlgebra: la });
 
+  // 40 rubber pods past their pressure maximum (stretch 1.6, negative capacitance: the iteration
+  // matrix loses its diagonal dominance) with one slightly larger: the runaway of
+  // Müller & Strehlow (Rubber and Rubber Balloons, 2004) through the static-pivot guard.
+  const pods = ['format: 1', 'chambers:'];
+  for (let i = 0; i < 40; i++) pods.push(`  p${i}: { wall: neo-hookean, radius: 15 mm, thickness: 1 mm, shear-modulus: 0.3 MPa, start: { stretch: ${i === 0 ? 1.61 : 1.6} } }`);
+  pods.push('lines:');
+  for (let i = 0; i + 1 < 40; i++) pods.push(`  l${i}: { from: p${i}, to: p${i + 1}, diameter: 1 mm, length: 200 mm }`);
+  pods.push('simulate: { duration: 2 s, sample: 50 ms, tolerance: 1e-8, method: implicit }', '');
+
   for (const [name, text] of [
+    ['40 pods past their pressure maximum (unstable)', pods.join('\n')],
     ['chain of 60', chainNetlist(60, { tolerance: 1e-8 })],
     ['manifold grid of about 60', gridNetlist(60, { tolerance: 1e-8 })],
     ['star of 60, adiabatic', starNetlist(60, { tolerance: 1e-8, heat: 'adiabatic' })],
