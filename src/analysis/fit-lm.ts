@@ -13,7 +13,7 @@
  * References: K. Madsen, H. B. Nielsen & O. Tingleff, Methods for Non-Linear Least Squares
  * Problems, 2nd ed., IMM DTU 2004, §3.2, Algorithm 3.16 and eq. 3.14–3.15; J. J. Moré, "The
  * Levenberg–Marquardt algorithm: implementation and theory", in Numerical Analysis (Dundee
- * 1977), Lecture Notes in Math. 630, Springer 1978, 105–116 (scaling, and the gtol/ftol/xtol
+ * 1977), Springer LNM 630, 1978, 105–116 (scaling, and the gtol/ftol/xtol
  * tests of MINPACK's lmder).
  */
 import { DenseLu } from '../linalg/dense-lu.js';
