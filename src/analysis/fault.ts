@@ -24,6 +24,8 @@ import type { RunFault } from './results.js';
 
 /** An element limits the step size when its time constant and the mean step are within this factor. */
 const LIMITING = 100;
+/** Right-hand sides per attempted step (beyond one per unknown) above which an integrator is stuck. */
+const STALLED_RHS_PER_STEP = 1000;
 /** A valve that switched at least this often is called chattering. */
 const CHATTER_EVENTS = 200;
 
@@ -150,12 +152,16 @@ function describeFastest(f: Fastest, duration: number): string {
   return `the fastest part of the network is ${what}, with a time constant of about ${fmt(f.tau)} s against a duration of ${fmt(duration)} s`;
 }
 
+/** The integrators' work up to the stop. */
+export interface FaultWork { steps: number; rejected: number; rhs: number }
+
 /**
  * Explains why a run stopped at (t, y). `trialFault` is the chamber the system flagged during
- * the integrator's last (rejected) evaluation, if any; `steps` the steps accepted so far.
+ * the integrator's last (rejected) evaluation, if any; `work` what the integrators did so far.
  */
 export function diagnoseFault(sys: NetworkSystem, model: Model, cause: Cause, t: number, y: Float64Array,
-  trialFault: string | null, steps: number, method: string): RunFault {
+  trialFault: string | null, work: FaultWork, method: string): RunFault {
+  const steps = work.steps;
   const at = (found: Omit<RunFault, 't' | 'cause'>): RunFault => ({ ...found, t, cause });
   if (cause === 'interrupted') return at({ element: null, kind: null, likely: 'stopped by the user' });
   const numerical = cause === 'non-finite' || cause === 'step-too-small' || cause === 'singular';
@@ -165,9 +171,17 @@ export function diagnoseFault(sys: NetworkSystem, model: Model, cause: Cause, t:
   if (numerical && trialFault) {
     return at({ element: trialFault, kind: 'chamber', likely: `chamber \`${trialFault}\` left the range of its wall law during a step; a likely cause is a chamber emptied to vacuum or filled to a Gent lock` });
   }
+  const odexUsed = method.startsWith('odex');
   const fast = fastest(sys, model, t, y);
   const duration = model.simulate.duration;
-  const odexUsed = method.startsWith('odex');
+  // the budget went on right-hand sides, not on steps: the integrator is stuck at t
+  const stalled = work.rhs > (work.steps + work.rejected + 1) * (STALLED_RHS_PER_STEP + sys.n);
+  if ((cause === 'budget-steps' || cause === 'budget-wall') && stalled) {
+    return at({
+      element: null, kind: null,
+      likely: `the integrator (${method}) spent its budget on ${work.rhs} right-hand-side evaluations but accepted only ${work.steps} steps: it cannot get past something near t = ${fmt(t)} s; a likely cause is a switching element (a check or relief valve, a valve schedule) or a kink it cannot step across${odexUsed ? ': use `method: implicit` or `auto`' : ''}`,
+    });
+  }
   if (cause === 'budget-steps' || cause === 'budget-wall') {
     const raise = cause === 'budget-steps' ? 'raise `max-steps`' : 'raise `max-wall`';
     const share = t > 0 ? `; it reached ${fmt((100 * t) / duration)} % of the duration, so the whole run needs about ${fmt(duration / t)} times the budget` : '';

@@ -168,10 +168,18 @@ export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEven
     }
     const lead = unsettled.reduce((a, b) => (b.change / b.band > a.change / a.band ? b : a));
     // departure from the start, and whether it speeds up over the last two windows
-    const d = times.map((_, k) => Math.max(...signals.map((s) => {
-      const x = trace.values[col.get(s.key)!];
-      return Math.abs(x[k] - x[0]) / Math.abs(x[0]);
-    })));
+    // plain loops: Math.max(...signals) per sample cost seconds for 10 000 chambers (and
+    // would overflow the stack past about 100 000); same value, NaN included
+    const xs = signals.map((s) => trace.values[col.get(s.key)!]);
+    const d = times.map((_, k) => {
+      let m = -Infinity;
+      for (const x of xs) {
+        const v = Math.abs(x[k] - x[0]) / Math.abs(x[0]);
+        if (Number.isNaN(v)) return Number.NaN;
+        if (v > m) m = v;
+      }
+      return m;
+    });
     const span = tEnd - times[0];
     const w = WINDOW * span;
     const d2 = valueAt(times, d, tEnd) - valueAt(times, d, tEnd - w);

@@ -110,7 +110,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   let fault: RunFault | undefined;
   if (r.status === 'failed') {
     // sys.fault still holds what the integrator's last evaluation (usually a rejected trial) saw
-    fault = diagnoseFault(sys, model, r.cause as RunFault['cause'], r.t, r.y, sys.fault, r.work.steps, method);
+    fault = diagnoseFault(sys, model, r.cause as RunFault['cause'], r.t, r.y, sys.fault, r.work, method);
     const base = r.cause === 'budget-steps' && model.simulate.maxSteps === undefined
       ? `the default step budget of ${DEFAULT_MAX_STEPS} steps was used up at t = ${r.t.toPrecision(6)} s (set \`max-steps\` in \`simulate\` to change it)`
       : r.message;

@@ -24,6 +24,11 @@ export interface RunWorkerData {
   control: SharedArrayBuffer;
   /** Post progress messages. */
   progress: boolean;
+  /**
+   * Send the sampled trace back (CSV, plots, baselines need it). Without, only its channel list
+   * is sent: copying a large trace between threads costs seconds (10 000 chambers: 1.4 s).
+   */
+  keepTrace?: boolean;
 }
 
 export type RunWorkerMessage =
@@ -92,7 +97,7 @@ export interface StartedSimulation {
  * readings overlap on a machine with two cores instead of following each other, which for a
  * large netlist saves seconds (docs/dev-performance.md).
  */
-export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void): StartedSimulation {
+export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void, keepTrace = true): StartedSimulation {
   const entry = workerFile();
   if (!entry) {
     return {
@@ -100,7 +105,7 @@ export function startSimulation(source: string, file: string, stop: Interrupter,
       cancel: () => {},
     };
   }
-  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress) };
+  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress), keepTrace };
   const worker = new Worker(entry, { workerData: data });
   const done = new Promise<RunResult>((resolve, reject) => {
     let settled = false;

@@ -15,7 +15,7 @@ import { buildModel } from '../model/build.js';
 import { readNetlist } from '../netlist/read.js';
 import { STOP_FLAG, type RunWorkerData, type RunWorkerMessage } from './run-thread.js';
 
-const { source, file, control, progress } = workerData as RunWorkerData;
+const { source, file, control, progress, keepTrace } = workerData as RunWorkerData;
 const flag = new Int32Array(control);
 const post = (m: RunWorkerMessage): void => parentPort!.postMessage(m);
 
@@ -28,5 +28,6 @@ if (!model?.ok) {
     interrupt: () => (Atomics.load(flag, STOP_FLAG) ? 'interrupted (Ctrl-C)' : null),
     progress: progress ? (t, tEnd) => post({ kind: 'progress', t, tEnd }) : undefined,
   });
-  post({ kind: 'result', result });
+  // the trace's values stay here unless the caller writes them (see RunWorkerData.keepTrace)
+  post({ kind: 'result', result: keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result });
 }

@@ -31,7 +31,8 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     : undefined;
   // The worker starts on the text while this thread reads it too (see startSimulation).
   const text = readNetlistFile(file);
-  const started = 'text' in text ? startSimulation(text.text, file, stop, progress) : undefined;
+  const keepTrace = Boolean(opts.csv || opts.plots || opts.baseline);
+  const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace) : undefined;
   let model;
   try {
     model = loadOrExit(file);

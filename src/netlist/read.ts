@@ -177,8 +177,9 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   if (!ck.hasErrors) {
     const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds };
     for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
+      const got = new Set(read[kind].map((x) => x.name)); // a set: ten thousand chambers are read
       for (const e of sections[kind]) {
-        if (!read[kind].some((x) => x.name === e.name)) ck.error(e.where, 'invalid-element', `${kind} \`${e.name}\` could not be read`, 'check its keys and values');
+        if (!got.has(e.name)) ck.error(e.where, 'invalid-element', `${kind} \`${e.name}\` could not be read`, 'check its keys and values');
       }
     }
   }

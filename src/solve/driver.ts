@@ -122,6 +122,17 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
   };
 
   const stops = [...p.breakpoints.filter((b) => b > o.t0 && b < o.tEnd), o.tEnd];
+  /** The budget or interrupt that stops the run at t, if any (checked after event restarts). */
+  const budgetAt = (tNow: number): Pick<DriverResult, 'cause' | 'message'> | null => {
+    if (o.maxSteps !== undefined && work.steps >= o.maxSteps) {
+      return { cause: 'budget-steps', message: `step budget max-steps = ${o.maxSteps} used up at t = ${tNow.toPrecision(6)} s` };
+    }
+    if (o.maxWallMs !== undefined && Date.now() - started > o.maxWallMs) {
+      return { cause: 'budget-wall', message: `wall-time budget max-wall = ${(o.maxWallMs / 1000).toPrecision(3)} s used up at t = ${tNow.toPrecision(6)} s` };
+    }
+    const why = o.interrupt?.();
+    return why ? { cause: 'interrupted', message: `${why} at t = ${tNow.toPrecision(6)} s` } : null;
+  };
   let h0: number | undefined;
   let failure: DriverResult | null = null;
   let integrator = o.integrator;
@@ -200,6 +211,13 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
       if (restartAt !== null) {
         t = restartAt;
         y = Float64Array.from(yEv);
+        // a restart at an event skips the checks at a step's end: make them here, or a valve
+        // that switches at every step would run past every budget and past Ctrl-C
+        const stop = budgetAt(t);
+        if (stop) {
+          failure = { status: 'failed', ...stop, t, y, work };
+          break;
+        }
         continue;
       }
       t = r.t;

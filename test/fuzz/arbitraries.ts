@@ -126,7 +126,7 @@ export const validNetlist: fc.Arbitrary<GeneratedNetlist> = fc.record({
     const rate = feed.anr ? `${num(feed.rate * 50)} L/min ANR` : `${num(feed.rate)} g/s`;
     out.push('feeds:', `  pump: { into: c${Math.min(feed.into, n - 1)}, rate: ${rate} }`);
   }
-  out.push(`simulate: { duration: ${num(g.duration * 1000)} ms, sample: ${num(g.duration * 10)} ms, method: ${g.method}, max-wall: 20 s }`);
+  out.push(`simulate: { duration: ${num(g.duration * 1000)} ms, sample: ${num(g.duration * 10)} ms, method: ${g.method}, max-wall: 10 s }`);
   return { text: out.join('\n') + '\n', chambers: n };
 });
 
