@@ -80,3 +80,10 @@ export class UsageError extends Error {
     super(message);
   }
 }
+
+/** Fails early (before simulating) when a plots directory cannot be one. */
+export function checkPlotsDir(dir: string): void {
+  let isDir = true;
+  try { isDir = statSync(dir).isDirectory(); } catch { /* absent: created after the run */ }
+  if (!isDir) throw new UsageError(`--plots ${dir} exists and is not a directory`);
+}

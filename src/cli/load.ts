@@ -1,59 +1,12 @@
 /** Reads a netlist file for a command: diagnostics printed, exit 2 on any error. */
-import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import { formatDiagnostic, loadModel, type Diagnostic, type Model } from '../index.js';
-import { MAX_SOURCE_BYTES } from '../netlist/yaml-tree.js';
 import { UsageError } from './io.js';
+import { readNetlistFile } from './netlist-file.js';
+
+export { readNetlistFile };
 
 /** Diagnostics printed before the rest are only counted (a broken file can have thousands). */
 const MAX_PRINTED = 50;
-
-/**
- * The text of a netlist file, read without ever holding more than the size limit plus one
- * chunk: a huge file, /dev/zero or an endless pipe is refused rather than read into memory.
- * Returns the text, or the diagnostic for an input over the limit.
- */
-export function readNetlistFile(file: string): { text: string } | { tooLarge: Diagnostic } {
-  let fd: number;
-  try {
-    fd = openSync(file, 'r');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: cannot read the netlist (${code === 'ENOENT' ? 'no such file' : code ?? String(e)})`);
-  }
-  try {
-    const st = fstatSync(fd);
-    if (st.isDirectory()) throw new UsageError(`${file}: is a directory, expected a netlist file (.yaml)`);
-    const chunks: Buffer[] = [];
-    let total = 0;
-    const chunk = Buffer.alloc(64 * 1024);
-    for (;;) {
-      let n: number;
-      try {
-        n = readSync(fd, chunk, 0, chunk.length, null);
-      } catch (e) {
-        if ((e as NodeJS.ErrnoException).code === 'EAGAIN') continue;
-        throw new UsageError(`${file}: cannot read the netlist (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
-      }
-      if (n === 0) break;
-      chunks.push(Buffer.from(chunk.subarray(0, n)));
-      total += n;
-      if (total > MAX_SOURCE_BYTES) {
-        const limit = `${MAX_SOURCE_BYTES} bytes (2 MiB)`;
-        return {
-          tooLarge: {
-            code: 'input-too-large', severity: 'error', file, line: 1, column: 1, path: [],
-            message: st.isFile() ? `the netlist is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
-            hint: 'split the network or generate a smaller netlist',
-          },
-        };
-      }
-    }
-    // invalid UTF-8 becomes U+FFFD, which the reader refuses as binary input
-    return { text: Buffer.concat(chunks).toString('utf8') };
-  } finally {
-    closeSync(fd);
-  }
-}
 
 /** Prints diagnostics to stderr, at most MAX_PRINTED of them and then a count of the rest. */
 function printDiagnostics(ds: readonly Diagnostic[]): void {

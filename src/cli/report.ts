@@ -4,11 +4,13 @@
  * Nothing is written when the netlist is invalid (exit 2); a run that stops early still gets
  * its report, saying so (exit 3).
  */
-import { mkdirSync, statSync } from 'node:fs';
+import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { findEquilibria, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
 import { loadOrExit } from './load.js';
-import { checkOutputPaths, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, checkPlotsDir, UsageError, writeOutput } from './io.js';
+
+export { checkPlotsDir };
 import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
 
 export interface ReportOptions {
@@ -18,13 +20,6 @@ export interface ReportOptions {
   quiet?: boolean;
   /** plenum's version, for the report's footer. */
   version?: string;
-}
-
-/** Fails early (before simulating) when a plots directory cannot be one. */
-export function checkPlotsDir(dir: string): void {
-  let isDir = true;
-  try { isDir = statSync(dir).isDirectory(); } catch { /* absent: created after the run */ }
-  if (!isDir) throw new UsageError(`--plots ${dir} exists and is not a directory`);
 }
 
 /** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */

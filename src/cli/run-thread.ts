@@ -11,7 +11,6 @@
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import { simulate } from '../analysis/transient.js';
 import type { RunResult } from '../analysis/results.js';
 import type { Model } from '../model/types.js';
 
@@ -101,7 +100,10 @@ export function startSimulation(source: string, file: string, stop: Interrupter,
   const entry = workerFile();
   if (!entry) {
     return {
-      result: async (model) => simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress }),
+      result: async (model) => {
+        const { simulate } = await import('../analysis/transient.js');
+        return simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress });
+      },
       cancel: () => {},
     };
   }

@@ -1,9 +1,13 @@
-/** `plenum run NETLIST`: simulate, print a summary, write CSV/JSON. */
-import { baselineJson, resultJson, summaryText, traceCsv } from '../index.js';
-import { loadOrExit, readNetlistFile } from './load.js';
-import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
+/**
+ * `plenum run NETLIST`: simulate, print a summary, write CSV/JSON.
+ *
+ * Only light modules are imported up front: the worker thread is started on the netlist text
+ * first, and the reader, the model and the reports are loaded while it starts (for a small
+ * netlist the start-up is most of the run; docs/dev-performance.md).
+ */
+import { checkOutputPaths, checkPlotsDir, samePath, UsageError, writeOutput } from './io.js';
+import { readNetlistFile } from './netlist-file.js';
 import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
-import { checkPlotsDir, writePlots } from './report.js';
 
 export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
 
@@ -35,6 +39,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace) : undefined;
   let model;
   try {
+    const { loadOrExit } = await import('./load.js');
     model = loadOrExit(file);
   } catch (e) {
     started?.cancel();
@@ -42,6 +47,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   }
   const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
   if (tty) process.stderr.write('\r\x1b[K');
+  const { baselineJson, resultJson, summaryText, traceCsv } = await import('../index.js');
 
   const toStdout = opts.json === '-' || opts.csv === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(summaryText(result));
@@ -54,7 +60,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     if (opts.csv === '-') process.stdout.write(text); else writeOutput(opts.csv, text, '--csv');
   }
   if (opts.baseline) writeOutput(opts.baseline, baselineJson(result), '--baseline');
-  if (opts.plots) writePlots(opts.plots, model, result);
+  if (opts.plots) (await import('./report.js')).writePlots(opts.plots, model, result);
   if (result.status === 'failed') {
     const written = [opts.json, opts.csv, opts.baseline].some((o) => o && o !== '-') ? '; the results up to then were written' : '';
     process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s${written}: ${result.message}\n`);

@@ -9,8 +9,9 @@ import type { Node as YamlNode, YAMLError } from 'yaml';
 import type { Diagnostic } from '../diag/diagnostic.js';
 import { fastYamlTree } from './fast-yaml.js';
 
-/** Largest netlist accepted: 2 MiB of UTF-8 (a large network is a few tens of kB). */
-export const MAX_SOURCE_BYTES = 2 * 1024 * 1024;
+import { MAX_SOURCE_BYTES } from './limits.js';
+
+export { MAX_SOURCE_BYTES };
 /** Deepest nesting of maps and lists accepted (a netlist needs about 6). */
 export const MAX_DEPTH = 32;
 
