@@ -214,7 +214,8 @@ export class NetworkJacobian {
       const a = endNode[2 * b], c = endNode[2 * b + 1];
       const ca = endChamber[2 * b], cc = endChamber[2 * b + 1];
       const Ta = sys.T[a], Tc = sys.T[c];
-      sys.branches[b].partials(t, sys.p[a], sys.p[c], Ta, Tc, withT, bp);
+      // sys.flows[b] is this branch's flow at these end states (from the rhs above)
+      sys.branches[b].partials(t, sys.p[a], sys.p[c], Ta, Tc, withT, bp, sys.flows[b]);
       const q = bp.q;
       cd.fill(0);
       if (ca >= 0) {

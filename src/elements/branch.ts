@@ -12,7 +12,7 @@
  *   discharges from → to only (never backwards).
  */
 import type { Gas } from '../physics/gas.js';
-import { frictionFactor, RE_LAMINAR, tubeFlowInto, type TubeFlow } from '../physics/tube.js';
+import { frictionSlope, RE_LAMINAR, tubeFlowInto, type TubeFlow } from '../physics/tube.js';
 import { valveFlowInto, type ValveFlow } from '../physics/valve-flow.js';
 import { brent } from '../physics/roots.js';
 import type { BranchModel } from '../model/types.js';
@@ -141,19 +141,24 @@ export class BranchState {
    * The flow and its partial derivatives in the end states by forward differences of `flow`
    * (increments √eps relative to the larger end pressure and to each temperature). Local and
    * cheap: two or four extra flow evaluations. Temperature partials only when `withT`.
+   * `known`, when given, is this branch's flow at exactly these end states (the system's last
+   * evaluation): a plain line then needs no flow evaluation at all.
    *
    * References: Dennis & Schnabel, Numerical Methods for Unconstrained Optimization and
    * Nonlinear Equations, 1983, §5.4 (difference increments, from memory).
    */
-  partials(t: number, p1: number, p2: number, T1: number, T2: number, withT: boolean, out: BranchPartials): void {
+  partials(t: number, p1: number, p2: number, T1: number, T2: number, withT: boolean, out: BranchPartials, known?: BranchFlow): void {
     const f = this.probe;
+    if (!this.b.valve && !withT) {
+      if (!known) this.flow(t, p1, p2, T1, T2, f);
+      const at = known ?? f;
+      out.q = at.mdot;
+      this.linePressurePartials(p1, p2, at.reynolds, p1 >= p2 ? T1 : T2, out);
+      return;
+    }
     this.flow(t, p1, p2, T1, T2, f);
     const q = f.mdot;
     out.q = q;
-    if (!this.b.valve && !withT) {
-      this.linePressurePartials(p1, p2, f.reynolds, p1 >= p2 ? T1 : T2, out);
-      return;
-    }
     const scale = Math.max(Math.abs(p1), Math.abs(p2), 1);
     const d1 = step(p1, scale);
     this.flow(t, p1 + d1, p2, T1, T2, f);
@@ -174,21 +179,14 @@ export class BranchState {
    * ∂q/∂p1 and ∂q/∂p2 of a plain line in closed form, given the Reynolds number of its flow
    * (physics/tube.ts): q = ±(π·D·μ/4)·Re with F(Re) = f(Re)·Re² = X = |p1² − p2²|·D³/(L·R·T·μ²), so
    * ∂q/∂p1 = (π·D·μ/4)·2·p1·D³/(L·R·T·μ²)/F′(Re) and ∂q/∂p2 the same with −p2, in either
-   * direction. F′ = 64 in the laminar range (Hagen–Poiseuille); above it a central difference
-   * of F, whose blended friction law is C¹. A turbulent line then costs no further friction
-   * solves.
+   * direction. F′ = 64 in the laminar range (Hagen–Poiseuille); above it the analytic slope of
+   * the blended friction law (C¹). A turbulent line then costs no further friction solves.
    */
   private linePressurePartials(p1: number, p2: number, Re: number, Tup: number, out: BranchPartials): void {
     const l = this.b.line!;
     const mu = this.gas.viscosity(Tup);
     const D = l.diameter;
-    let dF = 64;
-    if (Re > RE_LAMINAR) {
-      const rel = l.roughness / D;
-      const h = Re * 1e-5;
-      const a = Re - h, b = Re + h;
-      dF = (frictionFactor(b, rel) * b * b - frictionFactor(a, rel) * a * a) / (b - a);
-    }
+    const dF = Re > RE_LAMINAR ? frictionSlope(Re, l.roughness / D) : 64;
     const k = ((Math.PI * D * mu) / 4) * (2 * D * D * D) / (l.length * this.gas.R * Tup * mu * mu * dF);
     out.dp1 = k * p1;
     out.dp2 = -k * p2;

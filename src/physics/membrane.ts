@@ -46,7 +46,8 @@ export function membranePressureInto(law: Membrane, lambda: number, out: Membran
   const k = law.t0 / law.r0;
   const l2 = lambda * lambda;
   const im1 = 1 / lambda;
-  const im7 = im1 ** 7;
+  const im2 = im1 * im1;
+  const im7 = im2 * im2 * im2 * im1; // multiplications: `** 7` is a Math.pow call in the hot path
   const g = im1 - im7;                 // λ⁻¹ − λ⁻⁷
   const dg = -im1 * im1 + 7 * im7 * im1; // −λ⁻² + 7λ⁻⁸
   switch (law.kind) {
@@ -67,7 +68,7 @@ export function membranePressureInto(law: Membrane, lambda: number, out: Membran
         out.ddp = Infinity;
         break;
       }
-      const dD = -(4 * lambda - 4 * im1 ** 5) / law.jm;
+      const dD = -(4 * lambda - 4 * im2 * im2 * im1) / law.jm;
       const nh = 2 * law.mu * k * g;
       const dnh = 2 * law.mu * k * dg;
       out.dp = nh / D;

@@ -109,6 +109,28 @@ describe('turbulent friction (Haaland, J. Fluids Eng. 105 (1983) 89)', () => {
     expect(tubeFlow(600e3, 101.325e3, T, air, D, L, 0).regime).toBe('turbulent');
   });
 
+  it('gives the same root to 1e-12 from any warm start (the previous Reynolds number in `out`), blend ends included', () => {
+    const D = 4e-3;
+    const L = 2;
+    // pressures from just above the laminar limit to fully rough turbulence, densely through the
+    // blend (Re 2300–4000) where the friction law is only C¹
+    const p1s = Array.from({ length: 400 }, (_, k) => 101.325e3 * (1 + 0.0002 * 1.025 ** k));
+    const guesses = [0, 2300.5, 2301, 3000, 3999.9, 4000.1, 1e4, 1e6, 5e7];
+    for (const rough of [0, 5e-5]) {
+      for (const p1 of p1s) {
+        const cold = tubeFlow(p1, 101.325e3, T, air, D, L, rough);
+        if (cold.regime === 'laminar') continue;
+        const G = cold.mdot / (Math.PI * D * D / 4);
+        expect(rel(cold.friction * (L / D) * G * G * air.R * T, (p1 - 101.325e3) * (p1 + 101.325e3))).toBeLessThan(1e-12);
+        for (const guess of guesses) {
+          const out = { mdot: 0, reynolds: guess, regime: 'turbulent' as const, friction: 0 };
+          const warm = tubeFlowInto(out, p1, 101.325e3, T, air, D, L, rough);
+          expect(rel(warm.reynolds, cold.reynolds)).toBeLessThan(1e-12);
+        }
+      }
+    }
+  });
+
   it('flow is C¹ and increasing in p1 through the laminar–turbulent transition; antisymmetric', () => {
     const D = 4e-3;
     const L = 2;

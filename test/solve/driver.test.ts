@@ -72,4 +72,52 @@ describe('driver', () => {
     expect(r.t).toBeLessThan(10);
     expect(r.y[0]).toBeCloseTo(Math.sin(50 * r.t) / 50, 6);
   });
+
+  /**
+   * A switch that fires every 0.5 ms (g = sin(2000π t), both directions) on a smooth rhs that
+   * the integrators would otherwise cross in a few long steps: every step now ends in an event
+   * restart, as with a valve chattering between two chambers at equal pressure. Budgets and
+   * interrupts must still stop the run (they used to be checked only at steps without events:
+   * such a run went on to the end, or forever).
+   */
+  function switching(): EventfulProblem & { fired: number } {
+    const p = {
+      fired: 0,
+      n: 1, rtol: 1e-8, atol: new Float64Array([1e-12]),
+      rhs(_t: number, _y: Float64Array, d: Float64Array) { d[0] = 1; },
+      breakpoints: [], atBreakpoint() {},
+      nEvents: 1,
+      eventValues(t: number, _y: Float64Array, out: Float64Array) { out[0] = Math.sin(2000 * Math.PI * t); },
+      eventDirection() { return 0; },
+      fireEvent() { p.fired++; return true; },
+    };
+    return p;
+  }
+
+  it('a switch that ends every step is stopped by the step budget', () => {
+    for (const integrator of [rosenbrock, odex]) {
+      const p = switching();
+      // odex's long steps would step over pairs of crossings: hMax just below their spacing
+      const hMax = integrator === odex ? 4.9e-4 : undefined;
+      const r = drive(p, { integrator, t0: 0, tEnd: 3, y0: new Float64Array([0]), sample: 0.5, observe() {}, maxSteps: 200, hMax });
+      expect(r.status).toBe('failed');
+      expect(r.cause).toBe('budget-steps');
+      expect(r.work.steps).toBeLessThanOrEqual(200);
+      expect(p.fired).toBeGreaterThan(10);
+      expect(r.t).toBeLessThan(0.5);
+      expect(r.y[0]).toBeCloseTo(r.t, 9); // y = t
+    }
+  });
+
+  it('a switch that ends every step is stopped by an interrupt', () => {
+    let calls = 0;
+    const p = switching();
+    const r = drive(p, {
+      integrator: rosenbrock, t0: 0, tEnd: 3, y0: new Float64Array([0]), sample: 0.5, observe() {},
+      interrupt: () => (++calls > 100 ? 'stop requested' : null),
+    });
+    expect(r.status).toBe('failed');
+    expect(r.cause).toBe('interrupted');
+    expect(r.t).toBeLessThan(0.5);
+  });
 });
