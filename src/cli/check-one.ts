@@ -3,10 +3,10 @@
  * the main thread or in a worker (check-worker.ts); never throws for user or numerical trouble.
  * Also the small protocol the two share.
  */
-import { readFileSync, statSync } from 'node:fs';
 import { performance } from 'node:perf_hooks';
 import { loadModel, simulate, type Diagnostic } from '../index.js';
 import type { NetlistCheck } from '../report/junit.js';
+import { readBounded } from './netlist-file.js';
 
 /** Layout of the control block the main thread shares with the workers: [next index to take, stop flag]. */
 export const NEXT = 0;
@@ -29,15 +29,11 @@ function unreadable(file: string, why: string): Diagnostic {
 
 export function checkNetlist(file: string, interrupt?: () => string | null): NetlistCheck {
   const started = performance.now();
-  let text: string;
-  try {
-    if (statSync(file).isDirectory()) return invalid(file, [unreadable(file, 'it is a directory')], started);
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    return invalid(file, [unreadable(file, code === 'ENOENT' ? 'no such file' : code ?? String(e))], started);
-  }
-  const m = loadModel(text, file);
+  // bounded: a huge file or an endless device is refused, not read into memory
+  const read = readBounded(file);
+  if ('unreadable' in read) return invalid(file, [unreadable(file, read.directory ? 'it is a directory' : read.unreadable)], started);
+  if ('tooLarge' in read) return invalid(file, [read.tooLarge], started);
+  const m = loadModel(read.text, file);
   if (!m.ok) return invalid(file, m.diagnostics, started);
   const model = m.value;
   const r = simulate(model, { interrupt });

@@ -8,21 +8,35 @@ import { MAX_SOURCE_BYTES } from '../netlist/limits.js';
 import { UsageError } from './io.js';
 
 /**
- * The text of a netlist file, read without ever holding more than the size limit plus one
- * chunk: a huge file, /dev/zero or an endless pipe is refused rather than read into memory.
- * Returns the text, or the diagnostic for an input over the limit.
+ * The text of a netlist file for a command: `readBounded`, with a file that cannot be read at
+ * all (missing, a directory, no permission) turned into a usage error.
  */
 export function readNetlistFile(file: string): { text: string } | { tooLarge: Diagnostic } {
+  const r = readBounded(file, 'a netlist file (.yaml)');
+  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected a netlist file (.yaml)` : `${file}: cannot read the netlist (${r.unreadable})`);
+  return r;
+}
+
+/** What `readBounded` gives back. */
+export type BoundedRead = { text: string } | { tooLarge: Diagnostic } | { unreadable: string; directory: boolean };
+
+/**
+ * The text of a file (a netlist or a study), read without ever holding more than the size limit
+ * plus one chunk: a huge file, /dev/zero or an endless pipe is refused rather than read into
+ * memory. Returns the text, the diagnostic for an input over the limit, or why the file cannot
+ * be read (`ENOENT` as "no such file"; `directory` set for a directory).
+ */
+export function readBounded(file: string, what = 'a netlist file (.yaml)'): BoundedRead {
   let fd: number;
   try {
     fd = openSync(file, 'r');
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: cannot read the netlist (${code === 'ENOENT' ? 'no such file' : code ?? String(e)})`);
+    return { unreadable: code === 'ENOENT' ? 'no such file' : code ?? String(e), directory: false };
   }
   try {
     const st = fstatSync(fd);
-    if (st.isDirectory()) throw new UsageError(`${file}: is a directory, expected a netlist file (.yaml)`);
+    if (st.isDirectory()) return { unreadable: `it is a directory, expected ${what}`, directory: true };
     const chunks: Buffer[] = [];
     let total = 0;
     const chunk = Buffer.alloc(64 * 1024);
@@ -32,7 +46,7 @@ export function readNetlistFile(file: string): { text: string } | { tooLarge: Di
         n = readSync(fd, chunk, 0, chunk.length, null);
       } catch (e) {
         if ((e as NodeJS.ErrnoException).code === 'EAGAIN') continue;
-        throw new UsageError(`${file}: cannot read the netlist (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
+        return { unreadable: (e as NodeJS.ErrnoException).code ?? String(e), directory: false };
       }
       if (n === 0) break;
       chunks.push(Buffer.from(chunk.subarray(0, n)));

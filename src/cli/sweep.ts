@@ -1,8 +1,8 @@
 /** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
-import { readFileSync, statSync } from 'node:fs';
 import { formatDiagnostic } from '../diag/diagnostic.js';
 import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
 import { samePath, UsageError, writeAtomic } from './io.js';
+import { readBounded } from './netlist-file.js';
 
 export interface SweepCliOptions {
   vary: string[];
@@ -33,15 +33,12 @@ function parseShard(text: string | undefined): Shard | undefined {
   return { index, count };
 }
 
+/** A netlist or study file, read with the netlist size limit (a huge file or a device is refused). */
 function readText(file: string, what: string): string {
-  try {
-    if (statSync(file).isDirectory()) throw new UsageError(`${file}: is a directory, expected ${what}`);
-    return readFileSync(file, 'utf8');
-  } catch (e) {
-    if (e instanceof UsageError) throw e;
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: cannot read ${what} (${code === 'ENOENT' ? 'no such file' : code ?? String(e)})`);
-  }
+  const r = readBounded(file, what);
+  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
+  if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; ${r.tooLarge.hint}`);
+  return r.text;
 }
 
 export async function sweepCommand(file: string, opts: SweepCliOptions): Promise<number> {

@@ -170,7 +170,7 @@ export const START: KindTable = {
   doc: 'initial state of a chamber: exactly one of pressure, stretch, volume, mass; optional temperature',
   params: [
     opt('pressure', 'absolute-pressure', 'initial pressure (gauge or abs)', { bounds: POSITIVE }),
-    opt('stretch', 'dimensionless', 'initial stretch λ = r/r0 (spheres only; below 1 the sphere is slack)', { bounds: POSITIVE }),
+    opt('stretch', 'dimensionless', 'initial stretch λ = r/r0 (spheres only; 1 or more: a sphere starts at or above its unstretched size)', { bounds: POSITIVE }),
     opt('volume', 'volume', 'initial volume', { bounds: POSITIVE }),
     opt('mass', 'mass', 'initial gas mass', { bounds: POSITIVE }),
     opt('temperature', 'temperature', 'initial gas temperature (default ambient)', { bounds: POSITIVE }),
