@@ -76,7 +76,7 @@ export function gridNetlist(n: number, o: NetworkOptions = {}): string {
       out.push(`  m${r}_${k}: { wall: rigid, volume: 5 mL, start: { pressure: 0 kPa gauge } }\n`);
       out.push((r + k) % 2 === 0
         ? `  a${r}_${k}: { wall: linear, volume: 30 mL, compliance: 0.2 mL/kPa, start: { pressure: 0 kPa gauge } }\n`
-        : `  a${r}_${k}: { wall: mooney-rivlin, radius: 12 mm, thickness: 1.5 mm, c1: 0.4 MPa, c2: 0.04 MPa, start: { stretch: 1.0 } }\n`);
+        : `  a${r}_${k}: { wall: mooney-rivlin, radius: 12 mm, thickness: 1.2 mm, c1: 0.4 MPa, c2: 0.04 MPa, start: { stretch: 1.0 } }\n`);
       lines.push(k === 0
         ? `  hm${r}: { from: h${r}, to: m${r}_0, diameter: 4 mm, length: 40 mm }\n`
         : `  mm${r}_${k}: { from: m${r}_${k - 1}, to: m${r}_${k}, diameter: 4 mm, length: 30 mm }\n`);
