@@ -16,6 +16,8 @@ export declare class Solver {
   initialStepSize: number;
   maxStepSize: number;
   denseOutput: boolean;
+  /** IWORK(4): how often the stability check runs in a line of the extrapolation table (default 1; 0 switches it off). */
+  stabilityCheckCount: number;
   denseComponents: number[] | undefined;
   relativeTolerance: number | number[];
   absoluteTolerance: number | number[];

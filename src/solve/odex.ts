@@ -10,6 +10,15 @@
  * lifting the cap once the solution gets past the trouble spot. odex clamps its first step to
  * [1e-4, min(hMax, half the interval)], so an h0 below 1e-4 has effect only through hMax.
  *
+ * A stall: near an equilibrium the rhs is round-off noise (flows of 1e-18 kg/s changing sign
+ * from one evaluation to the next: warm-started solves differ in their last bits), and ODEX's
+ * stability check (§II.9: the change of f along the first midpoint substeps against f itself)
+ * then halves every step until it is below round-off; this port has no "step size too small"
+ * exit and, once the step is zero, spins to its step budget. The wrapper counts evaluations that
+ * make no progress (at the last accepted t) and watches the accepted steps; past STALL_CALLS,
+ * or at a step below round-off, it restarts odex from there with the stability check off (the
+ * error test still controls the step), and reports `step-too-small` if that happens again.
+ *
  * References: Hairer, Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd ed.,
  * Springer 1993, §II.9 (extrapolation methods, ODEX) and its dense output (§II.9, "Dense
  * output for the GBS method"; section numbers from memory); odex 2.0.4, a port of Hairer's
@@ -28,6 +37,8 @@ import {
 const DEFAULT_MAX_STEPS = 100_000;
 /** Non-finite aborts without getting past the trouble spot before giving up. */
 const MAX_NON_FINITE = 10;
+/** Evaluations at the last accepted t, since it was accepted, that mean the step size is zero. */
+const STALL_CALLS = 50;
 /** odex's unit round-off (Solver.uRound); it ends a run when |tEnd − x| ≤ 10·|x|·U_ROUND. */
 const U_ROUND = 2.3e-16;
 const EPS = 2.220446049250313e-16;
@@ -41,6 +52,9 @@ function positive(x: number | undefined): x is number {
 class NonFiniteRhs {
   constructor(readonly t: number) {}
 }
+
+/** Thrown from inside the rhs adapter when odex's step size has fallen to zero (see the module note). */
+class Stalled {}
 
 /**
  * Adaptive ODEX. Options: h0 (first step, see the module note), hMax, maxSteps (odex's step
@@ -74,7 +88,9 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
   const dydt = new Float64Array(n);
   const fOut = new Array<number>(n).fill(0);
   // odex copies the returned array at once, so one buffer serves every call.
+  let stallCalls = 0;
   const f = (x: number, yArr: number[]): number[] => {
+    if (x === t && ++stallCalls > STALL_CALLS) throw new Stalled();
     for (let i = 0; i < n; i++) yIn[i] = yArr[i];
     problem.rhs(dir * (x - tInside) > 0 ? tInside : x, yIn, dydt);
     work.rhs++;
@@ -96,6 +112,7 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
   let liftCap = false;
   let tTrouble = t0;
   let nNonFinite = 0;
+  let stabilityCheck = true;
 
   const solOut: OutputFunction = (nr, xOld, x, yArr, d) => {
     if (nr === 1) return; // odex reports the starting point first (xOld == x): not a step
@@ -110,6 +127,7 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
     t = tNew;
     hLast = Math.abs(tNew - xOld);
     work.steps++;
+    stallCalls = 0;
     odexDense = d;
     if (onStep(xOld, tNew, y, dense) === false) {
       ended = { status: 'stopped', message: `stopped by the step callback at t = ${t}` };
@@ -137,6 +155,7 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
     solver.absoluteTolerance = atol;
     solver.maxSteps = budget;
     solver.maxStepSize = Math.min(hMax, cap);
+    solver.stabilityCheckCount = stabilityCheck ? 1 : 0;
     const hStart = cap < Infinity ? cap : hLast > 0 ? hLast : options.h0;
     if (positive(hStart)) solver.initialStepSize = Math.min(hStart, solver.maxStepSize);
     liftCap = false;
@@ -144,6 +163,13 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
     try {
       result = solver.solve(f, t, Array.from(y), tEnd, solOut);
     } catch (e) {
+      if (e instanceof Stalled) {
+        work.rejected++;
+        if (!stabilityCheck) return finish('step-too-small', `the step size fell to round-off at t = ${t}`);
+        stabilityCheck = false;
+        stallCalls = 0;
+        continue;
+      }
       if (!(e instanceof NonFiniteRhs)) throw e;
       work.rejected++;
       if (e.t === t) return finish('non-finite', `rhs is not finite at t = ${t}`);
@@ -157,6 +183,12 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
     work.rejected += result.nReject;
     if (ended !== null) {
       const { status, message } = ended;
+      if (status === 'step-too-small' && stabilityCheck) {
+        // the step shrank to round-off: once more without the stability check (module note)
+        stabilityCheck = false;
+        ended = null;
+        continue;
+      }
       return finish(status, message);
     }
     if (liftCap) {

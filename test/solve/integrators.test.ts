@@ -277,6 +277,30 @@ describe('odex specifics', () => {
     expect(r.status).toBe('completed');
     expect(spans[0]).toEqual([0, 0.5]);
   });
+
+  it('gets past an equilibrium whose rhs is round-off noise (ODEX\'s stability check would halve the step to zero)', () => {
+    // two chambers at equal pressure: the flow between them is ±3e-18 kg/s, changing sign from
+    // one evaluation to the next (warm-started solves differ in their last bits), against masses
+    // of 5.7e-4 kg with an absolute tolerance of 1e-14. A later evaluation is a hair larger, so
+    // the change of f along a substep is always more than twice f: the check's ratio exceeds 4.
+    let sign = 1;
+    let calls = 0;
+    const p: OdeProblem = {
+      n: 2, rtol: 1e-7, atol: new Float64Array([1e-14, 1e-14]),
+      rhs(_t, _y, d) {
+        sign = -sign;
+        const q = 3.4e-18 * (1 + 1e-3 * ++calls);
+        d[0] = q * sign;
+        d[1] = -q * sign;
+      },
+    };
+    const r = odex(p, 3.9, Float64Array.of(5.7316e-4, 5.7316e-4), 8, () => {}, { maxSteps: 20_000 });
+    expect(r.status).toBe('completed');
+    expect(r.t).toBe(8);
+    expect(r.work.rhs).toBeLessThan(5_000);
+    expect(Math.abs(r.y[0] + r.y[1] - 2 * 5.7316e-4)).toBeLessThan(1e-18); // the noise cancels in the sum
+    expect(Math.abs(r.y[0] - 5.7316e-4)).toBeLessThan(1e-12);
+  });
 });
 
 describe('stiff problem: Robertson kinetics (Hairer & Wanner II, §IV.1)', () => {
