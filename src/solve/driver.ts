@@ -94,6 +94,47 @@ function locate(p: EventfulProblem, k: number, a: number, ga: number, b: number,
   return b; // report the first time at which the crossing has happened
 }
 
+/** Whether event k's function went from ga to gb across zero in a direction that counts. */
+function crosses(p: EventfulProblem, k: number, ga: number, gb: number): boolean {
+  const dir = p.eventDirection(k);
+  return (ga < 0 && gb >= 0 && dir >= 0) || (ga > 0 && gb <= 0 && dir <= 0);
+}
+
+/**
+ * The first time in (a, b] by which one of the events `cands` (each crossed between a and b)
+ * has crossed, and every event of them that has crossed by then: ties fire together. The
+ * candidate whose secant estimate comes first is located alone (Illinois on its function, each
+ * evaluation giving all of them); if others have crossed by its root too, the search repeats
+ * on those before that root. A step where hundreds of events cross costs a few locations, not
+ * one each, and events crossing at the same instant (identical valves on a symmetric rig) are
+ * all fired, not only the first of them. `gAt` receives the event values at the time returned.
+ */
+function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Float64Array, b: number, gB: Float64Array,
+  dense: DenseOutput, yTmp: Float64Array, gTmp: Float64Array, gAt: Float64Array): { t: number; crossed: number[] } {
+  let hi = b;
+  gAt.set(gB);
+  let set = cands;
+  for (let iter = 0; iter < ILLINOIS_ITER && set.length > 0; iter++) {
+    let kBest = set[0];
+    let first = Infinity;
+    for (const k of set) {
+      const estimate = a + (hi - a) * (gA[k] / (gA[k] - gAt[k]));
+      if (estimate < first) { first = estimate; kBest = k; }
+    }
+    const tc = locate(p, kBest, a, gA[kBest], hi, gAt[kBest], dense, yTmp, gTmp);
+    if (!(tc < hi)) break; // no earlier instant to be found: all of `set` cross at hi
+    dense(tc, yTmp);
+    p.eventValues(tc, yTmp, gTmp);
+    const crossed = set.filter((k) => crosses(p, k, gA[k], gTmp[k]));
+    if (crossed.length === 0) break; // round-off at the root: keep hi
+    hi = tc;
+    gAt.set(gTmp);
+    if (crossed.length === 1) return { t: hi, crossed };
+    set = crossed;
+  }
+  return { t: hi, crossed: set };
+}
+
 export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
   const started = Date.now();
   const work = zeroWork();
@@ -103,6 +144,8 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
   const gPrev = new Float64Array(p.nEvents);
   const gNew = new Float64Array(p.nEvents);
   const gTmp = new Float64Array(p.nEvents);
+  const gAt = new Float64Array(p.nEvents);
+  const cands: number[] = [];
   const yTmp = new Float64Array(n);
   const yEv = new Float64Array(n);
   let nextSample = 1; // index of the next sample on the grid
@@ -144,27 +187,21 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
       let budgetMsg = '';
       const onStep = (tOld: number, tNew: number, yNew: Float64Array, dense: DenseOutput): boolean => {
         p.eventValues(tNew, yNew, gNew);
-        // earliest qualifying crossing
-        let kFirst = -1;
-        let tFirst = Infinity;
-        for (let k = 0; k < p.nEvents; k++) {
-          const a = gPrev[k];
-          const b = gNew[k];
-          const dir = p.eventDirection(k);
-          const up = a < 0 && b >= 0;
-          const down = a > 0 && b <= 0;
-          if (!((up && dir >= 0) || (down && dir <= 0))) continue;
-          const tc = locate(p, k, tOld, a, tNew, b, dense, yTmp, gTmp);
-          if (tc < tFirst) { tFirst = tc; kFirst = k; }
-        }
+        // the earliest qualifying crossing, and every event crossed by then
+        cands.length = 0;
+        for (let k = 0; k < p.nEvents; k++) if (crosses(p, k, gPrev[k], gNew[k])) cands.push(k);
         let reported = false;
-        if (kFirst >= 0) {
+        if (cands.length > 0) {
+          const first = firstCrossings(p, cands, tOld, gPrev, tNew, gNew, dense, yTmp, gTmp, gAt);
+          const tFirst = first.t;
           emitSamples(tFirst, dense, false);
           o.onStep?.(tOld, tFirst, dense);
           reported = true;
           dense(tFirst, yEv);
-          const rising = gNew[kFirst] > gPrev[kFirst];
-          const restart = p.fireEvent(kFirst, tFirst, yEv, rising);
+          let restart = false;
+          for (const k of first.crossed) {
+            if (p.fireEvent(k, tFirst, yEv, gAt[k] > gPrev[k])) restart = true;
+          }
           // every other event function is re-read at the event time, so a crossing later in
           // this step is found again on the next step
           p.eventValues(tFirst, yEv, gPrev);
