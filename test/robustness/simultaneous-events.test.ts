@@ -3,7 +3,9 @@
  * used to fire only the first event of a step and re-read the others after it, when they had
  * already crossed: on the rig below three of four relief valves never opened and their
  * chambers rose to the full supply pressure. Found while timing a chain with a check valve in
- * every line, where hundreds of crossings a step were also located one by one.
+ * every line, where hundreds of crossings a step were also located one by one. Also two
+ * schedules whose switching times are a double apart, which stopped a run as "step size below
+ * round-off".
  */
 import { describe, expect, it } from 'vitest';
 import { modelFromText, runChecked } from '../helpers.js';
@@ -68,5 +70,28 @@ describe('a chain of tanks and pods with a check valve in every line', () => {
       const dp = r.chambers[`c${i}`].final.gauge - r.chambers[`c${i + 1}`].final.gauge;
       expect(Math.abs(dp - 2e3)).toBeLessThan(1);
     }
+  });
+});
+
+describe('two valve schedules whose switching times are a double apart', () => {
+  it('runs through both (1.144 s + 5 ms is 1.1489999999999998 s, the other switches at 1.149 s)', () => {
+    const text = `format: 1
+reservoirs:
+  supply: { pressure: 200 kPa gauge }
+chambers:
+  a: { wall: rigid, volume: 50 mL, start: { pressure: 0 kPa gauge } }
+  b: { wall: rigid, volume: 50 mL, start: { pressure: 0 kPa gauge } }
+lines:
+  la: { from: supply, to: a, diameter: 2 mm, length: 200 mm }
+  lb: { from: supply, to: b, diameter: 2 mm, length: 200 mm }
+valves:
+  va: { in-line: la, orifice: 1 mm, discharge-coefficient: 0.7, initially: closed, schedule: [ { at: 1.144 s, open: 100%, over: 5 ms } ] }
+  vb: { in-line: lb, orifice: 1 mm, discharge-coefficient: 0.7, initially: closed, schedule: [ { at: 1.149 s, open: 100%, over: 5 ms } ] }
+simulate: { duration: 2 s, sample: 10 ms, method: implicit }
+`;
+    const r = runChecked(modelFromText(text));
+    expect(r.status).toBe('completed');
+    expect(r.chambers.a.final.gauge).toBeGreaterThan(150e3);
+    expect(r.chambers.b.final.gauge).toBeGreaterThan(150e3);
   });
 });

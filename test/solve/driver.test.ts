@@ -168,4 +168,26 @@ describe('driver', () => {
     // the set takes about 4.5
     expect(p.evaluations / count).toBeLessThan(20);
   });
+
+  it('goes on past two breakpoints a double apart (a ramp from 1.144 s over 5 ms ends at 1.1489999999999998 s, another schedule starts at 1.149 s)', () => {
+    const a = 1.144 + 0.005; // 1.1489999999999998
+    const b = 1.149;
+    expect(b - a).toBeGreaterThan(0);
+    expect(b - a).toBeLessThan(3e-16);
+    for (const integrator of [rosenbrock, odex]) {
+      const seen: number[] = [];
+      const samples: number[] = [];
+      const p: EventfulProblem = {
+        n: 1, rtol: 1e-9, atol: new Float64Array([1e-12]),
+        rhs(t, _y, d) { d[0] = t < b ? 1 : -1; },
+        breakpoints: [a, b], atBreakpoint(t) { seen.push(t); },
+        nEvents: 0, eventValues() {}, eventDirection() { return 0; }, fireEvent() { return false; },
+      };
+      const r = drive(p, { integrator, t0: 0, tEnd: 2, y0: new Float64Array([0]), sample: 0.25, observe(t, _y, kind) { if (kind === 'sample') samples.push(t); } });
+      expect(r.status).toBe('completed');
+      expect(seen).toEqual([a, b]);
+      expect(r.y[0]).toBeCloseTo(b - (2 - b), 9); // up until b, down after
+      expect(samples).toEqual([0, 0.25, 0.5, 0.75, 1, 1.25, 1.5, 1.75, 2]);
+    }
+  });
 });
