@@ -97,12 +97,15 @@ export interface ReportInput {
   topology: ReportTopology;
   walls: WallCurve[];
   equilibria?: EquilibriumMark[];
+  /** Why the equilibria are not marked, when they are not (shown with the pressure–volume figure). */
+  equilibriaNote?: string;
   /** plenum's version, for the report's footer. */
   version?: string;
 }
 
 export interface ReportInputOptions {
   equilibria?: EquilibriumMark[];
+  equilibriaNote?: string;
   version?: string;
 }
 
@@ -145,9 +148,17 @@ function describeOperation(op: ValveOperation): string {
 }
 
 function channelOf(r: RunResult, key: string): number[] | undefined {
-  const i = r.trace.channels.findIndex((c) => c.key === key);
-  return i < 0 ? undefined : r.trace.values[i];
+  let index = channelIndex.get(r.trace.channels);
+  if (!index) {
+    index = new Map(r.trace.channels.map((c, i) => [c.key, i] as const));
+    channelIndex.set(r.trace.channels, index);
+  }
+  const i = index.get(key);
+  return i === undefined ? undefined : r.trace.values[i];
 }
+
+/** Channel positions by key, per trace (a large network looks up thousands). */
+const channelIndex = new WeakMap<readonly { key: string }[], Map<string, number>>();
 
 function finiteRange(v: number[]): [number, number] {
   let lo = Infinity, hi = -Infinity;
@@ -250,6 +261,7 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
     topology: { chambers, reservoirs, lines, valves, feeds },
     walls,
     equilibria: options.equilibria,
+    equilibriaNote: options.equilibriaNote,
     version: options.version,
   };
 }

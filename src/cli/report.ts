@@ -41,11 +41,21 @@ export function writePlots(dir: string, model: Model, result: RunResult): string
  * The equilibria for the pressure–volume chart (stable filled, unstable hollow). The report
  * is still written without them if the analysis fails: it is an addition, not the subject.
  */
-function restStates(model: Model): ReturnType<typeof findEquilibria>['equilibria'] | undefined {
+/**
+ * Chambers above which the report leaves the equilibria out: their stability is a dense
+ * eigenvalue problem of the network's size (O(n³): some 10 s for 1 000 chambers, hours for
+ * 10 000), and a pressure–volume chart of that many chambers is read for its envelope.
+ */
+const EQUILIBRIA_MAX_CHAMBERS = 150;
+
+function restStates(model: Model): { equilibria?: ReturnType<typeof findEquilibria>['equilibria']; equilibriaNote?: string } {
+  if (model.chambers.length > EQUILIBRIA_MAX_CHAMBERS) {
+    return { equilibriaNote: `Equilibria are not marked for a network of more than ${EQUILIBRIA_MAX_CHAMBERS} chambers (this one has ${model.chambers.length}); \`plenum equilibria\` computes them.` };
+  }
   try {
-    return findEquilibria(model, { transient: false }).equilibria;
+    return { equilibria: findEquilibria(model, { transient: false }).equilibria };
   } catch {
-    return undefined;
+    return {};
   }
 }
 
@@ -64,7 +74,7 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
       : undefined);
     if (tty) process.stderr.write('\r\x1b[K');
     if (!opts.quiet) process.stdout.write(summaryText(result));
-    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, equilibria: restStates(model) })), '--out');
+    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, ...restStates(model) })), '--out');
     const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
     if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {

@@ -66,12 +66,73 @@ function tint(color: string, alpha: number): string {
   return `#${c.map((v) => Math.round(255 - alpha * (255 - v)).toString(16).padStart(2, '0')).join('')}`;
 }
 
+/**
+ * Chambers above which the network is not drawn: a diagram of that many nodes is neither
+ * legible nor small (a few hundred kB per hundred chambers); the report's tables carry them.
+ */
+export const MAX_DIAGRAM_CHAMBERS = 300;
+
+/** The diagram's place, saying why it is empty. */
+function tooLargeToDraw(chambers: number, opts: DiagramOptions): string {
+  const W = 640, H = 90;
+  const root = tag('svg', {
+    xmlns: 'http://www.w3.org/2000/svg', viewBox: `0 0 ${W} ${H}`, width: W * DISPLAY_SCALE, height: H * DISPLAY_SCALE, role: 'img',
+    'aria-labelledby': 'network-title', class: 'plenum-diagram', id: 'network', 'font-family': FONT,
+  },
+  tag('title', { id: 'network-title' }, esc(TITLE)),
+  opts.standalone ? tag('rect', { x: 0, y: 0, width: W, height: H, fill: '#ffffff' }) : '',
+  text({ x: MARGIN, y: 22, 'font-size': 14.5, 'font-weight': 700, fill: INK }, TITLE),
+  text({ x: MARGIN, y: 48, 'font-size': 12, fill: MUTED }, `${chambers} chambers: more than ${MAX_DIAGRAM_CHAMBERS}, too many to draw legibly.`),
+  text({ x: MARGIN, y: 66, 'font-size': 12, fill: MUTED }, 'The tables list every chamber, line and valve.'));
+  return opts.standalone ? `<?xml version="1.0" encoding="UTF-8"?>\n${root}\n` : root;
+}
+
 interface Box { x0: number; y0: number; x1: number; y1: number }
 
 function overlap(a: Box, b: Box): number {
   const w = Math.min(a.x1, b.x1) - Math.max(a.x0, b.x0);
   const h = Math.min(a.y1, b.y1) - Math.max(a.y0, b.y0);
   return w > 0 && h > 0 ? w * h : 0;
+}
+
+/**
+ * Boxes filed by the cells of a square grid they touch, so that the total overlap of a query box
+ * with them looks only at its neighbourhood: label placement in a diagram of a thousand chambers
+ * scored every candidate against every box (seconds); the sum is the same.
+ */
+class BoxGrid {
+  private readonly cells = new Map<number, Box[]>();
+  private readonly stamp = new Map<Box, number>();
+  private query = 0;
+
+  constructor(private readonly size = 160) {}
+
+  private cellsOf(b: Box, each: (key: number) => void): void {
+    const i0 = Math.floor(b.x0 / this.size), i1 = Math.floor(b.x1 / this.size);
+    const j0 = Math.floor(b.y0 / this.size), j1 = Math.floor(b.y1 / this.size);
+    for (let i = i0; i <= i1; i++) for (let j = j0; j <= j1; j++) each(i * 100003 + j);
+  }
+
+  add(b: Box): void {
+    this.cellsOf(b, (key) => {
+      const list = this.cells.get(key);
+      if (list) list.push(b); else this.cells.set(key, [b]);
+    });
+  }
+
+  /** Σ overlap(b, box) over the boxes filed, each counted once. */
+  overlapWith(b: Box): number {
+    const q = ++this.query;
+    let sum = 0;
+    this.cellsOf(b, (key) => {
+      for (const other of this.cells.get(key) ?? []) {
+        if (this.stamp.get(other) === q) continue;
+        this.stamp.set(other, q);
+        sum += overlap(b, other);
+      }
+    });
+    return sum;
+  }
 }
 
 function sphereRadius(lambda: number): number {
@@ -86,6 +147,7 @@ function gaugeText(p: number): string {
 
 export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): string {
   const topo = input.topology;
+  if (topo.chambers.length > MAX_DIAGRAM_CHAMBERS) return tooLargeToDraw(topo.chambers.length, opts);
   const r = input.result;
   const styles = chamberStyles(input);
   const nodes = new Map<string, DNode>();
@@ -261,7 +323,6 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
     { x0: n.x - n.r - 2, y0: n.y - n.r - 2, x1: n.x + n.r + 2, y1: n.y + n.r + 2 },
     placeLabel(n).box,
   ]);
-  const labelBoxes: Box[] = [];
   const H = Math.ceil(Math.max(...nodeBoxes.map((b) => b.y1), TOP + 60) + 14);
 
   // edges: width by net mass carried, arrow the way it went
@@ -296,6 +357,9 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
     const h = g.width / 2 + 2;
     return { x0: p.x - h, y0: p.y - h, x1: p.x + h, y1: p.y + h };
   }));
+  const occupied = new BoxGrid();
+  for (const b of nodeBoxes) occupied.add(b);
+  for (const b of pipeBoxes) occupied.add(b);
   const edgeSvg: string[] = [];
   const edgeLabels: string[] = [];
   for (const { e, ux, uy, nx, ny, ax, ay, bx, by, cx, cy, bow, frac, width, q } of geometry) {
@@ -350,11 +414,11 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
         const bx0 = anchor === 'middle' ? lx - lw / 2 : anchor === 'start' ? lx : lx - lw;
         const by0 = sy <= 0 && Math.abs(sy) >= 0.35 ? ly - lh : Math.abs(sy) < 0.35 ? ly - lh / 2 : ly;
         const box: Box = { x0: bx0, y0: by0, x1: bx0 + lw, y1: by0 + lh };
-        const score = [...nodeBoxes, ...labelBoxes, ...pipeBoxes].reduce((a, b) => a + overlap(box, b), 0) + (box.y0 < TOP - 14 ? 1e4 : 0);
+        const score = occupied.overlapWith(box) + (box.y0 < TOP - 14 ? 1e4 : 0);
         if (!best || score < best.score - 1e-9) best = { score, box, x: lx, y: box.y0, anchor };
       }
     }
-    labelBoxes.push(best!.box);
+    occupied.add(best!.box);
     const halo = { stroke: '#ffffff', 'stroke-width': 3.5, 'paint-order': 'stroke', 'text-anchor': best!.anchor };
     lines.forEach((t, i) => {
       edgeLabels.push(text({ x: best!.x, y: best!.y + 11 + 14 * i, 'font-size': i === 0 && names ? 11.5 : 11, 'font-weight': i === 0 && names ? 600 : undefined, fill: i === 0 && names ? INK : MUTED, ...halo }, t));

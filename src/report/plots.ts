@@ -8,7 +8,7 @@ import type { EquilibriumMark, ReportInput, WallCurve } from '../analysis/report
 import { display, displayScale, type DisplayKind } from '../units/display.js';
 import { chartSvg, styleAt, type ChartBand, type ChartEvent, type ChartPoint, type ChartRefLine, type ChartSeries, type LegendItem } from './svg-chart.js';
 import { sigText } from './svg.js';
-import { networkDiagram } from './diagram.js';
+import { MAX_DIAGRAM_CHAMBERS, networkDiagram } from './diagram.js';
 import { chamberStyles, channel, flowPaths } from './report-data.js';
 
 export interface Figure {
@@ -88,6 +88,36 @@ function chamberSeries(input: ReportInput, ax: TimeAxis, quantity: string, kind:
   };
 }
 
+/**
+ * Most series a chart draws. A large network (a cushion array, a skin of cells) would give a
+ * chart a curve per chamber and a report of tens of megabytes that no one can read; its charts
+ * show the chambers (or paths) whose plotted value changes most, and say so in the caption.
+ * The tables list every chamber.
+ */
+export const MAX_SERIES = 24;
+
+/** Most samples kept of a wall-law band shared by many chambers. */
+const MAX_BAND_POINTS = 800;
+
+/** The names whose channel changes most (max − min), at most MAX_SERIES, in netlist order. */
+function mostChanging(input: ReportInput, names: string[], channelOf: (name: string) => string): string[] {
+  if (names.length <= MAX_SERIES) return names;
+  const swing = new Map<string, number>();
+  for (const n of names) {
+    const v = channel(input, channelOf(n));
+    let lo = Infinity, hi = -Infinity;
+    for (const x of v ?? []) if (Number.isFinite(x)) { if (x < lo) lo = x; if (x > hi) hi = x; }
+    swing.set(n, hi > lo ? hi - lo : 0);
+  }
+  const keep = new Set([...names].sort((a, b) => swing.get(b)! - swing.get(a)!).slice(0, MAX_SERIES));
+  return names.filter((n) => keep.has(n));
+}
+
+/** The caption's note when a chart shows a selection. */
+function selectionNote(shown: number, total: number, what: string, quantity: string): string {
+  return shown < total ? ` Shown: the ${shown} of ${total} ${what} whose ${quantity} changes most; the tables below list all.` : '';
+}
+
 /** Joins the samples of wall curves that share a law (same parameters) into one curve. */
 function mergedBands(walls: WallCurve[]): { key: string; chambers: string[]; points: [number, number][]; deflation?: [number, number][]; extrema: WallCurve['extrema'] }[] {
   const groups = new Map<string, { key: string; chambers: string[]; points: [number, number][]; deflation?: [number, number][]; extrema: WallCurve['extrema'] }>();
@@ -105,7 +135,13 @@ function mergedBands(walls: WallCurve[]): { key: string; chambers: string[]; poi
     p.sort((a, b) => a[0] - b[0]);
     return p.filter((q, i) => i === 0 || q[0] !== p[i - 1][0]);
   };
-  return [...groups.values()].map((g) => ({ ...g, points: tidy(g.points), deflation: g.deflation ? tidy(g.deflation) : undefined }));
+  // many chambers on one law give many overlapping samples: thin them to a curve's worth
+  const thin = (p: [number, number][]): [number, number][] => {
+    if (p.length <= MAX_BAND_POINTS) return p;
+    const step = (p.length - 1) / (MAX_BAND_POINTS - 1);
+    return Array.from({ length: MAX_BAND_POINTS }, (_, i) => p[Math.round(i * step)]);
+  };
+  return [...groups.values()].map((g) => ({ ...g, points: thin(tidy(g.points)), deflation: g.deflation ? thin(tidy(g.deflation)) : undefined }));
 }
 
 function planeChart(input: ReportInput, axis: 'stretch' | 'volume', walls: WallCurve[], opts: FigureOptions): Figure | undefined {
@@ -135,13 +171,16 @@ function planeChart(input: ReportInput, axis: 'stretch' | 'volume', walls: WallC
     }
   }
   const series: ChartSeries[] = [];
+  const shown = mostChanging(input, walls.map((w) => w.chamber), (n) => `${n}.${axis}`);
+  const shownSet = new Set(shown);
   for (const w of walls) {
+    if (!shownSet.has(w.chamber)) continue;
     const xv = channel(input, `${w.chamber}.${axis}`);
     const yv = channel(input, `${w.chamber}.gauge`);
     if (!xv || !yv) continue;
     series.push({ name: w.chamber, x: scaled(xv, xs.factor), y: scaled(yv, gaugeScale.factor), style: styles.get(w.chamber)!, shape: 'path' });
   }
-  const eq = equilibriumPoints(input.equilibria ?? [], walls.map((w) => w.chamber), axis, xs.factor, gaugeScale.factor);
+  const eq = equilibriumPoints(input.equilibria ?? [], shown, axis, xs.factor, gaugeScale.factor);
   points.push(...eq.points);
   const legendExtra: LegendItem[] = [
     { label: 'start', marker: { shape: 'circle', filled: false, color: '#1a1a1a' } },
@@ -159,9 +198,11 @@ function planeChart(input: ReportInput, axis: 'stretch' | 'volume', walls: WallC
     yLabel: 'gauge pressure [kPa]',
     series, bands, points, legendExtra, yIncludeZero: true,
   }, { standalone: opts.standalone });
-  const caption = axis === 'stretch'
+  const caption = (axis === 'stretch'
     ? 'Where a wall law rises, a chamber that takes gas pushes back harder; past the pressure maximum (triangle) it gets easier to inflate, so of two connected chambers the larger one can take gas from the smaller. Hollow mark: start; filled mark: end.'
-    : 'Each chamber\'s gauge pressure against its volume, over its wall law. Hollow mark: start; filled mark: end. A measured wall with hysteresis shows its deflation curve dashed.';
+    : 'Each chamber\'s gauge pressure against its volume, over its wall law. Hollow mark: start; filled mark: end. A measured wall with hysteresis shows its deflation curve dashed.')
+    + selectionNote(shown.length, walls.length, 'chambers', axis)
+    + (input.equilibriaNote ? ` ${input.equilibriaNote}` : '');
   return { id, title, caption, svg, series: series.length };
 }
 
@@ -195,7 +236,9 @@ export function reportFigures(input: ReportInput, opts: FigureOptions = {}): Fig
 
   figs.push({
     id: 'network', title: 'Network',
-    caption: 'Chambers, reservoirs, lines and valves. Arrows and masses show the net transfer of gas over the run; each chamber shows its gauge pressure at the start and at the end.',
+    caption: topo.chambers.length > MAX_DIAGRAM_CHAMBERS
+      ? `Not drawn: the network has ${topo.chambers.length} chambers, more than ${MAX_DIAGRAM_CHAMBERS}.`
+      : 'Chambers, reservoirs, lines and valves. Arrows and masses show the net transfer of gas over the run; each chamber shows its gauge pressure at the start and at the end.',
     svg: networkDiagram(input, { standalone: opts.standalone }), series: 0,
   });
 
@@ -209,18 +252,22 @@ export function reportFigures(input: ReportInput, opts: FigureOptions = {}): Fig
 
   // gauge pressure
   {
-    const c = chamberSeries(input, ax, 'gauge', 'gauge', names);
+    const shown = mostChanging(input, names, (n) => `${n}.gauge`);
+    const shownSet = new Set(shown);
+    const c = chamberSeries(input, ax, 'gauge', 'gauge', shown);
     const raw: (ChartRefLine & { owner: string; what: string })[] = [];
     for (const ch of topo.chambers) {
+      if (!shownSet.has(ch.name)) continue;
       if (ch.limits.gauge !== undefined) raw.push({ axis: 'y', value: ch.limits.gauge * c.factor, owner: ch.name, what: `pressure limit ${display(ch.limits.gauge, 'gauge')}`, label: '', tone: 'limit' });
     }
     for (const v of topo.valves) {
-      if (v.opensAbove !== undefined && names.includes(v.from)) raw.push({ axis: 'y', value: v.opensAbove * c.factor, owner: v.name, what: `opens above ${display(v.opensAbove, 'gauge')}`, label: '', tone: 'info' });
+      if (v.opensAbove !== undefined && shownSet.has(v.from)) raw.push({ axis: 'y', value: v.opensAbove * c.factor, owner: v.name, what: `opens above ${display(v.opensAbove, 'gauge')}`, label: '', tone: 'info' });
     }
     const refs = mergeRefs(raw);
     figs.push({
       id: 'pressure', title: 'Gauge pressure',
-      caption: 'Gauge pressure of each chamber. Numbered marks on the top edge are the events listed below; dashed red lines are declared limits.',
+      caption: 'Gauge pressure of each chamber. Numbered marks on the top edge are the events listed below; dashed red lines are declared limits.'
+        + selectionNote(shown.length, names.length, 'chambers', 'pressure'),
       svg: timeChart(input, ax, 'pressure', 'Gauge pressure', 'gauge pressure of each chamber; numbered marks: events', `gauge pressure [${c.unit.replace(' gauge', '')}]`, c.series, refs, true, opts),
       series: c.series.length,
     });
@@ -230,9 +277,11 @@ export function reportFigures(input: ReportInput, opts: FigureOptions = {}): Fig
   const spheres = topo.chambers.filter((c) => c.sphere).map((c) => c.name);
   const compliant = topo.chambers.filter((c) => !c.sphere && !c.rigid).map((c) => c.name);
   if (spheres.length) {
-    const c = chamberSeries(input, ax, 'stretch', 'stretch', spheres);
+    const shown = mostChanging(input, spheres, (n) => `${n}.stretch`);
+    const shownSet = new Set(shown);
+    const c = chamberSeries(input, ax, 'stretch', 'stretch', shown);
     const raw: (ChartRefLine & { owner: string; what: string })[] = [];
-    for (const ch of topo.chambers) if (ch.sphere && ch.limits.stretch !== undefined) raw.push({ axis: 'y', value: ch.limits.stretch, owner: ch.name, what: `stretch limit ${sigText(ch.limits.stretch, 3)}`, label: '', tone: 'limit' });
+    for (const ch of topo.chambers) if (shownSet.has(ch.name) && ch.limits.stretch !== undefined) raw.push({ axis: 'y', value: ch.limits.stretch, owner: ch.name, what: `stretch limit ${sigText(ch.limits.stretch, 3)}`, label: '', tone: 'limit' });
     for (const g of mergedBands(sphereWalls)) {
       const m = g.extrema.find((e) => e.kind === 'max');
       if (m) raw.push({ axis: 'y', value: m.x, owner: g.chambers.join(', '), what: `pressure maximum of the wall law (λ ${sigText(m.x, 3)})`, label: '', tone: 'info' });
@@ -240,40 +289,47 @@ export function reportFigures(input: ReportInput, opts: FigureOptions = {}): Fig
     const refs = mergeRefs(raw);
     figs.push({
       id: 'stretch', title: 'Stretch',
-      caption: 'Stretch λ = r/r0 of each spherical chamber. The dotted line marks the stretch of the wall law\'s pressure maximum: a chamber above it gets easier to inflate.',
+      caption: 'Stretch λ = r/r0 of each spherical chamber. The dotted line marks the stretch of the wall law\'s pressure maximum: a chamber above it gets easier to inflate.'
+        + selectionNote(shown.length, spheres.length, 'spheres', 'stretch'),
       svg: timeChart(input, ax, 'stretch', 'Stretch', 'stretch λ = r/r0 of each spherical chamber; numbered marks: events', 'stretch λ', c.series, refs, false, opts),
       series: c.series.length,
     });
   }
   if (compliant.length) {
-    const c = chamberSeries(input, ax, 'volume', 'volume', compliant);
+    const shown = mostChanging(input, compliant, (n) => `${n}.volume`);
+    const c = chamberSeries(input, ax, 'volume', 'volume', shown);
     figs.push({
       id: 'volume', title: 'Volume',
-      caption: 'Volume inside each compliant wall (tubing volume not included); rigid chambers are left out.',
+      caption: 'Volume inside each compliant wall (tubing volume not included); rigid chambers are left out.'
+        + selectionNote(shown.length, compliant.length, 'compliant chambers', 'volume'),
       svg: timeChart(input, ax, 'volume', 'Volume', 'volume of each compliant chamber; numbered marks: events', `volume [${c.unit}]`, c.series, [], false, opts),
       series: c.series.length,
     });
   }
 
   // mass flow per line and valve
-  const paths = flowPaths(input);
+  const allPaths = flowPaths(input);
+  const shownPaths = new Set(mostChanging(input, allPaths.map((p) => p.name), (n) => `${n}.flow`));
+  const paths = allPaths.filter((p) => shownPaths.has(p.name));
   if (paths.length) {
     const data = paths.map((p) => ({ p, v: channel(input, p.channel) })).filter((d) => d.v !== undefined) as { p: (typeof paths)[number]; v: number[] }[];
     const s = displayScale('flow', maxAbs(data.flatMap((d) => d.v)));
     const series: ChartSeries[] = data.map((d, i) => ({ name: `${d.p.label} (${d.p.from} → ${d.p.to})`, x: ax.times, y: scaled(d.v, s.factor), style: styleAt(i, names.length) }));
     figs.push({
       id: 'flow', title: 'Mass flow',
-      caption: 'Mass flow through each line and valve, positive in the direction from → to named in the legend.',
+      caption: 'Mass flow through each line and valve, positive in the direction from → to named in the legend.'
+        + selectionNote(paths.length, allPaths.length, 'lines and valves', 'flow'),
       svg: timeChart(input, ax, 'flow', 'Mass flow', 'mass flow through each line and valve, positive from → to; numbered marks: events', `mass flow [${s.unit}]`, series, [], true, opts),
       series: series.length,
     });
   }
 
   if (input.heat !== 'isothermal') {
-    const c = chamberSeries(input, ax, 'temperature', 'temperature', names);
+    const shown = mostChanging(input, names, (n) => `${n}.temperature`);
+    const c = chamberSeries(input, ax, 'temperature', 'temperature', shown);
     figs.push({
       id: 'temperature', title: 'Gas temperature',
-      caption: `Gas temperature in each chamber (heat: ${input.heat}).`,
+      caption: `Gas temperature in each chamber (heat: ${input.heat}).${selectionNote(shown.length, names.length, 'chambers', 'temperature')}`,
       svg: timeChart(input, ax, 'temperature', 'Gas temperature', `gas temperature in each chamber (heat: ${input.heat}); numbered marks: events`, `temperature [${c.unit}]`, c.series, [], false, opts),
       series: c.series.length,
     });

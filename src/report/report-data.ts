@@ -9,9 +9,18 @@ export interface FlowPath { name: string; channel: string; from: string; to: str
 
 /** Values of a trace channel, or undefined when the run did not record it. */
 export function channel(input: ReportInput, key: string): number[] | undefined {
-  const i = input.result.trace.channels.findIndex((c) => c.key === key);
-  return i < 0 ? undefined : input.result.trace.values[i];
+  const channels = input.result.trace.channels;
+  let index = channelIndex.get(channels);
+  if (!index) {
+    index = new Map(channels.map((c, i) => [c.key, i] as const));
+    channelIndex.set(channels, index);
+  }
+  const i = index.get(key);
+  return i === undefined ? undefined : input.result.trace.values[i];
 }
+
+/** Channel positions by key, per trace (a figure of a large network looks up thousands). */
+const channelIndex = new WeakMap<readonly { key: string }[], Map<string, number>>();
 
 /** The style of each chamber, by its place in the netlist. */
 export function chamberStyles(input: ReportInput): Map<string, SeriesStyle> {

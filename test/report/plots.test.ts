@@ -3,8 +3,10 @@ import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { reportInput, type ReportInput } from '../../src/analysis/report-input.js';
-import { reportFigures, type Figure } from '../../src/report/plots.js';
-import { modelFromFile, runChecked } from '../helpers.js';
+import { MAX_SERIES, reportFigures, type Figure } from '../../src/report/plots.js';
+import { MAX_DIAGRAM_CHAMBERS } from '../../src/report/diagram.js';
+import { chainNetlist } from '../../bench/networks.js';
+import { modelFromFile, modelFromText, runChecked } from '../helpers.js';
 import { sphereGauge, syntheticInput } from './fixture.js';
 import { parseXml, withClass, type XmlElement } from './xml.js';
 
@@ -216,5 +218,52 @@ describe('figures of a synthetic run', () => {
       expect(existsSync(path), `${path} is missing: run the tests once with UPDATE_GOLDEN=1 and look at the pictures`).toBe(true);
       expect(svg).toBe(readFileSync(path, 'utf8'));
     }
+  });
+});
+
+describe('figures of a large network (a generated chain of 400 tanks and pods)', () => {
+  let input: ReportInput;
+  let figs: Figure[];
+  beforeAll(() => {
+    const model = modelFromText(chainNetlist(400, { duration: '50 ms', sample: '1 ms' }));
+    input = reportInput(model, runChecked(model));
+    figs = reportFigures(input);
+  });
+
+  it(`draw at most ${MAX_SERIES} curves a chart: the chambers whose value changes most, and say so`, () => {
+    const { f, els } = fig(figs, 'pressure');
+    const shown = seriesNames(els);
+    expect(shown.length).toBe(MAX_SERIES);
+    expect(f.caption).toContain(`the ${MAX_SERIES} of 400 chambers whose pressure changes most`);
+    const swing = (name: string): number => {
+      const v = input.result.trace.values[input.result.trace.channels.findIndex((c) => c.key === `${name}.gauge`)];
+      return Math.max(...v) - Math.min(...v);
+    };
+    const all = input.topology.chambers.map((c) => c.name).sort((a, b) => swing(b) - swing(a));
+    expect(new Set(shown)).toEqual(new Set(all.slice(0, MAX_SERIES)));
+    expect(Math.min(...shown.map(swing))).toBeGreaterThanOrEqual(swing(all[MAX_SERIES]));
+    for (const id of ['stretch', 'pressure-stretch', 'flow']) {
+      const g = fig(figs, id);
+      expect(seriesNames(g.els).length, id).toBeLessThanOrEqual(MAX_SERIES);
+      expect(g.f.caption, id).toMatch(/Shown: the \d+ of \d+/);
+    }
+  });
+
+  it('share one wall-law band among 200 pods, thinned to a curve', () => {
+    const bands = withClass(fig(figs, 'pressure-stretch').els, 'path', 'band');
+    expect(bands.length).toBe(1);
+    expect(points(bands[0].attrs.d).length).toBeLessThanOrEqual(1000);
+  });
+
+  it(`do not draw a network of more than ${MAX_DIAGRAM_CHAMBERS} chambers, and say why`, () => {
+    const { f } = fig(figs, 'network');
+    expect(f.caption).toContain('Not drawn: the network has 400 chambers');
+    expect(textOf(f.svg).join(' ')).toContain('too many to draw legibly');
+    expect(f.svg.length).toBeLessThan(2000);
+  });
+
+  it('keep the figures small: what a network of two dozen chambers would take', () => {
+    const total = figs.reduce((a, x) => a + x.svg.length, 0);
+    expect(total).toBeLessThan(250_000); // 168 kB; a curve per chamber made it some 3 MB
   });
 });
