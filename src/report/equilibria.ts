@@ -26,6 +26,16 @@ function cell(c: ChamberRest): string {
   return `${display(c.gauge, 'gauge').replace(' gauge', '')} ${size}${branch}`;
 }
 
+/** Chambers up to which the table has a column a chamber; above, a row a chamber. */
+const WIDE_MAX_CHAMBERS = 8;
+/** Equilibria up to which the table with a row a chamber is used. */
+const TALL_MAX_EQUILIBRIA = 12;
+
+/** Names for a heading: all of a few, the first and last of many. */
+function listed(names: string[]): string {
+  return names.length <= 12 ? names.join(', ') : `${names.slice(0, 3).join(', ')} … ${names[names.length - 1]} (${names.length} chambers)`;
+}
+
 /** The printed summary of `plenum equilibria`. */
 export function equilibriaText(r: EquilibriaResult): string {
   const out: string[] = [];
@@ -39,7 +49,7 @@ export function equilibriaText(r: EquilibriaResult): string {
     const how = g.method === 'enumeration' ? `by enumeration of ${g.combinations} branch combination${g.combinations === 1 ? '' : 's'}`
       : g.method === 'deflation' ? `by deflated Newton from ${g.combinations} starts (may be incomplete)`
         : g.method === 'steady-flow' ? 'from the steady flow' : '';
-    out.push(`group ${g.chambers.join(', ')} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
+    out.push(`group ${listed(g.chambers)} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
     for (const n of g.notes) out.push(`  note: ${n}`);
   }
   out.push('');
@@ -53,7 +63,14 @@ export function equilibriaText(r: EquilibriaResult): string {
       e.time_constant === null ? '-' : display(e.time_constant, 'time'),
       ...names.map((n) => cell(e.chambers[n])),
     ]);
-    out.push(table(['#', 'stability', 'growth 1/s', 'slowest τ', ...names], rows));
+    if (names.length <= WIDE_MAX_CHAMBERS || r.equilibria.length > TALL_MAX_EQUILIBRIA) {
+      out.push(table(['#', 'stability', 'growth 1/s', 'slowest τ', ...names], rows));
+    } else {
+      // many chambers: a chamber a row, an equilibrium a column
+      out.push(table(['#', 'stability', 'growth 1/s', 'slowest τ'], rows.map((row) => row.slice(0, 4))));
+      out.push('');
+      out.push(table(['chamber', ...r.equilibria.map((_, i) => `#${i + 1}`)], names.map((n) => [n, ...r.equilibria.map((e) => cell(e.chambers[n]))])));
+    }
     out.push('(kPa gauge; λ stretch; R rising, F falling branch of the wall curve, R3 rising again past a minimum)');
     if (reached !== null) out.push('* the equilibrium the transient reaches');
     r.equilibria.forEach((e, i) => {

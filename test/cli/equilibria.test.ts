@@ -37,6 +37,19 @@ describe('plenum equilibria', () => {
     expect(r.err).toContain('the equilibrium the transient reaches');
   });
 
+  it('prints a network of many chambers with a chamber a row, and names its group by first and last', async () => {
+    const { writeFileSync } = await import('node:fs');
+    const { chainNetlist } = await import('../../bench/networks.js');
+    const file = join(tmp, 'chain-20.yaml');
+    writeFileSync(file, chainNetlist(20));
+    const r = plenum('equilibria', file, '--no-transient');
+    expect(r.code, r.err).toBe(0);
+    expect(r.out).toContain('group c0, c1, c2 … c19 (20 chambers)');
+    const lines = r.out.split('\n');
+    expect(Math.max(...lines.map((l) => l.length))).toBeLessThan(120);
+    for (let i = 0; i < 20; i++) expect(lines.some((l) => new RegExp(`^\\s*c${i}\\s+0 kPa`).test(l)), `c${i}`).toBe(true);
+  });
+
   it('writes a JSON file whole, and refuses a bad --valves with exit 2', () => {
     const out = join(tmp, 'eq.json');
     const ok = plenum('equilibria', 'networks/cushion-settle.yaml', '--no-transient', '--json', out, '-q');
