@@ -238,17 +238,39 @@ export function sweepSummaryText(r: SweepResult): string {
   for (const c of s.categorical) {
     if (c.key === 'warnings' && c.values.length === 1 && c.values[0].value === 'none') continue;
     out.push(`  ${c.key}:`);
-    for (const v of c.values) out.push(`    ${v.value.padEnd(24)} ${percent(v.p).padStart(7)}  [${percent(v.low)}, ${percent(v.high)}]  (${v.count} of ${v.n})`);
+    for (const v of c.values) out.push(`    ${shortValue(v.value).padEnd(24)} ${percent(v.p).padStart(7)}  [${percent(v.low)}, ${percent(v.high)}]  (${v.count} of ${v.n})`);
   }
   out.push(`  ${'values (completed cases)'.padEnd(44)} ${['mean', 'sd', 'min', 'max'].map((h) => h.padStart(10)).join(' ')}`);
-  for (const f of s.numeric) {
+  // a large network gives four rows a chamber: show the varied parameters, the settling time
+  // and the outputs that vary most relative to their size; --csv and --json carry them all
+  const varied = new Set(r.study.vary.map((v) => v.path));
+  const fixed = s.numeric.filter((f) => varied.has(f.key) || f.key === 'settling_time');
+  const outputs = s.numeric.filter((f) => !varied.has(f.key) && f.key !== 'settling_time');
+  const spread = (f: NumericField): number => (Number.isFinite(f.sd) ? f.sd / Math.max(Math.abs(f.mean), 1e-300) : -1);
+  const kept = outputs.length <= MAX_SUMMARY_ROWS ? outputs
+    : new Set([...outputs].sort((a, b) => spread(b) - spread(a)).slice(0, MAX_SUMMARY_ROWS));
+  const rows = outputs.length <= MAX_SUMMARY_ROWS ? s.numeric
+    : s.numeric.filter((f) => fixed.includes(f) || (kept as Set<NumericField>).has(f));
+  for (const f of rows) {
     const u = displayUnit(f.key, f.unit, Math.max(Math.abs(f.min), Math.abs(f.max)));
     const label = u.unit === '-' ? f.key : `${f.key} [${u.unit}]`;
     out.push(`    ${label.padEnd(42)} ${[f.mean, f.sd, f.min, f.max].map((x) => cell(x * u.factor).padStart(10)).join(' ')}`);
   }
+  if (rows.length < s.numeric.length) {
+    out.push(`    ... ${s.numeric.length - rows.length} more outputs, which vary less (all of them in --csv and --json)`);
+  }
   out.push('  (probabilities with Wilson 95 % intervals)');
   return out.join('\n') + '\n';
 }
+
+/** A categorical value for the terminal: a tie of many chambers (`c0=c2=…`) by its ends and count. */
+function shortValue(v: string): string {
+  const parts = v.split('=');
+  return v.length <= 60 || parts.length < 4 ? v : `${parts.slice(0, 2).join('=')}=…=${parts[parts.length - 1]} (${parts.length} chambers)`;
+}
+
+/** Output rows the terminal summary shows at most (besides the varied parameters). */
+const MAX_SUMMARY_ROWS = 40;
 
 // ---- merge -----------------------------------------------------------------------------------
 

@@ -7,7 +7,8 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { runSweep, sweepJson, summariseCases, type SweepResult } from '../../src/index.js';
+import { runSweep, sweepJson, sweepSummaryText, summariseCases, type SweepResult } from '../../src/index.js';
+import { chainNetlist } from '../../bench/networks.js';
 import { findEquilibria } from '../../src/analysis/equilibria.js';
 import { CaseRunner } from '../../src/analysis/sweep-case.js';
 import { runCases, workerScript } from '../../src/analysis/sweep-pool.js';
@@ -191,5 +192,29 @@ describe('a cushion tolerance study agrees with the equilibria analysis', () => 
       expect(eq.equilibria.filter((e) => e.stable).length).toBe(1);
       expect(eq.equilibria.every((e) => e.stable)).toBe(true);
     }
+  });
+});
+
+describe('the terminal summary of a study of a large network', () => {
+  it('shows the varied parameter, the 40 outputs that vary most and a count of the rest; ties of many chambers shortened', async () => {
+    const source = chainNetlist(60, { duration: '20 ms', sample: '1 ms' });
+    const r = await study({ vary: ['lines.l3.diameter=1 mm,3 mm'], jobs: 1 }, source);
+    checkMass(r);
+    const text = sweepSummaryText(r);
+    const lines = text.split('\n');
+    const start = lines.findIndex((l) => l.includes('values (completed cases)'));
+    const rows = lines.slice(start + 1).filter((l) => /^ {4}\S/.test(l) && !l.includes('more outputs'));
+    expect(rows[0]).toContain('lines.l3.diameter [mm]');
+    expect(rows.length).toBeLessThanOrEqual(1 + 40 + 1); // the parameter, 40 outputs, the settling time
+    const summary = summariseCases(r.study, r.cases);
+    const hidden = summary.numeric.length - rows.length;
+    expect(hidden).toBeGreaterThan(0);
+    expect(text).toContain(`... ${hidden} more outputs, which vary less`);
+    // the outputs shown are those with the largest relative spread
+    const spread = (f: { sd: number; mean: number }): number => f.sd / Math.max(Math.abs(f.mean), 1e-300);
+    const outputs = summary.numeric.filter((f) => f.key !== 'lines.l3.diameter' && f.key !== 'settling_time');
+    const cut = [...outputs].sort((a, b) => spread(b) - spread(a))[39];
+    for (const f of outputs) if (spread(f) > spread(cut)) expect(text, f.key).toContain(`    ${f.key}`);
+    for (const l of lines) expect(l.length).toBeLessThan(140);
   });
 });
