@@ -8,13 +8,39 @@ function table(head: string[], rows: string[][]): string {
   return [line(head), line(w.map((n) => '-'.repeat(n))), ...rows.map(line)].join('\n');
 }
 
+/**
+ * Rows a summary table shows at most. A large network (a cushion array, a skin of cells) would
+ * print thousands; the table then shows the elements with the largest swing (pressure, flow)
+ * in netlist order and counts the rest, which --json and --csv carry.
+ */
+export const MAX_TABLE_ROWS = 40;
+
+/** The entries with the largest `size`, at most MAX_TABLE_ROWS, in their original order. */
+function largest<T>(entries: [string, T][], size: (x: T) => number): [string, T][] {
+  if (entries.length <= MAX_TABLE_ROWS) return entries;
+  const s = (x: T): number => { const v = size(x); return Number.isFinite(v) ? v : Infinity; };
+  const keep = new Set([...entries].sort((a, b) => s(b[1]) - s(a[1])).slice(0, MAX_TABLE_ROWS).map((e) => e[0]));
+  return entries.filter((e) => keep.has(e[0]));
+}
+
+/** The line after a table that shows a selection. */
+function more(shown: number, total: number, what: string, by: string): string[] {
+  return shown < total ? [`... ${total - shown} more ${what} not shown (the ${shown} shown have the largest ${by}; all are in --json and --csv)`] : [];
+}
+
+/** Names in a sentence: all of a few, the first and last of many. */
+function nameList(names: string[]): string {
+  return names.length <= 12 ? names.join(', ') : `${names.slice(0, 3).join(', ')} … ${names[names.length - 1]} (${names.length} chambers)`;
+}
+
 export function summaryText(r: RunResult): string {
   const out: string[] = [];
   out.push(`${r.title}  (${r.file})`);
   out.push(`${r.status === 'completed' ? 'completed' : 'FAILED'}: ${r.message}`);
   out.push(`solver ${r.stats.method}: ${r.stats.steps} steps (${r.stats.rejected} rejected), ${r.stats.rhs} rhs, ${r.stats.jacobians} jacobians, ${r.stats.wall_ms} ms`);
   out.push('');
-  const ch = Object.entries(r.chambers);
+  const chAll = Object.entries(r.chambers);
+  const ch = largest(chAll, (c) => c.peak.gauge - c.least.gauge);
   if (ch.length) {
     out.push(table(
       ['chamber', 'final gauge', 'volume', 'stretch', 'mass', 'temp', 'peak gauge', 'at', 'least gauge', 'at'],
@@ -31,18 +57,23 @@ export function summaryText(r: RunResult): string {
         display(c.least.at, 'time'),
       ]),
     ));
+    out.push(...more(ch.length, chAll.length, 'chambers', 'pressure swing'));
     out.push('(pressures in kPa gauge)');
     out.push('');
   }
-  const ln = Object.entries(r.lines);
+  const lnAll = Object.entries(r.lines);
+  const ln = largest(lnAll, (l) => Math.abs(l.peak_flow));
   if (ln.length) {
     out.push(table(['line', 'peak flow', 'peak Re', 'regime'],
       ln.map(([n, l]) => [n, display(l.peak_flow, 'flow'), display(l.peak_reynolds, 'reynolds'), l.regime])));
+    out.push(...more(ln.length, lnAll.length, 'lines', 'peak flow'));
     out.push('');
   }
-  const vl = Object.entries(r.valves);
+  const vlAll = Object.entries(r.valves);
+  const vl = largest(vlAll, (v) => Math.abs(v.peak_flow));
   if (vl.length) {
     out.push(table(['valve', 'peak flow', 'choked'], vl.map(([n, v]) => [n, display(v.peak_flow, 'flow'), v.choked ? 'yes' : 'no'])));
+    out.push(...more(vl.length, vlAll.length, 'valves', 'peak flow'));
     out.push('');
   }
   if (r.events.length) {
@@ -58,7 +89,7 @@ export function summaryText(r: RunResult): string {
     const when = o.outcome === 'settled' ? ` within ${o.band * 100} % by ${display(o.settling_time ?? 0, 'time')}`
       : o.outcome === 'diverging' ? ` (growth ≈ ${o.growth_rate?.toPrecision(3)} 1/s)`
         : o.outcome === 'oscillating' ? ` (period ≈ ${display(o.period ?? 0, 'time')})` : '';
-    out.push(`outcome: ${o.chambers.join(', ')} (${o.closed ? 'closed' : 'open'}): ${o.outcome === 'moving' ? 'still moving at the end' : o.outcome}${when}`);
+    out.push(`outcome: ${nameList(o.chambers)} (${o.closed ? 'closed' : 'open'}): ${o.outcome === 'moving' ? 'still moving at the end' : o.outcome}${when}`);
   }
   for (const w of r.warnings) out.push(`warning: ${w}`);
   if (r.expectations.length) {
