@@ -120,7 +120,7 @@ export class Checker {
       if (allowed.includes(e.key)) continue;
       const close = closestMatches(e.key, allowed);
       if (close.length) this.suggested.set(map, new Set([...(this.suggested.get(map) ?? []), ...close]));
-      const hint = explain?.(e.key) ?? didYouMean(e.key, allowed) ?? `allowed keys: ${allowed.join(', ')}`;
+      const hint = explain?.(e.key) ?? didYouMean(e.key, allowed) ?? `allowed keys: ${[...new Set(allowed)].join(', ')}`;
       this.error({ pos: e.keyPos, path: [...map.path, e.key] }, 'unknown-key', `unknown key \`${e.key}\` in ${owner}`, hint);
     }
   }

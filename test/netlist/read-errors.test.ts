@@ -123,6 +123,14 @@ describe('readNetlist: top level', () => {
     expect(d.hint).toBe('did you mean `simulate`?');
   });
 
+  it('a key nothing resembles lists the allowed keys, each once', () => {
+    const d = find(edit('    volume: 1 L\n', '    volume: 1 L\n    zzzz: 3\n'), 'unknown-key');
+    expect(d.hint).toMatch(/^allowed keys: /);
+    const keys = d.hint!.replace('allowed keys: ', '').split(', ');
+    expect(keys.length).toBeGreaterThan(5);
+    expect(new Set(keys).size).toBe(keys.length);
+  });
+
   it('unknown gas with did-you-mean', () => {
     const d = expectAt(BASE + 'gas: helim\n', 'unknown-gas', 10, 6);
     expect(d.hint).toContain('did you mean `helium`?');
