@@ -123,8 +123,8 @@ describe('readNetlist: top level', () => {
     expect(d.hint).toBe('did you mean `simulate`?');
   });
 
-  it('a key nothing resembles lists the allowed keys, each once', () => {
-    const d = find(edit('    volume: 1 L\n', '    volume: 1 L\n    zzzz: 3\n'), 'unknown-key');
+  it('a key nothing resembles lists the allowed keys, each once (a chamber with no wall: the keys of every wall law)', () => {
+    const d = find(edit('    wall: rigid\n    volume: 1 L\n', '    zzzz: 3\n'), 'unknown-key');
     expect(d.hint).toMatch(/^allowed keys: /);
     const keys = d.hint!.replace('allowed keys: ', '').split(', ');
     expect(keys.length).toBeGreaterThan(5);
