@@ -147,17 +147,18 @@ function describeOperation(op: ValveOperation): string {
   }
 }
 
-function channelOf(r: RunResult, key: string): number[] | undefined {
-  let index = channelIndex.get(r.trace.channels);
+/** Values of a trace channel by key, or undefined when the run did not record it. */
+export function traceChannel(trace: RunResult['trace'], key: string): number[] | undefined {
+  let index = channelIndex.get(trace.channels);
   if (!index) {
-    index = new Map(r.trace.channels.map((c, i) => [c.key, i] as const));
-    channelIndex.set(r.trace.channels, index);
+    index = new Map(trace.channels.map((c, i) => [c.key, i] as const));
+    channelIndex.set(trace.channels, index);
   }
   const i = index.get(key);
-  return i === undefined ? undefined : r.trace.values[i];
+  return i === undefined ? undefined : trace.values[i];
 }
 
-/** Channel positions by key, per trace (a large network looks up thousands). */
+/** Channel positions by key, per trace (a figure of a large network looks up thousands). */
 const channelIndex = new WeakMap<readonly { key: string }[], Map<string, number>>();
 
 function finiteRange(v: number[]): [number, number] {
@@ -249,7 +250,7 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
   }));
   const walls: WallCurve[] = [];
   for (const c of model.chambers) {
-    const traj = channelOf(result, `${c.name}.${c.wall.sphere ? 'stretch' : 'volume'}`);
+    const traj = traceChannel(result.trace, `${c.name}.${c.wall.sphere ? 'stretch' : 'volume'}`);
     const w = sampleWall(c.name, c.wall, c.spec.wall, c.deflation, traj);
     if (w) walls.push(w);
   }

@@ -2,25 +2,15 @@
  * Small readers over a ReportInput shared by the figures and the HTML: trace channels, the
  * style each chamber keeps everywhere, the flow paths shown, and the net mass each carried.
  */
-import type { ReportInput } from '../analysis/report-input.js';
+import { traceChannel, type ReportInput } from '../analysis/report-input.js';
 import { styleAt, type SeriesStyle } from './svg-chart.js';
 
 export interface FlowPath { name: string; channel: string; from: string; to: string; label: string }
 
 /** Values of a trace channel, or undefined when the run did not record it. */
 export function channel(input: ReportInput, key: string): number[] | undefined {
-  const channels = input.result.trace.channels;
-  let index = channelIndex.get(channels);
-  if (!index) {
-    index = new Map(channels.map((c, i) => [c.key, i] as const));
-    channelIndex.set(channels, index);
-  }
-  const i = index.get(key);
-  return i === undefined ? undefined : input.result.trace.values[i];
+  return traceChannel(input.result.trace, key);
 }
-
-/** Channel positions by key, per trace (a figure of a large network looks up thousands). */
-const channelIndex = new WeakMap<readonly { key: string }[], Map<string, number>>();
 
 /** The style of each chamber, by its place in the netlist. */
 export function chamberStyles(input: ReportInput): Map<string, SeriesStyle> {
