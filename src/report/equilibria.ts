@@ -4,6 +4,7 @@
 import type { ChamberRest, EquilibriaResult } from '../analysis/equilibria.js';
 import type { TraceResult } from '../analysis/continuation.js';
 import { display } from '../units/display.js';
+import { nameList } from './table.js';
 
 /** JSON has no Infinity/NaN: write them as null. */
 function json(value: unknown): string {
@@ -31,11 +32,6 @@ const WIDE_MAX_CHAMBERS = 8;
 /** Equilibria up to which the table with a row a chamber is used. */
 const TALL_MAX_EQUILIBRIA = 12;
 
-/** Names for a heading: all of a few, the first and last of many. */
-function listed(names: string[]): string {
-  return names.length <= 12 ? names.join(', ') : `${names.slice(0, 3).join(', ')} … ${names[names.length - 1]} (${names.length} chambers)`;
-}
-
 /** The printed summary of `plenum equilibria`. */
 export function equilibriaText(r: EquilibriaResult): string {
   const out: string[] = [];
@@ -49,7 +45,7 @@ export function equilibriaText(r: EquilibriaResult): string {
     const how = g.method === 'enumeration' ? `by enumeration of ${g.combinations} branch combination${g.combinations === 1 ? '' : 's'}`
       : g.method === 'deflation' ? `by deflated Newton from ${g.combinations} starts (may be incomplete)`
         : g.method === 'steady-flow' ? 'from the steady flow' : '';
-    out.push(`group ${listed(g.chambers)} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
+    out.push(`group ${nameList(g.chambers)} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
     for (const n of g.notes) out.push(`  note: ${n}`);
   }
   out.push('');

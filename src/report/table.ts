@@ -29,7 +29,7 @@ function more(shown: number, total: number, what: string, by: string): string[] 
 }
 
 /** Names in a sentence: all of a few, the first and last of many. */
-function nameList(names: string[]): string {
+export function nameList(names: string[]): string {
   return names.length <= 12 ? names.join(', ') : `${names.slice(0, 3).join(', ')} … ${names[names.length - 1]} (${names.length} chambers)`;
 }
 
