@@ -1,5 +1,5 @@
 /** `plenum equilibria NETLIST`: every rest state, its stability, and where the transient goes. */
-import { equilibriaJson, equilibriaText, findEquilibria, type GasSource, type ValveState } from '../index.js';
+import { equilibriaJson, equilibriaText, findEquilibria, type GasSource, type Model, type ValveState } from '../index.js';
 import { loadOrExit } from './load.js';
 import { samePath, UsageError, writeAtomic } from './io.js';
 
@@ -13,6 +13,32 @@ export interface EquilibriaCliOptions {
 }
 
 const VALVES: readonly ValveState[] = ['open', 'closed', 'end'];
+
+/**
+ * Largest group of joined chambers `plenum equilibria` analyses. Each equilibrium's stability
+ * is a dense eigenvalue problem of its group's size, O(n³): about 15 s at 1 000 chambers here,
+ * some two minutes at 2 000, hours at 10 000. Above the limit the command says so at once.
+ */
+export const MAX_GROUP_CHAMBERS = 2000;
+
+/** Refuses, as a usage error, a network whose largest joined group exceeds `limit` chambers. */
+export function refuseLargeGroup(model: Model, file: string, limit: number, command: string, cost: string): void {
+  const largest = largestJoinedGroup(model);
+  if (largest <= limit) return;
+  throw new UsageError(`${file}: ${largest} chambers are joined in one group; ${cost}, and ${command} takes groups of up to ${limit} chambers; analyse a part of the network in a netlist of its own`);
+}
+
+/** Chambers in the largest set joined by lines and valves (whatever the valves' state). */
+export function largestJoinedGroup(model: Model): number {
+  const parent = model.chambers.map((_, i) => i);
+  const root = (i: number): number => { while (parent[i] !== i) { parent[i] = parent[parent[i]]; i = parent[i]; } return i; };
+  for (const b of model.branches) {
+    if (b.from.kind === 'chamber' && b.to.kind === 'chamber') parent[root(b.from.index)] = root(b.to.index);
+  }
+  const size = new Map<number, number>();
+  for (let i = 0; i < parent.length; i++) size.set(root(i), (size.get(root(i)) ?? 0) + 1);
+  return Math.max(0, ...size.values());
+}
 const GAS: readonly GasSource[] = ['start', 'end'];
 
 export function equilibriaCommand(file: string, opts: EquilibriaCliOptions): number {
@@ -28,6 +54,8 @@ export function equilibriaCommand(file: string, opts: EquilibriaCliOptions): num
   }
   if (opts.json && opts.json !== '-' && samePath(opts.json, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
   const model = loadOrExit(file);
+  refuseLargeGroup(model, file, MAX_GROUP_CHAMBERS, 'plenum equilibria',
+    'the stability of its equilibria is a dense eigenvalue problem that grows with the cube of that number (about two minutes at the limit)');
   const result = findEquilibria(model, { valves, gas, transient: opts.transient !== false, maxCombinations });
   if (!opts.quiet) (opts.json === '-' ? process.stderr : process.stdout).write(equilibriaText(result));
   if (opts.json) {

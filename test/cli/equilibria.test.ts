@@ -50,6 +50,29 @@ describe('plenum equilibria', () => {
     for (let i = 0; i < 20; i++) expect(lines.some((l) => new RegExp(`^\\s*c${i}\\s+0 kPa`).test(l)), `c${i}`).toBe(true);
   });
 
+  it('refuses at once a group larger than it can analyse in minutes, with exit 2 and the reason', async () => {
+    const { writeFileSync } = await import('node:fs');
+    const { chainNetlist } = await import('../../bench/networks.js');
+    const file = join(tmp, 'chain-2001.yaml');
+    writeFileSync(file, chainNetlist(2001));
+    const r = plenum('equilibria', file, '--no-transient');
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('2001 chambers are joined in one group');
+    expect(r.err).toContain('up to 2000 chambers');
+    expect(r.err).not.toContain('    at '); // no stack trace
+  });
+
+  it('trace refuses at once a group of more than 500 chambers, with exit 2 and the reason', async () => {
+    const { writeFileSync } = await import('node:fs');
+    const { chainNetlist } = await import('../../bench/networks.js');
+    const file = join(tmp, 'chain-501.yaml');
+    writeFileSync(file, chainNetlist(501));
+    const r = plenum('trace', file, '--vary', 'lines.l5.diameter', '--from', '1 mm', '--to', '3 mm');
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('501 chambers are joined in one group');
+    expect(r.err).toContain('plenum trace takes groups of up to 500 chambers');
+  });
+
   it('writes a JSON file whole, and refuses a bad --valves with exit 2', () => {
     const out = join(tmp, 'eq.json');
     const ok = plenum('equilibria', 'networks/cushion-settle.yaml', '--no-transient', '--json', out, '-q');
