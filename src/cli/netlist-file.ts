@@ -4,7 +4,7 @@
  */
 import { closeSync, fstatSync, openSync, readSync } from 'node:fs';
 import type { Diagnostic } from '../diag/diagnostic.js';
-import { MAX_SOURCE_BYTES } from '../netlist/limits.js';
+import { MAX_SOURCE_BYTES, MAX_SOURCE_TEXT } from '../netlist/limits.js';
 import { UsageError } from './io.js';
 
 /**
@@ -52,7 +52,7 @@ export function readBounded(file: string, what = 'a netlist file (.yaml)'): Boun
       chunks.push(Buffer.from(chunk.subarray(0, n)));
       total += n;
       if (total > MAX_SOURCE_BYTES) {
-        const limit = `${MAX_SOURCE_BYTES} bytes (2 MiB)`;
+        const limit = MAX_SOURCE_TEXT;
         return {
           tooLarge: {
             code: 'input-too-large', severity: 'error', file, line: 1, column: 1, path: [],

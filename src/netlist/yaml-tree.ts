@@ -9,7 +9,7 @@ import type { Node as YamlNode, YAMLError } from 'yaml';
 import type { Diagnostic } from '../diag/diagnostic.js';
 import { fastYamlTree } from './fast-yaml.js';
 
-import { MAX_SOURCE_BYTES } from './limits.js';
+import { MAX_SOURCE_BYTES, MAX_SOURCE_TEXT } from './limits.js';
 
 export { MAX_SOURCE_BYTES };
 /** Deepest nesting of maps and lists accepted (a netlist needs about 6). */
@@ -143,7 +143,7 @@ function preflight(source: string, file: string): Diagnostic | undefined {
   const start = { line: 1, column: 1 };
   const bytes = source.length > MAX_SOURCE_BYTES ? source.length : Buffer.byteLength(source, 'utf8');
   if (bytes > MAX_SOURCE_BYTES) {
-    return diag(file, 'input-too-large', start, `the netlist is ${bytes} bytes, more than the limit of ${MAX_SOURCE_BYTES} bytes (2 MiB)`, 'split the network or generate a smaller netlist');
+    return diag(file, 'input-too-large', start, `the netlist is ${bytes} bytes, more than the limit of ${MAX_SOURCE_TEXT}`, 'split the network or generate a smaller netlist');
   }
   const junk = BINARY.exec(source);
   if (junk) {

@@ -13,6 +13,7 @@ import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, writeFil
 import { tmpdir } from 'node:os';
 import { join, relative } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
+import { MAX_SOURCE_BYTES } from '../../src/netlist/limits.js';
 
 interface Expected { code: string; line: number; column: number }
 interface Outcome { code: number | null; signal: string | null; err: string; out: string; outDir: string }
@@ -51,9 +52,9 @@ function junk(n: number, seed: number): Buffer {
 function generated(): { name: string; content: string | Buffer; expected: Expected }[] {
   const deepBlock = Array.from({ length: 40 }, (_, i) => `${' '.repeat(2 * i)}k${i}:`).join('\n');
   return [
-    // over the 2 MiB limit: a valid netlist padded with a comment, and one enormous scalar
-    { name: 'g01-too-large-comment.yaml', content: BASE + '#'.repeat(3 * 1024 * 1024) + '\n', expected: { code: 'input-too-large', line: 1, column: 1 } },
-    { name: 'g02-too-large-scalar.yaml', content: BASE + 'title: ' + 'x'.repeat(2 * 1024 * 1024 + 10) + '\n', expected: { code: 'input-too-large', line: 1, column: 1 } },
+    // over the size limit: a valid netlist padded with a comment, and one enormous scalar
+    { name: 'g01-too-large-comment.yaml', content: BASE + '#'.repeat(MAX_SOURCE_BYTES + 1024 * 1024) + '\n', expected: { code: 'input-too-large', line: 1, column: 1 } },
+    { name: 'g02-too-large-scalar.yaml', content: BASE + 'title: ' + 'x'.repeat(MAX_SOURCE_BYTES + 10) + '\n', expected: { code: 'input-too-large', line: 1, column: 1 } },
     // binary junk: random bytes, file-type signatures, a NUL inside text, broken UTF-8, UTF-16
     { name: 'g03-random-bytes.yaml', content: Buffer.concat([Buffer.from([0x00]), junk(4096, 7)]), expected: { code: 'input-binary', line: 1, column: 1 } },
     { name: 'g04-png.yaml', content: Buffer.concat([Buffer.from([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]), junk(512, 3)]), expected: { code: 'input-binary', line: 1, column: 1 } },
@@ -178,7 +179,7 @@ describe('inputs that are not netlist files', () => {
     const r = await plenum(['run', '/dev/zero']);
     expect(r.code).toBe(2);
     expect(r.err).toContain('/dev/zero:1:1: error [input-too-large]');
-    expect(r.err).toContain('longer than the limit of 2097152 bytes');
+    expect(r.err).toContain(`longer than the limit of ${MAX_SOURCE_BYTES} bytes`);
   });
 
   it('a directory and a missing file exit 2 with a message and no stack trace', async () => {

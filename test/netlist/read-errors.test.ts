@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { Diagnostic } from '../../src/diag/diagnostic.js';
 import { readNetlist } from '../../src/netlist/read.js';
+import { MAX_SOURCE_BYTES } from '../../src/netlist/limits.js';
 
 /**
  * A valid netlist; each case edits it. Line numbers below refer to this layout:
@@ -92,9 +93,9 @@ describe('readNetlist: input guards', () => {
     expectAt('format: 1\ntitle: caf\uFFFD\n', 'input-binary', 2, 11);
   });
 
-  it('oversized file (limit 2 MiB)', () => {
-    const d = expectAt('format: 1\n' + '#'.repeat(2 * 1024 * 1024), 'input-too-large', 1, 1);
-    expect(d.message).toContain('2097152');
+  it('oversized file (limit 8 MiB)', () => {
+    const d = expectAt('format: 1\n' + '#'.repeat(MAX_SOURCE_BYTES), 'input-too-large', 1, 1);
+    expect(d.message).toContain('8388608 bytes (8 MiB)');
   });
 
   it('deep nesting is refused before the YAML parser recurses', () => {

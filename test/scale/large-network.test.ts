@@ -13,6 +13,23 @@ import type { Integrator } from '../../src/solve/types.js';
 import { chainNetlist, gridNetlist, starNetlist } from '../../bench/networks.js';
 import { modelFromText, runChecked } from '../helpers.js';
 
+describe('a 10 000-chamber netlist written in block style, with limits', () => {
+  it('is read whole (about 2.2 MB: over the former 2 MiB limit, within the 8 MiB one)', () => {
+    const flow = chainNetlist(10_000);
+    // the same chain, every element as a block mapping under a comment, every chamber with limits
+    const block = flow.replace(/^ {2}([a-z]\d+): \{ ([^[\n]*) \}$/gm, (_, name: string, body: string) => {
+      const entries = body.split(/, (?=[a-z-]+: )/).map((e) => `    ${e}`);
+      if (body.includes('neo-hookean')) entries.push('    limits: { pressure: 30 kPa gauge, stretch: 2.5 }');
+      if (body.includes('rigid')) entries.push('    limits: { pressure: 30 kPa gauge }');
+      return `  # element ${name} of the generated chain\n  ${name}:\n${entries.join('\n')}`;
+    });
+    expect(Buffer.byteLength(block)).toBeGreaterThan(2 * 1024 * 1024);
+    const model = modelFromText(block);
+    expect(model.chambers).toHaveLength(10_000);
+    expect(model.chambers.filter((c) => c.limits.stretch === 2.5)).toHaveLength(5000);
+  });
+});
+
 describe('a 2 000-chamber chain (generated, as in the benchmark)', () => {
   it('completes with the stiff method on sparse LU and conserves mass (drift < 1e-9)', () => {
     const model = modelFromText(chainNetlist(2000, { sample: '100 ms', duration: '0.6 s' }));
