@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { channel, modelFromText, runChecked } from '../helpers.js';
 import type { RunResult } from '../../src/index.js';
+import { ExpectationMonitor, type ChannelSource } from '../../src/analysis/expectations.js';
 
 // Rigid tank blowing down through a laminar capillary, isothermal (references.md, closed form):
 // dp/dt = −k(p² − pa²), k = πD⁴/(256 μ L V), p(t) = pa(1 + A e^(−2 pa k t))/(1 − A e^(−2 pa k t)),
@@ -197,5 +198,49 @@ describe('messages of failing expectations', () => {
     expect(m).not.toBeNull();
     expect(m![1]).not.toBe(m![2]);
     expect(Number(m![1])).toBeGreaterThan(Number(m![2]));
+  });
+});
+
+describe('the cost of a settles check on many chambers', () => {
+  /**
+   * n chambers whose pressure and volume decay to their final values, q(t) = q∞(1 + a·e^(−t)),
+   * observed through a counting source. The check's answer is the largest relative distance
+   * from the final value after `within`, a·e^(−within)/(1 + a·e^(−1)) for the chamber with the
+   * largest a. Its cost must not grow with chambers × steps evaluations: each evaluation of the
+   * network is a full one (all chambers), so the nodes of a step are evaluated once, whatever
+   * the number of channels tracked, including for the step the window starts in.
+   */
+  it('evaluates the network a few times a step, not once a tracked channel, and finds the largest deviation', () => {
+    const n = 200;
+    const keys = new Map<string, number>();
+    for (let i = 0; i < n; i++) { keys.set(`c${i}.pressure`, 2 * i); keys.set(`c${i}.volume`, 2 * i + 1); }
+    const amp = (i: number): number => 0.01 + 0.1 * (i / n);
+    let evaluations = 0;
+    const src: ChannelSource = {
+      keys, width: 2 * n, n: 1,
+      observe(t, _y, row) {
+        evaluations++;
+        for (let i = 0; i < n; i++) {
+          row[2 * i] = 2e5 * (1 + amp(i) * Math.exp(-t));
+          row[2 * i + 1] = 1e-3 * (1 + 0.5 * amp(i) * Math.exp(-t));
+        }
+      },
+    };
+    const within = 0.55;
+    const monitor = new ExpectationMonitor([{ kind: 'settles', name: 'settles', within, band: 0.05, pos: { file: 'x.yaml', line: 1, column: 1, path: ['expect', 0] } }],
+      src, Array.from({ length: n }, (_, i) => `c${i}`), 101325);
+    const steps = 10;
+    for (let k = 0; k < steps; k++) {
+      const tOld = k * 0.1, tNew = (k + 1) * 0.1;
+      monitor.step(tOld, tNew, (t, y) => { y[0] = t; });
+    }
+    const before = evaluations;
+    const [r] = monitor.results(1, new Float64Array(1));
+    expect(evaluations - before).toBe(1); // the final state
+    // 7 nodes a step, plus the piece of the step in which the window starts
+    expect(before).toBeLessThanOrEqual(7 * (steps + 1));
+    const a = amp(n - 1);
+    expect(r.passed).toBe(true);
+    expect(r.actual).toBeCloseTo((a * (Math.exp(-within) - Math.exp(-1))) / (1 + a * Math.exp(-1)), 12);
   });
 });
