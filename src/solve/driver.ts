@@ -124,7 +124,20 @@ function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Floa
       if (estimate < first) { first = estimate; kBest = k; }
     }
     const tc = locate(p, kBest, a, gA[kBest], hi, gAt[kBest], dense, yTmp, gTmp);
-    if (!(tc < hi)) break; // no earlier instant to be found: all of `set` cross at hi
+    if (!(tc < hi)) {
+      // kBest crosses at hi itself (its secant estimate may have been early for a curved g):
+      // one evaluation just before hi tells whether any other crossed earlier
+      const before = hi - 8e-15 * Math.max(Math.abs(hi), 1e-300) - 2e-15;
+      if (!(before > a)) break;
+      dense(before, yTmp);
+      p.eventValues(before, yTmp, gTmp);
+      const earlier = set.filter((k) => crosses(p, k, gA[k], gTmp[k]));
+      if (earlier.length === 0) break; // all of `set` cross at hi, within round-off: together
+      hi = before;
+      gAt.set(gTmp);
+      set = earlier;
+      continue;
+    }
     dense(tc, yTmp);
     p.eventValues(tc, yTmp, gTmp);
     const crossed = set.filter((k) => crosses(p, k, gA[k], gTmp[k]));
