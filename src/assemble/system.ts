@@ -30,7 +30,22 @@ export interface SystemEvent {
   direction: number;    // +1, −1, 0
   /** For extremum events: which extremum. */
   extremum?: { V: number; p: number; kind: 'max' | 'min' };
+  /** For check events: +1 after the valve last opened, −1 after it last closed (see CHECK_DEADBAND). */
+  side?: number;
 }
+
+/**
+ * Dead band of a check valve's event, relative to the mean of its end pressures. Its flow is
+ * continuous (the cracking pressure acts as a drop while open), so the event only restarts the
+ * integrator at the kink; between two chambers at the same pressure the pressure difference is
+ * round-off that changes sign from one evaluation to the next, and without a dead band the
+ * valve "opened and closed" at every step until a budget stopped the run (found by the fuzzer:
+ * a zero-cracking check valve between two chambers starting at ambient). An opening is
+ * registered once the difference exceeds the cracking pressure by this band (1e-7 of 100 kPa is
+ * 0.01 Pa), a closing when it falls to the cracking pressure: after a closing, round-off cannot
+ * reopen the valve.
+ */
+const CHECK_DEADBAND = 1e-7;
 
 export interface LoggedEvent { t: number; what: string; kind: string; element: string }
 
@@ -139,7 +154,7 @@ export class NetworkSystem implements EventfulProblem {
     model.branches.forEach((b, i) => {
       const op = b.valve?.operation;
       if (op?.kind === 'relief') this.events.push({ kind: 'relief', element: b.name, index: i, direction: 0 });
-      if (op?.kind === 'check') this.events.push({ kind: 'check', element: b.name, index: i, direction: 0 });
+      if (op?.kind === 'check') this.events.push({ kind: 'check', element: b.name, index: i, direction: 0, side: -1 });
     });
     model.chambers.forEach((c, i) => {
       for (const e of c.wall.extrema) this.events.push({ kind: 'extremum', element: c.name, index: i, direction: 0, extremum: e });
@@ -332,7 +347,10 @@ export class NetworkSystem implements EventfulProblem {
         case 'check': {
           const bm = this.model.branches[e.index];
           const op = bm.valve!.operation as { cracking: number };
-          out[k] = this.p[this.nodeIndex(bm.from)] - op.cracking - this.p[this.nodeIndex(bm.to)];
+          const p1 = this.p[this.nodeIndex(bm.from)];
+          const p2 = this.p[this.nodeIndex(bm.to)];
+          const g = p1 - op.cracking - p2;
+          out[k] = (e.side ?? -1) > 0 ? g : g - CHECK_DEADBAND * 0.5 * (Math.abs(p1) + Math.abs(p2));
           break;
         }
         case 'extremum':
@@ -366,6 +384,7 @@ export class NetworkSystem implements EventfulProblem {
         return true;
       }
       case 'check':
+        e.side = rising ? 1 : -1;
         note(`check valve ${e.element} ${rising ? 'opens' : 'closes'}`);
         return true;
       case 'extremum': {
@@ -408,6 +427,13 @@ export class NetworkSystem implements EventfulProblem {
   settleInitialModes(t: number, y: Float64Array): void {
     this.evaluate(t, y);
     for (const e of this.events) {
+      if (e.kind === 'check') {
+        // open at the start when the difference already exceeds the cracking pressure
+        const bm = this.model.branches[e.index];
+        const op = bm.valve!.operation as { cracking: number };
+        e.side = this.p[this.nodeIndex(bm.from)] - op.cracking - this.p[this.nodeIndex(bm.to)] > 0 ? 1 : -1;
+        continue;
+      }
       if (e.kind !== 'relief') continue;
       const bm = this.model.branches[e.index];
       const op = bm.valve!.operation as { opensAbove: number };
