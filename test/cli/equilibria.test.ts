@@ -1,9 +1,10 @@
 /** `plenum equilibria` and `plenum trace` as a user runs them, and the run's outcome in its outputs. */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
+import { existsSync, mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
+import { chainNetlist } from '../../bench/networks.js';
 
 function plenum(...args: string[]): { code: number; out: string; err: string } {
   const r = spawnSync(process.execPath, ['bin/plenum', ...args], { encoding: 'utf8', env: { ...process.env, CI: '1' } });
@@ -11,6 +12,13 @@ function plenum(...args: string[]): { code: number; out: string; err: string } {
 }
 
 const tmp = mkdtempSync(join(tmpdir(), 'plenum-eq-'));
+
+/** A generated chain of n chambers (as in the benchmark) written to a file. */
+function chainFile(n: number): string {
+  const file = join(tmp, `chain-${n}.yaml`);
+  writeFileSync(file, chainNetlist(n));
+  return file;
+}
 
 describe('plenum equilibria', () => {
   it('--help lists equilibria and trace', () => {
@@ -37,11 +45,8 @@ describe('plenum equilibria', () => {
     expect(r.err).toContain('the equilibrium the transient reaches');
   });
 
-  it('prints a network of many chambers with a chamber a row, and names its group by first and last', async () => {
-    const { writeFileSync } = await import('node:fs');
-    const { chainNetlist } = await import('../../bench/networks.js');
-    const file = join(tmp, 'chain-20.yaml');
-    writeFileSync(file, chainNetlist(20));
+  it('prints a network of many chambers with a chamber a row, and names its group by first and last', () => {
+    const file = chainFile(20);
     const r = plenum('equilibria', file, '--no-transient');
     expect(r.code, r.err).toBe(0);
     expect(r.out).toContain('group c0, c1, c2 … c19 (20 chambers)');
@@ -50,11 +55,8 @@ describe('plenum equilibria', () => {
     for (let i = 0; i < 20; i++) expect(lines.some((l) => new RegExp(`^\\s*c${i}\\s+0 kPa`).test(l)), `c${i}`).toBe(true);
   });
 
-  it('refuses at once a group larger than it can analyse in minutes, with exit 2 and the reason', async () => {
-    const { writeFileSync } = await import('node:fs');
-    const { chainNetlist } = await import('../../bench/networks.js');
-    const file = join(tmp, 'chain-2001.yaml');
-    writeFileSync(file, chainNetlist(2001));
+  it('refuses at once a group larger than it can analyse in minutes, with exit 2 and the reason', () => {
+    const file = chainFile(2001);
     const r = plenum('equilibria', file, '--no-transient');
     expect(r.code).toBe(2);
     expect(r.err).toContain('2001 chambers are joined in one group');
@@ -62,11 +64,8 @@ describe('plenum equilibria', () => {
     expect(r.err).not.toContain('    at '); // no stack trace
   });
 
-  it('trace refuses at once a group of more than 500 chambers, with exit 2 and the reason', async () => {
-    const { writeFileSync } = await import('node:fs');
-    const { chainNetlist } = await import('../../bench/networks.js');
-    const file = join(tmp, 'chain-501.yaml');
-    writeFileSync(file, chainNetlist(501));
+  it('trace refuses at once a group of more than 500 chambers, with exit 2 and the reason', () => {
+    const file = chainFile(501);
     const r = plenum('trace', file, '--vary', 'lines.l5.diameter', '--from', '1 mm', '--to', '3 mm');
     expect(r.code).toBe(2);
     expect(r.err).toContain('501 chambers are joined in one group');
