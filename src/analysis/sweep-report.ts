@@ -10,6 +10,7 @@ import { display, type DisplayKind } from '../units/display.js';
 import type { CaseResult, ChamberOutcome } from './sweep-case.js';
 import type { ParamValue } from './sweep-spec.js';
 import { summarise, wilson, type NumericSummary, type Proportion } from './sweep-stats.js';
+import { keepLargest } from './select.js';
 import type { Shard, Study, SweepResult } from './sweep.js';
 
 export interface NumericField extends NumericSummary {
@@ -244,13 +245,10 @@ export function sweepSummaryText(r: SweepResult): string {
   // a large network gives four rows a chamber: show the varied parameters, the settling time
   // and the outputs that vary most relative to their size; --csv and --json carry them all
   const varied = new Set(r.study.vary.map((v) => v.path));
-  const fixed = s.numeric.filter((f) => varied.has(f.key) || f.key === 'settling_time');
-  const outputs = s.numeric.filter((f) => !varied.has(f.key) && f.key !== 'settling_time');
+  const isOutput = (f: NumericField): boolean => !varied.has(f.key) && f.key !== 'settling_time';
   const spread = (f: NumericField): number => (Number.isFinite(f.sd) ? f.sd / Math.max(Math.abs(f.mean), 1e-300) : -1);
-  const kept = outputs.length <= MAX_SUMMARY_ROWS ? outputs
-    : new Set([...outputs].sort((a, b) => spread(b) - spread(a)).slice(0, MAX_SUMMARY_ROWS));
-  const rows = outputs.length <= MAX_SUMMARY_ROWS ? s.numeric
-    : s.numeric.filter((f) => fixed.includes(f) || (kept as Set<NumericField>).has(f));
+  const keep = new Set(keepLargest(s.numeric.filter(isOutput), spread, MAX_SUMMARY_ROWS));
+  const rows = s.numeric.filter((f) => !isOutput(f) || keep.has(f));
   for (const f of rows) {
     const u = displayUnit(f.key, f.unit, Math.max(Math.abs(f.min), Math.abs(f.max)));
     const label = u.unit === '-' ? f.key : `${f.key} [${u.unit}]`;

@@ -346,11 +346,9 @@ export class NetworkSystem implements EventfulProblem {
         }
         case 'check': {
           const bm = this.model.branches[e.index];
-          const op = bm.valve!.operation as { cracking: number };
-          const p1 = this.p[this.nodeIndex(bm.from)];
-          const p2 = this.p[this.nodeIndex(bm.to)];
-          const g = p1 - op.cracking - p2;
-          out[k] = (e.side ?? -1) > 0 ? g : g - CHECK_DEADBAND * 0.5 * (Math.abs(p1) + Math.abs(p2));
+          const g = this.checkMargin(e.index);
+          const pMean = 0.5 * (Math.abs(this.p[this.nodeIndex(bm.from)]) + Math.abs(this.p[this.nodeIndex(bm.to)]));
+          out[k] = (e.side ?? -1) > 0 ? g : g - CHECK_DEADBAND * pMean;
           break;
         }
         case 'extremum':
@@ -424,14 +422,19 @@ export class NetworkSystem implements EventfulProblem {
   }
 
   /** Events that hold at the start (a relief valve already above its set point). */
+  /** How far the pressure difference across check valve `b` exceeds its cracking pressure (Pa). */
+  private checkMargin(b: number): number {
+    const bm = this.model.branches[b];
+    const op = bm.valve!.operation as { cracking: number };
+    return this.p[this.nodeIndex(bm.from)] - op.cracking - this.p[this.nodeIndex(bm.to)];
+  }
+
   settleInitialModes(t: number, y: Float64Array): void {
     this.evaluate(t, y);
     for (const e of this.events) {
       if (e.kind === 'check') {
         // open at the start when the difference already exceeds the cracking pressure
-        const bm = this.model.branches[e.index];
-        const op = bm.valve!.operation as { cracking: number };
-        e.side = this.p[this.nodeIndex(bm.from)] - op.cracking - this.p[this.nodeIndex(bm.to)] > 0 ? 1 : -1;
+        e.side = this.checkMargin(e.index) > 0 ? 1 : -1;
         continue;
       }
       if (e.kind !== 'relief') continue;

@@ -31,7 +31,7 @@ export function checkNetlist(file: string, interrupt?: () => string | null): Net
   const started = performance.now();
   // bounded: a huge file or an endless device is refused, not read into memory
   const read = readBounded(file);
-  if ('unreadable' in read) return invalid(file, [unreadable(file, read.directory ? 'it is a directory' : read.unreadable)], started);
+  if ('unreadable' in read) return invalid(file, [unreadable(file, read.unreadable)], started);
   if ('tooLarge' in read) return invalid(file, [read.tooLarge], started);
   const m = loadModel(read.text, file);
   if (!m.ok) return invalid(file, m.diagnostics, started);

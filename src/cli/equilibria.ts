@@ -13,6 +13,7 @@ export interface EquilibriaCliOptions {
 }
 
 const VALVES: readonly ValveState[] = ['open', 'closed', 'end'];
+const GAS: readonly GasSource[] = ['start', 'end'];
 
 /**
  * Largest group of joined chambers `plenum equilibria` analyses. Each equilibrium's stability
@@ -39,7 +40,6 @@ export function largestJoinedGroup(model: Model): number {
   for (let i = 0; i < parent.length; i++) size.set(root(i), (size.get(root(i)) ?? 0) + 1);
   return Math.max(0, ...size.values());
 }
-const GAS: readonly GasSource[] = ['start', 'end'];
 
 export function equilibriaCommand(file: string, opts: EquilibriaCliOptions): number {
   const valves = (opts.valves ?? 'end') as ValveState;

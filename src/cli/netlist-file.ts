@@ -12,7 +12,7 @@ import { UsageError } from './io.js';
  * all (missing, a directory, no permission) turned into a usage error.
  */
 export function readNetlistFile(file: string): { text: string } | { tooLarge: Diagnostic } {
-  const r = readBounded(file, 'a netlist file (.yaml)');
+  const r = readBounded(file);
   if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected a netlist file (.yaml)` : `${file}: cannot read the netlist (${r.unreadable})`);
   return r;
 }
@@ -26,7 +26,7 @@ export type BoundedRead = { text: string } | { tooLarge: Diagnostic } | { unread
  * memory. Returns the text, the diagnostic for an input over the limit, or why the file cannot
  * be read (`ENOENT` as "no such file"; `directory` set for a directory).
  */
-export function readBounded(file: string, what = 'a netlist file (.yaml)'): BoundedRead {
+export function readBounded(file: string): BoundedRead {
   let fd: number;
   try {
     fd = openSync(file, 'r');
@@ -36,7 +36,7 @@ export function readBounded(file: string, what = 'a netlist file (.yaml)'): Boun
   }
   try {
     const st = fstatSync(fd);
-    if (st.isDirectory()) return { unreadable: `it is a directory, expected ${what}`, directory: true };
+    if (st.isDirectory()) return { unreadable: 'it is a directory', directory: true };
     const chunks: Buffer[] = [];
     let total = 0;
     const chunk = Buffer.alloc(64 * 1024);

@@ -35,7 +35,7 @@ function parseShard(text: string | undefined): Shard | undefined {
 
 /** A netlist or study file, read with the netlist size limit (a huge file or a device is refused). */
 function readText(file: string, what: string): string {
-  const r = readBounded(file, what);
+  const r = readBounded(file);
   if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
   if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; ${r.tooLarge.hint}`);
   return r.text;

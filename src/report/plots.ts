@@ -4,6 +4,7 @@
  * chamber's operating point rides on its wall law. Each chamber keeps one style (colour, dash,
  * marker) in every figure and in the network diagram.
  */
+import { keepLargest } from '../analysis/select.js';
 import type { EquilibriumMark, ReportInput, WallCurve } from '../analysis/report-input.js';
 import { display, displayScale, type DisplayKind } from '../units/display.js';
 import { chartSvg, styleAt, type ChartBand, type ChartEvent, type ChartPoint, type ChartRefLine, type ChartSeries, type LegendItem } from './svg-chart.js';
@@ -101,16 +102,11 @@ const MAX_BAND_POINTS = 800;
 
 /** The names whose channel changes most (max − min), at most MAX_SERIES, in netlist order. */
 function mostChanging(input: ReportInput, names: string[], channelOf: (name: string) => string): string[] {
-  if (names.length <= MAX_SERIES) return names;
-  const swing = new Map<string, number>();
-  for (const n of names) {
-    const v = channel(input, channelOf(n));
+  return keepLargest(names, (n) => {
     let lo = Infinity, hi = -Infinity;
-    for (const x of v ?? []) if (Number.isFinite(x)) { if (x < lo) lo = x; if (x > hi) hi = x; }
-    swing.set(n, hi > lo ? hi - lo : 0);
-  }
-  const keep = new Set([...names].sort((a, b) => swing.get(b)! - swing.get(a)!).slice(0, MAX_SERIES));
-  return names.filter((n) => keep.has(n));
+    for (const x of channel(input, channelOf(n)) ?? []) if (Number.isFinite(x)) { if (x < lo) lo = x; if (x > hi) hi = x; }
+    return hi > lo ? hi - lo : 0;
+  }, MAX_SERIES);
 }
 
 /** The caption's note when a chart shows a selection. */

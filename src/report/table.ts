@@ -1,5 +1,6 @@
 /** The terminal summary a person reads after `plenum run`. */
 import type { RunResult } from '../analysis/results.js';
+import { keepLargest } from '../analysis/select.js';
 import { display } from '../units/display.js';
 
 function table(head: string[], rows: string[][]): string {
@@ -15,12 +16,9 @@ function table(head: string[], rows: string[][]): string {
  */
 export const MAX_TABLE_ROWS = 40;
 
-/** The entries with the largest `size`, at most MAX_TABLE_ROWS, in their original order. */
+/** The entries with the largest `size` (a non-finite one counts as largest), at most MAX_TABLE_ROWS, in order. */
 function largest<T>(entries: [string, T][], size: (x: T) => number): [string, T][] {
-  if (entries.length <= MAX_TABLE_ROWS) return entries;
-  const s = (x: T): number => { const v = size(x); return Number.isFinite(v) ? v : Infinity; };
-  const keep = new Set([...entries].sort((a, b) => s(b[1]) - s(a[1])).slice(0, MAX_TABLE_ROWS).map((e) => e[0]));
-  return entries.filter((e) => keep.has(e[0]));
+  return keepLargest(entries, ([, x]) => { const v = size(x); return Number.isFinite(v) ? v : Infinity; }, MAX_TABLE_ROWS);
 }
 
 /** The line after a table that shows a selection. */

@@ -180,9 +180,12 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
   };
 
   const stops = [...p.breakpoints.filter((b) => b > o.t0 && b < o.tEnd), o.tEnd];
-  /** The budget or interrupt that stops the run at t, if any (checked after event restarts). */
-  const budgetAt = (tNow: number): Pick<DriverResult, 'cause' | 'message'> | null => {
-    if (o.maxSteps !== undefined && work.steps >= o.maxSteps) {
+  /**
+   * The budget or interrupt that stops the run at t, if any: checked at every step's end and
+   * after every event restart. `pending`: steps of the integrator call under way, not yet in `work`.
+   */
+  const budgetAt = (tNow: number, pending = 0): Pick<DriverResult, 'cause' | 'message'> | null => {
+    if (o.maxSteps !== undefined && work.steps + pending >= o.maxSteps) {
       return { cause: 'budget-steps', message: `step budget max-steps = ${o.maxSteps} used up at t = ${tNow.toPrecision(6)} s` };
     }
     if (o.maxWallMs !== undefined && Date.now() - started > o.maxWallMs) {
@@ -206,8 +209,7 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
         break;
       }
       let restartAt: number | null = null;
-      let budgetStop: DriverResult['cause'] | null = null;
-      let budgetMsg = '';
+      let budgetStop: Pick<DriverResult, 'cause' | 'message'> | null = null;
       const onStep = (tOld: number, tNew: number, yNew: Float64Array, dense: DenseOutput): boolean => {
         p.eventValues(tNew, yNew, gNew);
         // the earliest qualifying crossing, and every event crossed by then
@@ -238,26 +240,10 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
         if (!reported) o.onStep?.(tOld, tNew, dense);
         o.observe(tNew, yNew, 'step');
         gPrev.set(gNew);
-        if (o.maxSteps !== undefined && work.steps + curSteps() >= o.maxSteps) {
-          budgetStop = 'budget-steps';
-          budgetMsg = `step budget max-steps = ${o.maxSteps} used up at t = ${tNew.toPrecision(6)} s`;
-          return false;
-        }
-        if (o.maxWallMs !== undefined && Date.now() - started > o.maxWallMs) {
-          budgetStop = 'budget-wall';
-          budgetMsg = `wall-time budget max-wall = ${(o.maxWallMs / 1000).toPrecision(3)} s used up at t = ${tNew.toPrecision(6)} s`;
-          return false;
-        }
-        const why = o.interrupt?.();
-        if (why) {
-          budgetStop = 'interrupted';
-          budgetMsg = `${why} at t = ${tNew.toPrecision(6)} s`;
-          return false;
-        }
-        return true;
+        budgetStop = budgetAt(tNew, stepsThisCall);
+        return budgetStop === null;
       };
       let stepsThisCall = 0;
-      const curSteps = (): number => stepsThisCall;
       const counting = (tOld: number, tNew: number, yNew: Float64Array, dense: DenseOutput): boolean => {
         stepsThisCall++;
         return onStep(tOld, tNew, yNew, dense);
@@ -282,8 +268,10 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
       }
       t = r.t;
       y = r.y;
-      if (budgetStop) {
-        failure = { status: 'failed', cause: budgetStop, message: budgetMsg, t, y, work };
+      // (set inside onStep, which TypeScript's narrowing does not see)
+      const stopped = budgetStop as Pick<DriverResult, 'cause' | 'message'> | null;
+      if (stopped) {
+        failure = { status: 'failed', ...stopped, t, y, work };
         break;
       }
       if (r.status === 'max-steps') {
