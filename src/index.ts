@@ -15,39 +15,39 @@ export type { Diagnostic, Result } from './diag/diagnostic.js';
 export { formatDiagnostic } from './diag/diagnostic.js';
 export type { NetlistDoc } from './netlist/types.js';
 export type { Model } from './model/types.js';
-export type { RunResult, Trace, ExpectationResult } from './analysis/results.js';
-export type { RunFault } from './analysis/results.js';
+export type { RunResult, Trace, ExpectationResult } from './transient/results.js';
+export type { RunFault } from './transient/results.js';
 export { readNetlist } from './netlist/read.js';
 export { netlistJsonSchema } from './netlist/schema.js';
 export { buildModel } from './model/build.js';
-export { simulate, type SimulateOptions } from './analysis/transient.js';
+export { simulate, type SimulateOptions } from './transient/transient.js';
 export { resultJson } from './report/json.js';
 export { traceCsv } from './report/csv.js';
 export { summaryText } from './report/table.js';
 export { junitXml, type NetlistCheck } from './report/junit.js';
 export { baselineJson, readTrace, type TraceFile } from './report/baseline.js';
-export { diffTraces, type DiffOptions, type DiffResult } from './analysis/trace-diff.js';
-export { runSweep, prepareSweep, shardIndices, type SweepOptions, type SweepResult, type Study, type Shard } from './analysis/sweep.js';
-export { sweepJson, sweepCsv, sweepSummaryText, summariseCases, parseSweepJson, mergeSweeps, type SweepSummary } from './analysis/sweep-report.js';
-export type { CaseResult } from './analysis/sweep-case.js';
-export { wilson, summarise } from './analysis/sweep-stats.js';
+export { diffTraces, type DiffOptions, type DiffResult } from './transient/trace-diff.js';
+export { runSweep, prepareSweep, shardIndices, type SweepOptions, type SweepResult, type Study, type Shard } from './studies/sweep.js';
+export { sweepJson, sweepCsv, sweepSummaryText, summariseCases, parseSweepJson, mergeSweeps, type SweepSummary } from './studies/sweep-report.js';
+export type { CaseResult } from './studies/sweep-case.js';
+export { wilson, summarise } from './studies/sweep-stats.js';
 export { applyOverrides, checkPath, readWithOverrides, type Override } from './netlist/override.js';
-export { fitWall, fitJson, fitText, fitResidualCsv, chamberSnippet, measuredSnippet, splitSegments, FIT_LAWS, type FitLaw, type FitReport, type SegmentFit, type FittedParameter } from './analysis/fit.js';
-export { readBenchCsv, type BenchData, type BenchRow } from './analysis/fit-data.js';
-export { levenbergMarquardt, type LmProblem, type LmResult } from './analysis/fit-lm.js';
-export { studentQuantile, studentCdf } from './analysis/fit-stats.js';
-export { reportInput, type ReportInput, type ReportInputOptions, type EquilibriumMark, type WallCurve, type ReportTopology } from './analysis/report-input.js';
+export { fitWall, fitJson, fitText, fitResidualCsv, chamberSnippet, measuredSnippet, splitSegments, FIT_LAWS, type FitLaw, type FitReport, type SegmentFit, type FittedParameter } from './studies/fit.js';
+export { readBenchCsv, type BenchData, type BenchRow } from './studies/fit-data.js';
+export { levenbergMarquardt, type LmProblem, type LmResult } from './studies/fit-lm.js';
+export { studentQuantile, studentCdf } from './studies/fit-stats.js';
+export { reportInput, type ReportInput, type ReportInputOptions, type EquilibriumMark, type WallCurve, type ReportTopology } from './transient/report-input.js';
 export { reportHtml } from './report/html.js';
 export { reportFigures, type Figure, type FigureOptions } from './report/plots.js';
 export {
   findEquilibria, restSetup, groupEquilibria, groupStability,
   type EquilibriaOptions, type EquilibriaResult, type NetworkEquilibrium, type GroupResult, type GroupEquilibrium,
   type ChamberRest, type TransientMatch, type ValveState, type GasSource,
-} from './analysis/equilibria.js';
-export { traceEquilibria, type TraceOptions, type TraceResult, type TraceBranch, type TracePoint } from './analysis/continuation.js';
-export { classifyOutcomes } from './analysis/outcome.js';
-export type { GroupOutcome } from './analysis/results.js';
-export { stabilityAt, type Stability, type Linearisation } from './analysis/stability.js';
+} from './equilibria/equilibria.js';
+export { traceEquilibria, type TraceOptions, type TraceResult, type TraceBranch, type TracePoint } from './equilibria/continuation.js';
+export { classifyOutcomes } from './transient/outcome.js';
+export type { GroupOutcome } from './transient/results.js';
+export { stabilityAt, type Stability, type Linearisation } from './equilibria/stability.js';
 export { eigenvalues } from './linalg/eigen.js';
 export { equilibriaText, equilibriaJson, traceText, traceJson, traceBranchesCsv } from './report/equilibria.js';
 

@@ -5,7 +5,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { diffTraces, readTrace, type DiffOptions, type TraceFile } from '../index.js';
-import { DEFAULT_RTOL, QUANTITY_CLASSES, type Deviation, type QuantityClass, type Tolerance } from '../analysis/trace-diff.js';
+import { DEFAULT_RTOL, QUANTITY_CLASSES, type Deviation, type QuantityClass, type Tolerance } from '../transient/trace-diff.js';
 import { didYouMean } from '../diag/did-you-mean.js';
 import type { Dimension } from '../units/dimensions.js';
 import { parsePressureDifference } from '../units/pressure.js';

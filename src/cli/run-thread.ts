@@ -11,7 +11,7 @@
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import type { RunResult } from '../analysis/results.js';
+import type { RunResult } from '../transient/results.js';
 import type { Model } from '../model/types.js';
 
 /** Index of the stop flag in the shared control array. */
@@ -101,7 +101,7 @@ export function startSimulation(source: string, file: string, stop: Interrupter,
   if (!entry) {
     return {
       result: async (model) => {
-        const { simulate } = await import('../analysis/transient.js');
+        const { simulate } = await import('../transient/transient.js');
         return simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress });
       },
       cancel: () => {},

@@ -10,7 +10,7 @@
  * { kind: 'error', message }.
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { simulate } from '../analysis/transient.js';
+import { simulate } from '../transient/transient.js';
 import { buildModel } from '../model/build.js';
 import { readNetlist } from '../netlist/read.js';
 import { STOP_FLAG, type RunWorkerData, type RunWorkerMessage } from './run-thread.js';

@@ -18,10 +18,10 @@
  * the sampled time history, one channel per line so that a text diff of two baselines reads well.
  * The same run always gives the same bytes.
  */
-import type { RunResult } from '../analysis/results.js';
-import type { TraceFile } from '../analysis/trace-diff.js';
+import type { RunResult } from '../transient/results.js';
+import type { TraceFile } from '../transient/trace-diff.js';
 
-export type { TraceFile } from '../analysis/trace-diff.js';
+export type { TraceFile } from '../transient/trace-diff.js';
 
 export const BASELINE_VERSION = 1;
 const DIGITS = 9;

@@ -3,7 +3,7 @@
  * Numbers are printed with 12 significant digits (round-trippable enough for comparisons,
  * and deterministic: the same run gives the same bytes).
  */
-import type { Trace } from '../analysis/results.js';
+import type { Trace } from '../transient/results.js';
 
 function num(x: number): string {
   if (!Number.isFinite(x)) return '';

@@ -8,7 +8,7 @@
  * structures", IEEE Trans. SMC 11(2) (1981) 109–125 (layers, barycentre ordering to reduce
  * crossings).
  */
-import type { ReportInput } from '../analysis/report-input.js';
+import type { ReportInput } from '../transient/report-input.js';
 import { display } from '../units/display.js';
 import { esc, num, sigText, tag, text, textWidth } from './svg.js';
 import { chamberStyles, channel, netTransfers } from './report-data.js';

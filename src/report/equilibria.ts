@@ -1,8 +1,8 @@
 /**
  * Equilibria and traced branches for people (compact tables) and machines (JSON, CSV; SI).
  */
-import type { ChamberRest, EquilibriaResult } from '../analysis/equilibria.js';
-import type { TraceResult } from '../analysis/continuation.js';
+import type { ChamberRest, EquilibriaResult } from '../equilibria/equilibria.js';
+import type { TraceResult } from '../equilibria/continuation.js';
 import { display } from '../units/display.js';
 import { nameList } from './table.js';
 

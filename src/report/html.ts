@@ -3,7 +3,7 @@
  * hover read-outs; no fonts, images, scripts or styles from anywhere else, and a content
  * security policy that forbids fetching them) that opens offline and prints on A4.
  */
-import type { ReportInput } from '../analysis/report-input.js';
+import type { ReportInput } from '../transient/report-input.js';
 import { display } from '../units/display.js';
 import { reportFigures, type Figure } from './plots.js';
 import { chamberStyles, channel, flowPaths, netTransfers } from './report-data.js';

@@ -1,5 +1,5 @@
 /** The machine-readable result exactly per the format contract (SI numbers). */
-import type { RunResult } from '../analysis/results.js';
+import type { RunResult } from '../transient/results.js';
 
 export function resultJson(r: RunResult): string {
   const out = {

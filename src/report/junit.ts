@@ -10,7 +10,7 @@
  * Text is escaped (& < > " ') and characters that XML 1.0 does not allow (most C0 controls,
  * lone surrogates, U+FFFE/U+FFFF) are dropped, so any expectation name gives a well-formed file.
  */
-import type { ExpectationResult } from '../analysis/results.js';
+import type { ExpectationResult } from '../transient/results.js';
 import type { Diagnostic } from '../diag/diagnostic.js';
 
 /** The outcome of checking one netlist (what `plenum check` reports and writes). */

@@ -4,8 +4,8 @@
  * chamber's operating point rides on its wall law. Each chamber keeps one style (colour, dash,
  * marker) in every figure and in the network diagram.
  */
-import { keepLargest } from '../analysis/select.js';
-import type { EquilibriumMark, ReportInput, WallCurve } from '../analysis/report-input.js';
+import { keepLargest } from '../transient/select.js';
+import type { EquilibriumMark, ReportInput, WallCurve } from '../transient/report-input.js';
 import { display, displayScale, type DisplayKind } from '../units/display.js';
 import { chartSvg, styleAt, type ChartBand, type ChartEvent, type ChartPoint, type ChartRefLine, type ChartSeries, type LegendItem } from './svg-chart.js';
 import { sigText } from './svg.js';

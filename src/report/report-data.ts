@@ -2,7 +2,7 @@
  * Small readers over a ReportInput shared by the figures and the HTML: trace channels, the
  * style each chamber keeps everywhere, the flow paths shown, and the net mass each carried.
  */
-import { traceChannel, type ReportInput } from '../analysis/report-input.js';
+import { traceChannel, type ReportInput } from '../transient/report-input.js';
 import { styleAt, type SeriesStyle } from './svg-chart.js';
 
 export interface FlowPath { name: string; channel: string; from: string; to: string; label: string }

@@ -1,6 +1,6 @@
 /** The terminal summary a person reads after `plenum run`. */
-import type { RunResult } from '../analysis/results.js';
-import { keepLargest } from '../analysis/select.js';
+import type { RunResult } from '../transient/results.js';
+import { keepLargest } from '../transient/select.js';
 import { display } from '../units/display.js';
 
 function table(head: string[], rows: string[][]): string {

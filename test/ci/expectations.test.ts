@@ -6,7 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { channel, modelFromText, runChecked } from '../helpers.js';
 import type { RunResult } from '../../src/index.js';
-import { ExpectationMonitor, type ChannelSource } from '../../src/analysis/expectations.js';
+import { ExpectationMonitor, type ChannelSource } from '../../src/transient/expectations.js';
 
 // Rigid tank blowing down through a laminar capillary, isothermal (references.md, closed form):
 // dp/dt = −k(p² − pa²), k = πD⁴/(256 μ L V), p(t) = pa(1 + A e^(−2 pa k t))/(1 − A e^(−2 pa k t)),

@@ -9,8 +9,8 @@
  *    hint) or a netlist that runs as in 1; nothing ever throws.
  */
 import fc from 'fast-check';
-import { simulate } from '../../src/analysis/transient.js';
-import type { RunResult } from '../../src/analysis/results.js';
+import { simulate } from '../../src/transient/transient.js';
+import type { RunResult } from '../../src/transient/results.js';
 import type { Diagnostic } from '../../src/diag/diagnostic.js';
 import { buildModel } from '../../src/model/build.js';
 import type { Model } from '../../src/model/types.js';

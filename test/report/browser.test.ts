@@ -12,10 +12,10 @@ import { join, resolve } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { chromium, type Browser, type Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { reportInput } from '../../src/analysis/report-input.js';
+import { reportInput } from '../../src/transient/report-input.js';
 import { reportHtml } from '../../src/report/html.js';
 import { reportFigures } from '../../src/report/plots.js';
-import type { RunResult } from '../../src/analysis/results.js';
+import type { RunResult } from '../../src/transient/results.js';
 import { at, modelFromFile, runChecked } from '../helpers.js';
 
 const CHROMIUM = process.env.PLENUM_CHROMIUM ?? '/usr/bin/chromium';

@@ -4,8 +4,8 @@
  * invented for rendering tests only; the curves are smooth closed forms so the pictures are
  * stable whatever the integrators do.
  */
-import type { ReportInput, WallCurve } from '../../src/analysis/report-input.js';
-import type { RunResult } from '../../src/analysis/results.js';
+import type { ReportInput, WallCurve } from '../../src/transient/report-input.js';
+import type { RunResult } from '../../src/transient/results.js';
 
 const PA = 101_325;
 /** 2μt0/r0 of the sphere, Pa (μ 0.35 MPa, t0 1.5 mm, r0 40 mm). */

@@ -1,7 +1,7 @@
 /** The HTML report as text: self-contained, escaped, complete. (The browser test opens it.) */
 import { describe, expect, it } from 'vitest';
-import { simulate } from '../../src/analysis/transient.js';
-import { reportInput } from '../../src/analysis/report-input.js';
+import { simulate } from '../../src/transient/transient.js';
+import { reportInput } from '../../src/transient/report-input.js';
 import { netlistDescription, reportHtml } from '../../src/report/html.js';
 import { modelFromText, runChecked } from '../helpers.js';
 import { syntheticInput } from './fixture.js';

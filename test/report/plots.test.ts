@@ -2,7 +2,7 @@
 import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
-import { reportInput, type ReportInput } from '../../src/analysis/report-input.js';
+import { reportInput, type ReportInput } from '../../src/transient/report-input.js';
 import { MAX_SERIES, reportFigures, type Figure } from '../../src/report/plots.js';
 import { MAX_DIAGRAM_CHAMBERS } from '../../src/report/diagram.js';
 import { chainNetlist } from '../../bench/networks.js';

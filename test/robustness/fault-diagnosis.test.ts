@@ -3,7 +3,7 @@
  * iteration matrix, a chattering valve) and the order of its checks.
  */
 import { describe, expect, it } from 'vitest';
-import { diagnoseFault } from '../../src/analysis/fault.js';
+import { diagnoseFault } from '../../src/transient/fault.js';
 import { NetworkSystem } from '../../src/assemble/system.js';
 import { modelFromText } from '../helpers.js';
 

@@ -9,7 +9,7 @@ import { mkdtempSync, readdirSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { simulate } from '../../src/analysis/transient.js';
+import { simulate } from '../../src/transient/transient.js';
 import { modelFromFile } from '../helpers.js';
 
 interface Expected { cause: string; kind: string | null; element: string | null; says: string }

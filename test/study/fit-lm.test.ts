@@ -1,6 +1,6 @@
 /** Levenberg–Marquardt on problems with known minimisers. */
 import { describe, expect, it } from 'vitest';
-import { inverseNormalMatrix, levenbergMarquardt } from '../../src/analysis/fit-lm.js';
+import { inverseNormalMatrix, levenbergMarquardt } from '../../src/studies/fit-lm.js';
 
 describe('levenbergMarquardt (Madsen, Nielsen & Tingleff 2004, §3.2)', () => {
   it("finds Rosenbrock's minimum (1, 1) from (−1.2, 1): r = (10(x2 − x1²), 1 − x1) (MNT 2004, Example 3.13)", () => {

@@ -1,6 +1,6 @@
 /** The study's random numbers: xoshiro128**, per-case streams, uniform and normal deviates. */
 import { describe, expect, it } from 'vitest';
-import { caseStream, fmix32, Xoshiro128 } from '../../src/analysis/rng.js';
+import { caseStream, fmix32, Xoshiro128 } from '../../src/studies/rng.js';
 
 describe('xoshiro128**', () => {
   it('matches the reference algorithm on a hand-traced start (Blackman & Vigna, ACM TOMS 47(4) 2021)', () => {

@@ -1,7 +1,7 @@
 /** Summary statistics, the Wilson interval, and Student's t for fit intervals. */
 import { describe, expect, it } from 'vitest';
-import { incompleteBeta, logGamma, studentCdf, studentQuantile } from '../../src/analysis/fit-stats.js';
-import { summarise, wilson, Z95 } from '../../src/analysis/sweep-stats.js';
+import { incompleteBeta, logGamma, studentCdf, studentQuantile } from '../../src/studies/fit-stats.js';
+import { summarise, wilson, Z95 } from '../../src/studies/sweep-stats.js';
 
 describe('summarise', () => {
   it('gives mean, sample standard deviation, min and max (2,4,4,4,5,5,7,9: mean 5, s = √(32/7))', () => {

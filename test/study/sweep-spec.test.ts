@@ -1,7 +1,7 @@
 /** `--vary` syntax, the study layout and the cases it makes. */
 import { describe, expect, it } from 'vitest';
-import { caseSpec, parseVary, planStudy, preflightSpecs, readScalar, type StudyPlan, type VarySpec } from '../../src/analysis/sweep-spec.js';
-import { shardIndices } from '../../src/analysis/sweep.js';
+import { caseSpec, parseVary, planStudy, preflightSpecs, readScalar, type StudyPlan, type VarySpec } from '../../src/studies/sweep-spec.js';
+import { shardIndices } from '../../src/studies/sweep.js';
 import { readWithOverrides } from '../../src/netlist/override.js';
 
 function vary(arg: string): VarySpec {

@@ -9,9 +9,9 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { runSweep, sweepJson, sweepSummaryText, summariseCases, type SweepResult } from '../../src/index.js';
 import { chainNetlist } from '../../bench/networks.js';
-import { findEquilibria } from '../../src/analysis/equilibria.js';
-import { CaseRunner } from '../../src/analysis/sweep-case.js';
-import { runCases, workerScript } from '../../src/analysis/sweep-pool.js';
+import { findEquilibria } from '../../src/equilibria/equilibria.js';
+import { CaseRunner } from '../../src/studies/sweep-case.js';
+import { runCases, workerScript } from '../../src/studies/sweep-pool.js';
 
 /** A quick network: a supply tank charging a small neo-Hookean bladder through a tube. */
 const QUICK = `format: 1
@@ -67,7 +67,7 @@ describe('runSweep', () => {
 
   it('finds the bundled worker (so the pooled runs above really ran on worker threads)', async () => {
     const url = workerScript();
-    expect(url?.pathname).toMatch(/\/dist\/analysis\/sweep-worker\.js$/);
+    expect(url?.pathname).toMatch(/\/dist\/studies\/sweep-worker\.js$/);
     // a pool given a script that is not a worker fails loudly instead of falling back
     const bogus = new URL('../../package.json', import.meta.url);
     await expect(runCases(QUICK, 'quick.yaml', [{ index: 0, group: 0, params: [] }, { index: 1, group: 0, params: [] }], { jobs: 2, worker: bogus })).rejects.toThrow();

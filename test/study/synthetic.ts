@@ -4,7 +4,7 @@
  * noise on the pressure. Invented numbers, for demos and tests only.
  */
 import { membranePressure, type Membrane } from '../../src/physics/membrane.js';
-import { caseStream } from '../../src/analysis/rng.js';
+import { caseStream } from '../../src/studies/rng.js';
 
 export interface SyntheticOptions {
   seed: number;

@@ -14,7 +14,7 @@
  */
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { findEquilibria } from '../../src/analysis/equilibria.js';
+import { findEquilibria } from '../../src/equilibria/equilibria.js';
 import { modelFromFile } from '../helpers.js';
 
 interface RefEq {

@@ -2,7 +2,7 @@
  * Runs the cases of a study on a pool of worker threads (or in this thread for one job) and
  * returns their results in case order, whatever order they finish in.
  *
- * The worker is the bundled dist/analysis/sweep-worker.js (scripts/build.mjs). It is found
+ * The worker is the bundled dist/studies/sweep-worker.js (scripts/build.mjs). It is found
  * next to the bundle that holds this code, or, when running from the TypeScript sources
  * (tests), in the package's dist/ folder.
  */
@@ -15,10 +15,10 @@ import type { CaseSpec } from './sweep-spec.js';
 
 /** Where the bundled worker may be, relative to the module holding this code. */
 const WORKER_CANDIDATES = [
-  './analysis/sweep-worker.js', // from dist/index.js or a chunk in dist/
-  './sweep-worker.js', // from a bundle in dist/analysis/
-  '../analysis/sweep-worker.js', // from dist/cli/
-  '../../dist/analysis/sweep-worker.js', // from src/analysis/ (tests)
+  './studies/sweep-worker.js', // from dist/index.js or a chunk in dist/
+  './sweep-worker.js', // from a bundle in dist/studies/
+  '../studies/sweep-worker.js', // from dist/cli/
+  '../../dist/studies/sweep-worker.js', // from src/studies/ (tests)
 ];
 
 /** The worker script, or undefined when it cannot be found (the pool then runs in-thread). */

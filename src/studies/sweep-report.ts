@@ -10,7 +10,7 @@ import { display, type DisplayKind } from '../units/display.js';
 import type { CaseResult, ChamberOutcome } from './sweep-case.js';
 import type { ParamValue } from './sweep-spec.js';
 import { summarise, wilson, type NumericSummary, type Proportion } from './sweep-stats.js';
-import { keepLargest } from './select.js';
+import { keepLargest } from '../transient/select.js';
 import type { Shard, Study, SweepResult } from './sweep.js';
 
 export interface NumericField extends NumericSummary {

@@ -58,10 +58,10 @@ import { brent } from '../physics/roots.js';
 import { solveVolume, vacuumVolume } from '../model/volume.js';
 import { makeSchedule } from '../model/schedule.js';
 import { DenseLu } from '../linalg/dense-lu.js';
-import { chamberGroups, everConducts, type ChamberGroup } from './groups.js';
+import { chamberGroups, everConducts, type ChamberGroup } from '../model/groups.js';
 import { stabilityAt, type Stability, type StabilityVerdict } from './stability.js';
-import { simulate } from './transient.js';
-import type { GroupOutcome, RunResult } from './results.js';
+import { simulate } from '../transient/transient.js';
+import type { GroupOutcome, RunResult } from '../transient/results.js';
 
 /** Samples per wall segment for bracketing roots (Chebyshev–Lobatto in V or ln V). */
 const SAMPLES = 128;

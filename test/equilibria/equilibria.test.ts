@@ -1,6 +1,6 @@
 /** Equilibria of whole networks: valve states, one-way valves, heat modes, large groups, and the transient. */
 import { describe, expect, it } from 'vitest';
-import { findEquilibria } from '../../src/analysis/equilibria.js';
+import { findEquilibria } from '../../src/equilibria/equilibria.js';
 import { modelFromFile, modelFromText } from '../helpers.js';
 
 const AMBIENT = 'ambient: { pressure: 101.325 kPa abs, temperature: 293.15 K }';

@@ -4,8 +4,8 @@
  * independently by enumeration at the same parameter value.
  */
 import { describe, expect, it } from 'vitest';
-import { traceEquilibria, type TraceResult } from '../../src/analysis/continuation.js';
-import { findEquilibria } from '../../src/analysis/equilibria.js';
+import { traceEquilibria, type TraceResult } from '../../src/equilibria/continuation.js';
+import { findEquilibria } from '../../src/equilibria/equilibria.js';
 import { buildModel } from '../../src/model/build.js';
 import { readWithOverrides, splitPath } from '../../src/netlist/override.js';
 import type { Model } from '../../src/model/types.js';

@@ -26,7 +26,7 @@
  */
 import type { Model } from '../model/types.js';
 import { display } from '../units/display.js';
-import { chamberGroups, everConducts } from './groups.js';
+import { chamberGroups, everConducts } from '../model/groups.js';
 import type { GroupOutcome, Trace } from './results.js';
 
 /** Settling band as a fraction of each signal's excursion. */

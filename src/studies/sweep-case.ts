@@ -8,9 +8,9 @@ import { buildModel } from '../model/build.js';
 import type { Model } from '../model/types.js';
 import { mapOverrideDiagnostics, overrideValue, readWithOverrides, splitPath, type Override } from '../netlist/override.js';
 import { readNetlist } from '../netlist/read.js';
-import type { RunResult } from './results.js';
+import type { RunResult } from '../transient/results.js';
 import type { CaseSpec, ParamValue } from './sweep-spec.js';
-import { simulate } from './transient.js';
+import { simulate } from '../transient/transient.js';
 
 /** Chambers whose final volumes lie within this fraction of the largest all count as largest. */
 export const LARGEST_TIE = 1e-3;

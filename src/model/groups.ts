@@ -4,7 +4,7 @@
  * each vent to ambient are separate groups. A group that touches no reservoir and no feed is
  * closed, and conserves its gas.
  */
-import type { BranchModel, Model } from '../model/types.js';
+import type { BranchModel, Model } from './types.js';
 
 export interface ChamberGroup {
   /** Chamber indices, ascending. */

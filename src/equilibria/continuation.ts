@@ -47,7 +47,7 @@ import { formatDiagnostic } from '../diag/diagnostic.js';
 import { parseQuantity } from '../units/quantity.js';
 import { DenseLu } from '../linalg/dense-lu.js';
 import { makeWall, type WallPoint } from '../physics/wall.js';
-import { readScalar, valueText } from './sweep-spec.js';
+import { readScalar, valueText } from '../studies/sweep-spec.js';
 import {
   groupEquilibria, groupStability, pressureOfMass, restOf, restSetup, segmentOfVolume, steadyPressures,
   type ChamberRest, type RestGroup, type RestSetup, type ValveState,

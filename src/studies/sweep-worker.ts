@@ -1,5 +1,5 @@
 /**
- * Worker-thread entry of a study (bundled to dist/analysis/sweep-worker.js): holds one
+ * Worker-thread entry of a study (bundled to dist/studies/sweep-worker.js): holds one
  * CaseRunner for the study's netlist and runs the cases the pool sends, one at a time.
  *
  * Messages in:  { spec: CaseSpec }.  Messages out: { result: CaseResult }.
