@@ -85,6 +85,8 @@ function unitFor(kind: DisplayKind, magnitude: number): Shown {
     case 'temperature': return { scale: 1, offset: -273.15, unit: ' °C' };
     case 'flow': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g/s' } : { scale: 1, offset: 0, unit: ' kg/s' };
     case 'time': return magnitude < 1 && magnitude > 0 ? { scale: 1e3, offset: 0, unit: ' ms' } : { scale: 1, offset: 0, unit: ' s' };
+    case 'position': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' mm' } : { scale: 1, offset: 0, unit: ' m' };
+    case 'velocity': return { scale: 1, offset: 0, unit: ' m/s' };
     case 'stretch':
     case 'reynolds': return { scale: 1, offset: 0, unit: '' };
   }
