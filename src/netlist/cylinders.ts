@@ -137,7 +137,7 @@ function readSpring(ck: Checker, node: YNode): CylinderSpec['spring'] | undefine
   return { rate: v.rate as number, preload: v.preload as number };
 }
 
-export function readCylinder(ck: Checker, entry: NameEntry): CylinderSpec | undefined {
+export function readCylinder(ck: Checker, entry: NameEntry, heat: 'isothermal' | 'adiabatic' | 'exchange'): CylinderSpec | undefined {
   const what = `cylinder \`${entry.name}\``;
   const map: YMap | undefined = ck.map(entry.node, what, EXAMPLE);
   if (!map) return undefined;
@@ -163,6 +163,9 @@ export function readCylinder(ck: Checker, entry: NameEntry): CylinderSpec | unde
   const friction = v.friction ? readFriction(ck, v.friction as YNode, fieldPos) : { static: 0, sliding: 0, viscous: 0 };
   const angle = v.mounting ? readAngle(ck, v.mounting as YNode) : 0;
   const start = readStart(ck, v.start as YNode | undefined, { stroke, doubleActing, pa: ck.ambientPa }, fieldPos);
+  if (ck.get(map, 'heat-transfer') && heat !== 'exchange') {
+    ck.warn(ck.keyWhere(map, 'heat-transfer'), 'unused-key', `\`heat-transfer\` is ignored with heat: ${heat}`, 'set `heat: exchange` at the top level to use it');
+  }
   if (!ok || !deadVolume || !spring || (v.force && !force) || !friction || angle === undefined || !start) return undefined;
   const spec: CylinderSpec = {
     name: entry.name,
@@ -179,5 +182,6 @@ export function readCylinder(ck: Checker, entry: NameEntry): CylinderSpec | unde
   };
   if (rod !== undefined) spec.rod = rod;
   if (force) spec.force = force;
+  if (v['heat-transfer'] !== undefined) spec.heatTransfer = v['heat-transfer'] as number;
   return spec;
 }

@@ -331,6 +331,7 @@ export const CYLINDER: KindTable = {
     opt('friction', 'structure', '{ static, sliding, viscous }: stick–slip friction of piston and seals (Karnopp)', { shape: 'friction' }),
     opt('mounting', 'structure', '{ angle }: the extending direction’s angle above the horizontal; gravity acts along the axis', { shape: 'mounting' }),
     opt('start', 'structure', '{ position, cap: { pressure }, rod: { pressure } }; default retracted with both sides at ambient', { shape: 'cylinder-start' }),
+    opt('heat-transfer', 'heat-conductance', 'h·A between the gas of each side and the surroundings, for heat: exchange (default 0: adiabatic sides)', { bounds: NON_NEGATIVE }),
   ],
 };
 

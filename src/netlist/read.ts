@@ -173,7 +173,7 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   const taken = new Map<string, string>();
   const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
-  const cylinders = defined(sections.cylinder.map((e) => readCylinder(ck, e)));
+  const cylinders = defined(sections.cylinder.map((e) => readCylinder(ck, e, heat as NetlistDoc['heat'])));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {

@@ -125,6 +125,8 @@ export interface CylinderSpec {
   /** Angle of the extending direction above the horizontal, rad. */
   angle: number;
   start: { position: number /* m */; cap: PortStartSpec; rod?: PortStartSpec };
+  /** h·A of each side in W/K, for heat: exchange. */
+  heatTransfer?: number;
   pos: SourcePos;
   /** Positions of individual keys, e.g. fieldPos['start.position']. */
   fieldPos: Record<string, SourcePos>;
