@@ -15,7 +15,7 @@ import { CYLINDER, CYLINDER_START, DEAD_VOLUME, FRICTION, MOUNTING, PORT_START, 
 import type { NameEntry } from './names.js';
 import { readForceSeries } from './time-series.js';
 import type { CylinderSpec, PortStartSpec, SourcePos } from './types.js';
-import type { YMap, YNode } from './yaml-tree.js';
+import type { YMap, YNode } from './yaml-types.js';
 
 const EXAMPLE = 'write e.g. `clamp: { bore: 32 mm, rod: 12 mm, stroke: 100 mm, dead-volume: 2 mL, moving-mass: 1.5 kg }`';
 
