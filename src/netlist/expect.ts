@@ -33,6 +33,9 @@ const QUANTITY_DIMENSION: Record<ProbeQuantity, Dimension> = {
   reynolds: 'dimensionless',
   position: 'length',
   velocity: 'velocity',
+  'stroke-time': 'time',
+  'impact-velocity': 'velocity',
+  dissipated: 'energy',
 };
 
 export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): SimulateSpec | undefined {

@@ -519,7 +519,7 @@ export const PROBE_QUANTITIES = {
   chamber: ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch'],
   line: ['flow', 'reynolds'],
   valve: ['flow', 'reynolds'],
-  cylinder: ['position', 'velocity'],
+  cylinder: ['position', 'velocity', 'stroke-time', 'impact-velocity', 'dissipated'],
   port: ['pressure', 'gauge', 'volume', 'mass', 'temperature'],
   total: ['mass'],
 } as const;

@@ -144,7 +144,7 @@ export interface SimulateSpec {
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
   | 'flow' | 'reynolds'
-  | 'position' | 'velocity';
+  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated';
 
 export interface Probe {
   /** Element name (a cylinder's side: `clamp.cap`), or 'total' with quantity 'mass'. */

@@ -9,6 +9,24 @@ export interface ChamberSummary {
 export interface LineSummary { peak_flow: number; peak_reynolds: number; regime: 'laminar' | 'transitional' | 'turbulent' }
 export interface ValveSummary { peak_flow: number; choked: boolean }
 
+/** What a cylinder did during a run (transient/cylinder-summary.ts). */
+export interface CylinderSummary {
+  start: { position: number };
+  final: { position: number; velocity: number };
+  /** Largest speed reached (signed: positive extending) and when. */
+  peak: { velocity: number; at: number };
+  /** Completed strokes: from leaving one stop to reaching the other. */
+  strokes: { direction: 'extend' | 'retract'; started: number; reached: number; time: number; impact_velocity: number }[];
+  /** Every contact with a stop, with the velocity just before it (signed). */
+  impacts: { t: number; stop: 'full' | 'retracted'; velocity: number }[];
+  /** Duration of the first completed stroke, s; null when none completed. */
+  stroke_time: number | null;
+  /** Time held at rest inside the stroke by static friction, s. */
+  time_stuck: number;
+  /** Energy dissipated by friction and impacts, J. */
+  dissipated: number;
+}
+
 export interface ExpectationResult {
   name: string;
   passed: boolean;

@@ -26,6 +26,7 @@ export type Dimension =
   | 'damping'
   | 'velocity'
   | 'angle'
+  | 'energy'
   | 'dimensionless';
 
 export interface DimensionInfo {
@@ -60,6 +61,7 @@ export const DIMENSIONS: Record<Dimension, DimensionInfo> = {
   damping: { si: 'N*s/m', label: 'N·s/m', noun: 'a viscous coefficient (force per velocity)', example: '50 N*s/m' },
   velocity: { si: 'm/s', label: 'm/s', noun: 'a velocity', example: '0.5 m/s' },
   angle: { si: 'rad', label: 'rad', noun: 'an angle', example: '90 deg' },
+  energy: { si: 'J', label: 'J', noun: 'an energy', example: '2 J' },
   dimensionless: { si: '', label: '-', noun: 'a plain number', example: '0.5' },
 };
 
@@ -87,7 +89,7 @@ export function nameDimension(vector: readonly number[]): Dimension | undefined 
   const order: Dimension[] = [
     'dimensionless', 'length', 'area', 'volume', 'pressure', 'time', 'temperature', 'mass',
     'mass-flow', 'volume-flow', 'compliance', 'conductance', 'heat-conductance', 'viscosity', 'molar-mass',
-    'force', 'spring-rate', 'damping', 'velocity', 'angle',
+    'force', 'spring-rate', 'damping', 'velocity', 'angle', 'energy',
   ];
   return order.find((d) => dimensionVector(d).every((e, i) => Math.abs(e - (vector[i] ?? 0)) < 1e-12));
 }

@@ -56,6 +56,7 @@ export const PLAUSIBLE: Partial<Record<Dimension, { lo: number; hi: number; show
   'spring-rate': { lo: 1e-6, hi: 1e12, shown: '1e-6 N/m to 1e12 N/m' },
   damping: { lo: 1e-9, hi: 1e9, shown: '1e-9 N·s/m to 1e9 N·s/m' },
   velocity: { lo: 1e-12, hi: 1e4, shown: '1e-12 m/s to 1e4 m/s' },
+  energy: { lo: 1e-12, hi: 1e12, shown: '1e-12 J to 1e12 J' },
 };
 
 /** `NaN kPa`, `Infinity m`, `-inf`: spelled-out non-numbers, which mathjs would call unknown units. */
