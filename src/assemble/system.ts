@@ -22,9 +22,12 @@ import { BranchState, type BranchFlow } from '../elements/branch.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import type { SparsePattern } from '../linalg/sparse-pattern.js';
 import { NetworkJacobian } from './jacobian.js';
+import { CYLINDER_EVENTS, CylinderState, type CylinderEventKind } from '../elements/cylinder.js';
+import { patternFromEntries } from '../linalg/sparse-pattern.js';
+import { FiniteJacobian } from '../solve/finite-jacobian.js';
 
 export interface SystemEvent {
-  kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch';
+  kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch' | 'cylinder';
   element: string;
   index: number;        // chamber or branch index
   direction: number;    // +1, −1, 0
@@ -32,6 +35,8 @@ export interface SystemEvent {
   extremum?: { V: number; p: number; kind: 'max' | 'min' };
   /** For check events: +1 after the valve last opened, −1 after it last closed (see CHECK_DEADBAND). */
   side?: number;
+  /** For cylinder events: which of the piston's events. */
+  piston?: CylinderEventKind;
 }
 
 /**
@@ -79,6 +84,11 @@ export class NetworkSystem implements EventfulProblem {
   readonly hIn: Float64Array;
   readonly flows: BranchFlow[];
   readonly feedFlow: Float64Array;
+  readonly cylinders: CylinderState[];
+  /** Per cylinder: slots of cap mass, cap T, rod mass, rod T (−1 when absent), x, v, dissipated energy. */
+  readonly cylIdx: { mc: number; Tc: number; mr: number; Tr: number; x: number; v: number; W: number }[];
+  /** Node index of a cylinder's cap side (its rod side is the next). */
+  private readonly portBase: number;
   readonly breakpoints: number[];
   readonly events: SystemEvent[];
   readonly log: LoggedEvent[] = [];
@@ -119,35 +129,73 @@ export class NetworkSystem implements EventfulProblem {
     for (let r = 0; r < model.reservoirs.length; r++) this.resIdx[r] = k++;
     this.feedIdx = new Int32Array(model.feeds.length);
     for (let f = 0; f < model.feeds.length; f++) this.feedIdx[f] = k++;
+    this.cylinders = model.cylinders.map((c) => new CylinderState(c, model.gas, model.pa));
+    this.cylIdx = model.cylinders.map((c) => {
+      const mc = k++;
+      const Tc = this.isothermal ? -1 : k++;
+      const mr = c.doubleActing ? k++ : -1;
+      const Tr = c.doubleActing && !this.isothermal ? k++ : -1;
+      return { mc, Tc, mr, Tr, x: k++, v: k++, W: k++ };
+    });
     this.n = k;
-    const nn = nc + model.reservoirs.length;
+    this.portBase = nc + model.reservoirs.length;
+    const nn = this.portBase + 2 * model.cylinders.length;
     this.p = new Float64Array(nn);
     this.T = new Float64Array(nn);
     this.V = new Float64Array(nc);
     this.kappa = new Float64Array(nc);
-    this.mIn = new Float64Array(nc);
-    this.mOut = new Float64Array(nc);
-    this.hIn = new Float64Array(nc);
+    this.mIn = new Float64Array(nn);
+    this.mOut = new Float64Array(nn);
+    this.hIn = new Float64Array(nn);
     this.flows = model.branches.map(() => ({ mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const }));
     this.feedFlow = new Float64Array(model.feeds.length);
-    this.energyRows = !this.isothermal || model.chambers.some((c) => c.deflation !== undefined);
+    this.energyRows = !this.isothermal || model.chambers.some((c) => c.deflation !== undefined) || model.cylinders.length > 0;
     this.memoY = new Float64Array(this.n);
     model.branches.forEach((b, i) => { if (b.valve?.operation.kind === 'relief') this.reliefIdx.push(i); });
     this.memoOpen = new Uint8Array(this.reliefIdx.length);
 
     // tolerances: masses relative to the largest chamber mass, temperatures in K
     this.rtol = model.simulate.tolerance;
-    const mScale = Math.max(...model.chambers.map((c) => c.m0), 1e-12);
+    const mScale = Math.max(...model.chambers.map((c) => c.m0), ...model.cylinders.map((c) => Math.max(c.cap.m0, c.rod?.m0 ?? 0)), 1e-12);
     this.atol = new Float64Array(this.n).fill(this.rtol * mScale * 1e-3);
     for (let i = 0; i < nc; i++) {
       if (this.TIdx[i] >= 0) this.atol[this.TIdx[i]] = this.rtol * 300;
       if (this.hIdx[i] >= 0) this.atol[this.hIdx[i]] = this.rtol;
+    }
+    model.cylinders.forEach((c, j) => {
+      const ix = this.cylIdx[j];
+      if (ix.Tc >= 0) this.atol[ix.Tc] = this.rtol * 300;
+      if (ix.Tr >= 0) this.atol[ix.Tr] = this.rtol * 300;
+      // position to a millionth of the stroke per unit rtol; velocity as if the stroke took 1 s
+      this.atol[ix.x] = this.rtol * c.geometry.stroke * 1e-3;
+      this.atol[ix.v] = this.rtol * c.geometry.stroke * 1e-3;
+      this.atol[ix.W] = this.rtol * model.pa * c.geometry.capArea * c.geometry.stroke * 1e-3;
+    });
+    if (model.cylinders.length > 0) {
+      // the element-wise jacobian does not know cylinders yet: coloured finite differences over
+      // a dense pattern
+      const n = this.n;
+      const rows: number[] = [];
+      const cols: number[] = [];
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) { rows.push(i); cols.push(j); }
+      Object.defineProperty(this, 'jacobianPattern', { value: patternFromEntries(n, rows, cols) });
+      const fd = new FiniteJacobian(n);
+      const f0 = new Float64Array(n);
+      const J = new Float64Array(n * n);
+      Object.defineProperty(this, 'jacobianSparse', {
+        value: (t: number, y: Float64Array, values: Float64Array): void => {
+          this.rhs(t, y, f0);
+          fd.jacobian(this, t, y, f0, J);
+          values.set(J);
+        },
+      });
     }
 
     const bps = new Set<number>();
     for (const b of this.branches) b.schedule?.breakpoints.forEach((t) => bps.add(t));
     for (const f of this.feeds) f.schedule.breakpoints.forEach((t) => bps.add(t));
     for (const r of model.reservoirs) r.pressure.breakpoints.forEach((t) => bps.add(t));
+    for (const c of model.cylinders) c.force?.breakpoints.forEach((t) => bps.add(t));
     this.breakpoints = [...bps].sort((a, b) => a - b);
 
     this.events = [];
@@ -161,6 +209,9 @@ export class NetworkSystem implements EventfulProblem {
       if (c.limits.pressure !== undefined) this.events.push({ kind: 'limit-pressure', element: c.name, index: i, direction: 1 });
       if (c.limits.stretch !== undefined && c.wall.sphere) this.events.push({ kind: 'limit-stretch', element: c.name, index: i, direction: 1 });
     });
+    model.cylinders.forEach((c, j) => {
+      for (const piston of CYLINDER_EVENTS) this.events.push({ kind: 'cylinder', element: c.name, index: j, direction: CylinderState.direction(piston), piston });
+    });
   }
 
   get nEvents(): number { return this.events.length; }
@@ -172,16 +223,38 @@ export class NetworkSystem implements EventfulProblem {
       if (this.TIdx[i] >= 0) y[this.TIdx[i]] = c.T0;
       if (this.hIdx[i] >= 0) y[this.hIdx[i]] = 1;
     });
+    this.model.cylinders.forEach((c, j) => {
+      const ix = this.cylIdx[j];
+      y[ix.mc] = c.cap.m0;
+      if (ix.Tc >= 0) y[ix.Tc] = c.cap.T0;
+      if (c.rod) {
+        y[ix.mr] = c.rod.m0;
+        if (ix.Tr >= 0) y[ix.Tr] = c.rod.T0;
+      }
+      y[ix.x] = c.x0;
+    });
     return y;
   }
 
   /** Slot of a node's mass: a chamber's m, or a reservoir's boundary store. */
   private slot(n: NodeRef): number {
+    if (n.kind === 'port') return n.side === 'cap' ? this.cylIdx[n.index].mc : this.cylIdx[n.index].mr;
     return n.kind === 'chamber' ? this.mIdx[n.index] : this.resIdx[n.index];
   }
 
   private nodeIndex(n: NodeRef): number {
+    if (n.kind === 'port') return this.portBase + 2 * n.index + (n.side === 'rod' ? 1 : 0);
     return n.kind === 'chamber' ? n.index : this.nc + n.index;
+  }
+
+  /** Whether node index i holds gas (a chamber or a cylinder side), for the energy bookkeeping. */
+  private holdsGas(i: number): boolean {
+    return i < this.nc || i >= this.portBase;
+  }
+
+  /** Temperature of a cylinder side from the state (the ambient start temperature when isothermal). */
+  private sideT(y: Float64Array, slot: number, T0: number): number {
+    return slot >= 0 ? y[slot] : T0;
   }
 
   /**
@@ -206,6 +279,18 @@ export class NetworkSystem implements EventfulProblem {
     for (let r = 0; r < res.length; r++) {
       this.p[nc + r] = res[r].pressure.at(t);
       this.T[nc + r] = res[r].T;
+    }
+    for (let j = 0; j < this.cylinders.length; j++) {
+      const c = this.model.cylinders[j];
+      const ix = this.cylIdx[j];
+      const Tc = this.sideT(y, ix.Tc, c.cap.T0);
+      const Tr = c.rod ? this.sideT(y, ix.Tr, c.rod.T0) : this.Ta;
+      const el = this.cylinders[j];
+      el.evaluate(t, y[ix.mc], Tc, c.rod ? y[ix.mr] : 0, Tr, y[ix.x], y[ix.v]);
+      const b = this.portBase + 2 * j;
+      this.p[b] = el.pc; this.T[b] = Tc;
+      this.p[b + 1] = el.pr; this.T[b + 1] = Tr;
+      if (!(el.pc > 0 && el.pr > 0) && this.fault === null) this.fault = c.name;
     }
     for (let b = 0; b < this.branches.length; b++) {
       const bm = this.model.branches[b];
@@ -263,11 +348,13 @@ export class NetworkSystem implements EventfulProblem {
       const i = this.nodeIndex(bm.from);
       const j = this.nodeIndex(bm.to);
       const Tup = q >= 0 ? this.T[i] : this.T[j];
-      this.transfer(dydt, this.slot(bm.from), i < nc ? i : -1, this.slot(bm.to), j < nc ? j : -1, q, Tup);
+      this.transfer(dydt, this.slot(bm.from), this.holdsGas(i) ? i : -1, this.slot(bm.to), this.holdsGas(j) ? j : -1, q, Tup);
     }
     for (let f = 0; f < this.feeds.length; f++) {
       const fd = this.feeds[f];
-      this.transfer(dydt, this.feedIdx[f], -1, this.mIdx[fd.into], fd.into, this.feedFlow[f], fd.T);
+      const port = this.model.feeds[f].port;
+      const into = port ? { kind: 'port' as const, index: port.index, side: port.side } : { kind: 'chamber' as const, index: fd.into };
+      this.transfer(dydt, this.feedIdx[f], -1, this.slot(into), this.nodeIndex(into), this.feedFlow[f], fd.T);
     }
     if (this.energyRows) {
       for (let i = 0; i < nc; i++) {
@@ -281,6 +368,16 @@ export class NetworkSystem implements EventfulProblem {
           dydt[this.hIdx[i]] = (Math.abs(mdot) / this.chambers[i].dmHyst) * (target - h);
         }
       }
+    }
+    for (let j = 0; j < this.cylinders.length; j++) {
+      const el = this.cylinders[j];
+      const ix = this.cylIdx[j];
+      const b = this.portBase + 2 * j;
+      if (ix.Tc >= 0) dydt[ix.Tc] = el.temperatureRate('cap', y[ix.mc], this.T[b], this.mIn[b], this.mOut[b], this.hIn[b], this.Ta);
+      if (ix.Tr >= 0) dydt[ix.Tr] = el.temperatureRate('rod', y[ix.mr], this.T[b + 1], this.mIn[b + 1], this.mOut[b + 1], this.hIn[b + 1], this.Ta);
+      dydt[ix.x] = el.dx;
+      dydt[ix.v] = el.dv;
+      dydt[ix.W] = el.dissipation;
     }
   }
 
@@ -316,6 +413,7 @@ export class NetworkSystem implements EventfulProblem {
    */
   timeInvariant(t0: number, t1: number): boolean {
     for (const r of this.model.reservoirs) if (!r.pressure.constant) return false;
+    for (const c of this.model.cylinders) if (c.force && !c.force.constant) return false;
     const still = (s: Schedule | null): boolean => {
       if (!s) return true;
       for (const r of s.ramps) {
@@ -360,6 +458,11 @@ export class NetworkSystem implements EventfulProblem {
         case 'limit-stretch':
           out[k] = this.chambers[e.index].c.wall.stretch(this.V[e.index]) - (this.model.chambers[e.index].limits.stretch as number);
           break;
+        case 'cylinder': {
+          const ix = this.cylIdx[e.index];
+          out[k] = this.cylinders[e.index].eventValue(e.piston as CylinderEventKind, y[ix.x], y[ix.v]);
+          break;
+        }
       }
     }
   }
@@ -370,8 +473,19 @@ export class NetworkSystem implements EventfulProblem {
     return e.direction;
   }
 
-  fireEvent(k: number, t: number, _y: Float64Array, rising: boolean): boolean {
+  fireEvent(k: number, t: number, y: Float64Array, rising: boolean): boolean {
     const e = this.events[k];
+    if (e.kind === 'cylinder') {
+      // the mode machine decides from the state at the event: evaluate it first
+      this.evaluate(t, y);
+      const ix = this.cylIdx[e.index];
+      const s = { x: y[ix.x], v: y[ix.v], W: y[ix.W] };
+      const what = this.cylinders[e.index].fire(e.piston as CylinderEventKind, t, s);
+      y[ix.x] = s.x; y[ix.v] = s.v; y[ix.W] = s.W;
+      this.invalidate();
+      if (what) this.log.push({ t, what, kind: 'cylinder', element: e.element });
+      return true;
+    }
     this.invalidate();
     const note = (what: string): void => { this.log.push({ t, what, kind: e.kind, element: e.element }); };
     switch (e.kind) {
@@ -431,6 +545,12 @@ export class NetworkSystem implements EventfulProblem {
 
   settleInitialModes(t: number, y: Float64Array): void {
     this.evaluate(t, y);
+    this.cylinders.forEach((el, j) => {
+      el.settle(t, y[this.cylIdx[j].x]);
+      if (el.moving) this.log.push({ t, what: `cylinder ${el.c.name} starts to move at once, ${el.slide > 0 ? 'extending' : 'retracting'}`, kind: 'cylinder', element: el.c.name });
+    });
+    this.invalidate();
+    this.evaluate(t, y);
     for (const e of this.events) {
       if (e.kind === 'check') {
         // open at the start when the difference already exceeds the cracking pressure
@@ -461,6 +581,16 @@ export class NetworkSystem implements EventfulProblem {
       ch.push({ key: `${b.name}.flow`, unit: 'kg/s' }, { key: `${b.name}.reynolds`, unit: '-' });
       if (b.hostLine) ch.push({ key: `${b.hostLine}.flow`, unit: 'kg/s' }, { key: `${b.hostLine}.reynolds`, unit: '-' });
     });
+    this.model.cylinders.forEach((c) => {
+      ch.push({ key: `${c.name}.position`, unit: 'm' }, { key: `${c.name}.velocity`, unit: 'm/s' },
+        { key: `${c.name}.stroke-time`, unit: 's' }, { key: `${c.name}.impact-velocity`, unit: 'm/s' },
+        { key: `${c.name}.dissipated`, unit: 'J' });
+      for (const side of c.rod ? ['cap', 'rod'] : ['cap']) {
+        ch.push({ key: `${c.name}.${side}.pressure`, unit: 'Pa' }, { key: `${c.name}.${side}.gauge`, unit: 'Pa' },
+          { key: `${c.name}.${side}.volume`, unit: 'm^3' }, { key: `${c.name}.${side}.mass`, unit: 'kg' },
+          { key: `${c.name}.${side}.temperature`, unit: 'K' });
+      }
+    });
     ch.push({ key: 'total.mass', unit: 'kg' });
     return ch;
   }
@@ -488,6 +618,23 @@ export class NetworkSystem implements EventfulProblem {
       out[k++] = f.reynolds;
       if (branches[i].hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
     }
+    for (let j = 0; j < this.cylinders.length; j++) {
+      const el = this.cylinders[j];
+      const ix = this.cylIdx[j];
+      out[k++] = y[ix.x];
+      out[k++] = y[ix.v];
+      const last = el.lastStroke();
+      out[k++] = last.time;
+      out[k++] = last.impact;
+      out[k++] = y[ix.W];
+      const b = this.portBase + 2 * j;
+      out[k++] = el.pc; out[k++] = el.pc - this.pa; out[k++] = el.Vc; out[k++] = y[ix.mc]; out[k++] = this.T[b];
+      total += y[ix.mc];
+      if (el.c.rod) {
+        out[k++] = el.pr; out[k++] = el.pr - this.pa; out[k++] = el.Vr; out[k++] = y[ix.mr]; out[k++] = this.T[b + 1];
+        total += y[ix.mr];
+      }
+    }
     out[k++] = total;
   }
 
@@ -502,6 +649,7 @@ export class NetworkSystem implements EventfulProblem {
   totalMass(y: Float64Array): number {
     let s = 0;
     for (const k of this.mIdx) s += y[k];
+    for (const ix of this.cylIdx) s += y[ix.mc] + (ix.mr >= 0 ? y[ix.mr] : 0);
     return s;
   }
 }

@@ -56,6 +56,9 @@ export interface PistonRecord {
   stop?: StopSide;
 }
 
+/** A completed stroke: from leaving one stop to reaching the other. */
+export interface Stroke { direction: 'extend' | 'retract'; started: number; reached: number; time: number; impact_velocity: number }
+
 /** The mechanical states of one evaluation. */
 export interface PistonStateView { x: number; v: number }
 
@@ -67,6 +70,12 @@ export class CylinderState {
   slide: SlideMode = 1;
   /** Mode changes so far, in time order. */
   readonly records: PistonRecord[] = [];
+  /** Completed strokes so far; a stroke counts from the last start off one stop to the other stop. */
+  readonly strokes: Stroke[] = [];
+  /** The last start off a stop, while the piston is on its way. */
+  private leftStop: { t: number; from: StopSide } | null = null;
+  /** Speed at the latest impact, m/s (0 before any). */
+  private lastImpact = 0;
   // results of the last `evaluate` (SI)
   pc = 0;
   pr = 0;
@@ -175,7 +184,29 @@ export class CylinderState {
   /** The mode at the start (the piston starts at rest), after `evaluate` at t = 0. */
   settle(t: number, x: number): void {
     this.rest(x);
-    if (this.moving) this.records.push({ t, what: 'start', x, value: this.slide });
+    if (this.moving) this.record({ t, what: 'start', x, value: this.slide });
+  }
+
+  /** The latest completed stroke's duration (s, 0 before any) and the latest impact speed (m/s). */
+  lastStroke(): { time: number; impact: number } {
+    const s = this.strokes[this.strokes.length - 1];
+    return { time: s ? s.time : 0, impact: this.lastImpact };
+  }
+
+  private record(r: PistonRecord): void {
+    this.records.push(r);
+    const s = this.c.geometry.stroke;
+    if (r.what === 'start') {
+      this.leftStop = r.x <= 0 ? { t: r.t, from: -1 } : r.x >= s ? { t: r.t, from: 1 } : null;
+    } else if (r.what === 'stick') {
+      this.leftStop = null;
+    } else {
+      this.lastImpact = Math.abs(r.value);
+      if (this.leftStop && this.leftStop.from === -(r.stop as number)) {
+        this.strokes.push({ direction: r.stop === 1 ? 'extend' : 'retract', started: this.leftStop.t, reached: r.t, time: r.t - this.leftStop.t, impact_velocity: r.value });
+      }
+      this.leftStop = null;
+    }
   }
 
   get moving(): boolean {
@@ -198,22 +229,22 @@ export class CylinderState {
         y.W += 0.5 * this.c.load.mass * v * v;
         y.x = side === 1 ? s : 0;
         y.v = 0;
-        this.records.push({ t, what: 'impact', x: y.x, value: v, stop: side });
+        this.record({ t, what: 'impact', x: y.x, value: v, stop: side });
         this.rest(y.x);
         const speed = `${Number(Math.abs(v).toPrecision(4))} m/s`;
         const where = side === 1 ? 'reaches full stroke' : 'reaches its retracted stop';
         const after = this.stop === side ? '' : ' and is pushed straight back';
-        if (this.moving) this.records.push({ t, what: 'start', x: y.x, value: this.slide });
+        if (this.moving) this.record({ t, what: 'start', x: y.x, value: this.slide });
         return `cylinder ${name} ${where} at ${speed}${after}`;
       }
       case 'halt': {
         y.v = 0;
         this.rest(y.x);
         if (this.moving) {
-          this.records.push({ t, what: 'start', x: y.x, value: this.slide });
+          this.record({ t, what: 'start', x: y.x, value: this.slide });
           return `cylinder ${name} reverses at ${mm(y.x)}`;
         }
-        this.records.push({ t, what: 'stick', x: y.x, value: 0 });
+        this.record({ t, what: 'stick', x: y.x, value: 0 });
         return `cylinder ${name} sticks at ${mm(y.x)}`;
       }
       case 'release+':
@@ -221,7 +252,7 @@ export class CylinderState {
         const from = this.stop === 1 ? ' from full stroke' : this.stop === -1 ? ' from its retracted stop' : ` at ${mm(y.x)}`;
         this.stop = 0;
         this.slide = kind === 'release+' ? 1 : -1;
-        this.records.push({ t, what: 'start', x: y.x, value: this.slide });
+        this.record({ t, what: 'start', x: y.x, value: this.slide });
         return `cylinder ${name} starts to move${from}, ${kind === 'release+' ? 'extending' : 'retracting'}`;
       }
     }

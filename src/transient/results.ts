@@ -100,6 +100,8 @@ export interface RunResult {
   chambers: Record<string, ChamberSummary>;
   lines: Record<string, LineSummary>;
   valves: Record<string, ValveSummary>;
+  /** Present when the network has cylinders. */
+  cylinders?: Record<string, CylinderSummary>;
   mass: { initial: number; final: number; through_boundaries: number; drift: number };
   events: { t: number; what: string }[];
   warnings: string[];

@@ -10,7 +10,8 @@ import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
 import { ExpectationMonitor } from './expectations.js';
 import { diagnoseFault } from './fault.js';
-import type { ChamberSummary, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
+import type { ChamberSummary, CylinderSummary, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
+import { summarizeCylinder } from './cylinder-summary.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
 import { classifyOutcomes } from './outcome.js';
 
@@ -63,9 +64,14 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     model.chambers.map((c) => c.name), model.pa);
   const nc = model.chambers.length;
   const nb = model.branches.length;
-  const peak = model.chambers.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
   const bPeak = model.branches.map(() => ({ flow: 0, re: 0, choked: false }));
-  const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
+  // the gas sides of cylinders are summarised like chambers (JSON `chambers.<cyl>.cap`)
+  const gasNodes = [...model.chambers.map((c) => c.name), ...model.cylinders.flatMap((c) => (c.rod ? [`${c.name}.cap`, `${c.name}.rod`] : [`${c.name}.cap`]))];
+  const peak = gasNodes.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
+  const gaugeCol = gasNodes.map((name) => keys.get(`${name}.gauge`)!);
+  const velCol = model.cylinders.map((c) => keys.get(`${c.name}.velocity`)!);
+  const vPeak = model.cylinders.map(() => ({ velocity: 0, at: 0 }));
+  const stuckAtStart = sys.cylinders.map((el) => el.stop === 0 && !el.moving);
   let lastProgress = 0;
 
   const row = new Float64Array(nch);
@@ -75,11 +81,15 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
       trace.times.push(t);
       for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
     }
-    for (let i = 0; i < nc; i++) {
+    for (let i = 0; i < gaugeCol.length; i++) {
       const g = row[gaugeCol[i]];
       const pk = peak[i];
       if (g > pk.max) { pk.max = g; pk.tMax = t; }
       if (g < pk.min) { pk.min = g; pk.tMin = t; }
+    }
+    for (let j = 0; j < velCol.length; j++) {
+      const v = row[velCol[j]];
+      if (Math.abs(v) > Math.abs(vPeak[j].velocity)) { vPeak[j].velocity = v; vPeak[j].at = t; }
     }
     for (let b = 0; b < nb; b++) {
       const f = sys.flows[b];
@@ -130,6 +140,23 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     if (c.wall.sphere) fin.stretch = g('stretch');
     chambers[c.name] = { final: fin, peak: { gauge: peak[i].max, at: peak[i].tMax }, least: { gauge: peak[i].min, at: peak[i].tMin } };
   });
+  for (let i = nc; i < gasNodes.length; i++) {
+    const name = gasNodes[i];
+    const g = (q: string): number => rowEnd[keys.get(`${name}.${q}`)!];
+    chambers[name] = {
+      final: { pressure: g('pressure'), gauge: g('gauge'), volume: g('volume'), mass: g('mass'), temperature: g('temperature') },
+      peak: { gauge: peak[i].max, at: peak[i].tMax }, least: { gauge: peak[i].min, at: peak[i].tMin },
+    };
+  }
+  const cylinders: Record<string, CylinderSummary> = {};
+  model.cylinders.forEach((c, j) => {
+    const g = (q: string): number => rowEnd[keys.get(`${c.name}.${q}`)!];
+    cylinders[c.name] = summarizeCylinder(sys.cylinders[j], {
+      stuckAtStart: stuckAtStart[j], tEnd: r.t,
+      final: { position: g('position'), velocity: g('velocity'), dissipated: g('dissipated') },
+      peak: vPeak[j],
+    });
+  });
   const lines: Record<string, LineSummary> = {};
   const valves: Record<string, ValveSummary> = {};
   model.branches.forEach((b, i) => {
@@ -137,7 +164,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     if (lineName) lines[lineName] = { peak_flow: bPeak[i].flow, peak_reynolds: bPeak[i].re, regime: regimeOf(bPeak[i].re) };
     if (b.kind === 'valve') valves[b.name] = { peak_flow: bPeak[i].flow, choked: bPeak[i].choked };
   });
-  const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
+  const initial = model.chambers.reduce((s, c) => s + c.m0, 0) + model.cylinders.reduce((s, c) => s + c.cap.m0 + (c.rod?.m0 ?? 0), 0);
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
   const drift = (final - initial - through) / initial;
@@ -151,8 +178,8 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     }
   }
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
-  model.chambers.forEach((c, i) => {
-    if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${c.name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
+  gasNodes.forEach((name, i) => {
+    if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
   });
 
   const expectations = r.status === 'completed'
@@ -168,6 +195,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     end: r.t,
     stats: { method, steps: r.work.steps, rejected: r.work.rejected, rhs: r.work.rhs, jacobians: r.work.jacobians, lu: r.work.lu, wall_ms: Date.now() - started },
     chambers, lines, valves,
+    ...(model.cylinders.length ? { cylinders } : {}),
     mass: { initial, final, through_boundaries: through, drift },
     events: sys.log.map((e) => ({ t: e.t, what: e.what })),
     warnings,

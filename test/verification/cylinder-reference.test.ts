@@ -39,7 +39,7 @@ describe('reference case cylinder-stroke (SciPy Radau, test/reference/cylinder.p
       const impact = ref.events.find((e) => e.what === 'impact')!;
       const full = r.events.find((e) => e.what.includes('reaches full stroke'))!;
       expect(Math.abs(full.t - impact.t)).toBeLessThan(1e-5);
-      const v = r.cylinders.c.impacts[0].velocity;
+      const v = r.cylinders!.c.impacts[0].velocity;
       expect(Math.abs(v - (impact.velocity as number)) / Math.abs(impact.velocity as number)).toBeLessThan(1e-4);
     });
   }
