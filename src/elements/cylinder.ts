@@ -25,7 +25,9 @@
  *   release−    −F − F_s − δ           stuck, or at full stroke: breaks away inwards
  *   full        x − s                  moving: reaches full stroke
  *   retracted   −x                     moving: reaches the retracted stop
- * and −1 when not applicable. δ is a dead band of 1e-10 of p_a·A_c, so that a piston resting
+ * and −1 when not applicable. Past a surface (x beyond a stop, v through zero while sliding) the
+ * mechanical state is held until the event is applied, so that a large step cannot cross a
+ * surface and come back unseen. δ is a dead band of 1e-10 of p_a·A_c, so that a piston resting
  * at a balance (F = 0 exactly, frictionless) is released by the first force that builds up
  * (an event function starting at exactly 0 would hide its crossing).
  */
@@ -34,6 +36,13 @@ import { gasTemperatureRate, type EnergyInflow } from '../physics/energy.js';
 import { hasCoulomb, modeAtRest, slidingFriction, type SlideMode } from '../physics/friction.js';
 import { capVolume, heldAtStop, pistonForce, rodVolume } from '../physics/piston.js';
 import type { CylinderModel } from '../model/cylinder.js';
+
+/**
+ * How far past a surface the state is held: 1e-6 of the stroke (in m, and in m/s for the
+ * velocity), far above the increments of difference quotients (√eps of the state's scale) and
+ * far below anything a user reads (25 nm on a 25 mm stroke).
+ */
+const OVERSHOOT = 1e-6;
 
 /** Release dead band relative to p_a·A_c (see the file comment). */
 const RELEASE_BAND = 1e-10;
@@ -117,6 +126,19 @@ export class CylinderState {
       return;
     }
     this.friction = this.coulomb ? slidingFriction(c.friction, this.slide, v) : c.friction.viscous * v;
+    const s = c.geometry.stroke;
+    const xb = OVERSHOOT * s;
+    if ((this.coulomb && this.slide * v < -xb) || x > s + xb || x < -xb) {
+      // well past an event surface (v through 0 while sliding, x through a stop), where only a
+      // trial step or the inside of a step before the event is located can be: the state is
+      // held there, so that the event function keeps its sign to the end of the step and the
+      // crossing is found even when the continued motion would have crossed back within it.
+      // Just past the surface (within the band) the motion continues smoothly, so that
+      // difference quotients of the jacobian taken at a surface see the motion, not the hold.
+      this.dx = 0;
+      this.dv = 0;
+      return;
+    }
     this.dx = v;
     this.dv = (this.F - this.friction) / c.load.mass;
   }
