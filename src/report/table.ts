@@ -74,6 +74,20 @@ export function summaryText(r: RunResult): string {
     out.push(...more(vl.length, vlAll.length, 'valves', 'peak flow'));
     out.push('');
   }
+  const cyl = Object.entries(r.cylinders ?? {});
+  if (cyl.length) {
+    const mm = (x: number): string => display(x, 'position');
+    const speed = (v: number): string => display(Math.abs(v), 'velocity');
+    out.push(table(['cylinder', 'start', 'end', 'peak speed', 'at', 'stroke time', 'impacts', 'time stuck'],
+      cyl.map(([n, c]) => [
+        n, mm(c.start.position), mm(c.final.position), speed(c.peak.velocity), display(c.peak.at, 'time'),
+        c.stroke_time === null ? '-' : display(c.stroke_time, 'time'),
+        c.impacts.length ? c.impacts.map((i) => `${speed(i.velocity)} (${i.stop === 'full' ? 'out' : 'in'})`).join(', ') : '-',
+        display(c.time_stuck, 'time'),
+      ])));
+    out.push('(stroke time: from leaving one stop to reaching the other; impact speeds at the stops, out = full stroke)');
+    out.push('');
+  }
   if (r.events.length) {
     out.push('events:');
     const shown = r.events.slice(0, 40);
