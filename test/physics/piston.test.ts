@@ -148,7 +148,7 @@ describe('energy of gas behind a moving boundary (Cengel & Boles, unsteady-flow 
   });
 
   it('with κ = 0 and V̇ = 0 it is the rigid-vessel energy balance: filling from vacuum tends to γ·T_in', () => {
-    // d(mT)/dt form: at m → 0 with inflow at T_in the limit temperature is γ T_in (references.md)
+    // d(mT)/dt form: at m → 0 with inflow at T_in the limit temperature is γ T_in (Cengel & Boles, from memory)
     const Tin = 300;
     const mdot = 1e-3;
     const rate = gasTemperatureRate(air, 1e-9, air.gamma * Tin, 1e5, 0, 0, { mIn: mdot, mOut: 0, hIn: mdot * Tin, hA: 0, Ta: Tin });

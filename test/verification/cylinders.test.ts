@@ -1,7 +1,7 @@
 /**
  * Cylinders against closed forms and against an independent model:
  * (a) gas spring: ω² = (k + Σ n·p·A²/V)/M for small oscillations (any fluid-power text, from
- *     memory; references.md "Gas spring"), n = 1 isothermal, γ adiabatic — within 1 % from the
+ *     memory), n = 1 isothermal, γ adiabatic — within 1 % from the
  *     simulated ringing;
  * (b) a frictionless piston against a spring from a constant-pressure supply settles at
  *     x = ((p − pa)·A − F0 − F)/k (static force balance, closed form) — to 1e-6;
@@ -40,7 +40,7 @@ function bisect(f: (x: number) => number, a: number, b: number): number {
   return 0.5 * (a + b);
 }
 
-describe('(a) gas spring frequency (any fluid-power text, from memory; references.md)', () => {
+describe("(a) gas spring frequency (any fluid-power text, from memory)", () => {
   // sealed double-acting cylinder, both sides start at ambient with the cap 2 kPa above: the
   // piston rings about the position where the two gas springs and the mechanical spring balance
   const bore = 0.032; const rod = 0.012; const stroke = 0.1; const Vc0 = 5e-6; const Vr0 = 5e-6;
