@@ -9,6 +9,7 @@
  * crossings).
  */
 import type { ReportInput } from '../transient/report-input.js';
+import { cylinderSummary } from '../transient/results.js';
 import { display } from '../units/display.js';
 import { esc, num, sigText, tag, text, textWidth } from './svg.js';
 import { chamberStyles, channel, netTransfers } from './report-data.js';
@@ -319,7 +320,7 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
     } else if (n.kind === 'cylinder') {
       const c = cylinders.find((x) => x.name === n.name)!;
       const x0 = channel(input, `${n.name}.position`)?.[0] ?? 0;
-      const cs = r.cylinders?.[n.name];
+      const cs = cylinderSummary(r, n.name);
       n.r = CYL_HALF + 10;
       n.lines.push(c.describe);
       n.lines.push(`x ${display(x0, 'position')} → ${display(cs?.final.position ?? Number.NaN, 'position')}`);
@@ -507,7 +508,7 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
     } else if (n.kind === 'cylinder') {
       const c = cylinders.find((x) => x.name === n.name)!;
       const x0 = channel(input, `${n.name}.position`)?.[0] ?? 0;
-      const x1 = r.cylinders?.[n.name]?.final.position ?? x0;
+      const x1 = cylinderSummary(r, n.name)?.final.position ?? x0;
       g.push(tag('title', {}, esc(`cylinder ${n.name}: ${c.describe}; ports ${n.name}.cap${c.doubleActing ? ` and ${n.name}.rod` : ' (rod side open to ambient)'}`)));
       g.push(...cylinderSymbol(n.x, n.y, x0 / c.stroke, x1 / c.stroke, c.doubleActing, '#4c78a8'));
     } else if (n.kind === 'ambient') {

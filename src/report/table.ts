@@ -31,6 +31,16 @@ export function nameList(names: string[]): string {
   return names.length <= 12 ? names.join(', ') : `${names.slice(0, 3).join(', ')} … ${names[names.length - 1]} (${names.length} chambers)`;
 }
 
+/** A summary's fields flattened to `a.b` keys and printed values (numbers to 4 digits). */
+function flatFields(s: Record<string, unknown>, prefix = ''): [string, string][] {
+  const out: [string, string][] = [];
+  for (const [k, v] of Object.entries(s)) {
+    if (v !== null && typeof v === 'object') out.push(...flatFields(v as Record<string, unknown>, `${prefix}${k}.`));
+    else out.push([`${prefix}${k}`, typeof v === 'number' ? (Number.isFinite(v) ? String(+v.toPrecision(4)) : '-') : typeof v === 'boolean' ? (v ? 'yes' : 'no') : String(v)]);
+  }
+  return out;
+}
+
 export function summaryText(r: RunResult): string {
   const out: string[] = [];
   out.push(`${r.title}  (${r.file})`);
@@ -74,18 +84,15 @@ export function summaryText(r: RunResult): string {
     out.push(...more(vl.length, vlAll.length, 'valves', 'peak flow'));
     out.push('');
   }
-  const cyl = Object.entries(r.cylinders ?? {});
-  if (cyl.length) {
-    const mm = (x: number): string => display(x, 'position');
-    const speed = (v: number): string => display(Math.abs(v), 'velocity');
-    out.push(table(['cylinder', 'start', 'end', 'peak speed', 'at', 'stroke time', 'impacts', 'time stuck'],
-      cyl.map(([n, c]) => [
-        n, mm(c.start.position), mm(c.final.position), speed(c.peak.velocity), display(c.peak.at, 'time'),
-        c.stroke_time === null ? '-' : display(c.stroke_time, 'time'),
-        c.impacts.length ? c.impacts.map((i) => `${speed(i.velocity)} (${i.stop === 'full' ? 'out' : 'in'})`).join(', ') : '-',
-        display(c.time_stuck, 'time'),
-      ])));
-    out.push('(stroke time: from leaving one stop to reaching the other; impact speeds at the stops, out = full stroke)');
+  for (const [section, entries] of Object.entries(r.sections ?? {})) {
+    // kinds beyond chambers, lines and valves: their summary fields as given, SI numbers
+    const given = r.rows?.[section];
+    const all = Object.entries(entries).map(([n, s]) => [n, given?.[n] ?? flatFields(s)] as [string, [string, string][]]);
+    const rows = all.slice(0, MAX_TABLE_ROWS);
+    if (!rows.length) continue;
+    out.push(table([section.replace(/s$/, ''), ...rows[0][1].map(([k]) => k)], rows.map(([n, f]) => [n, ...f.map(([, v]) => v)])));
+    out.push(...more(rows.length, all.length, section, 'place in the netlist'));
+    if (!r.rows?.[section]) out.push('(SI units)');
     out.push('');
   }
   if (r.events.length) {

@@ -9,22 +9,17 @@ export interface ChamberSummary {
 export interface LineSummary { peak_flow: number; peak_reynolds: number; regime: 'laminar' | 'transitional' | 'turbulent' }
 export interface ValveSummary { peak_flow: number; choked: boolean }
 
-/** What a cylinder did during a run (transient/cylinder-summary.ts). */
-export interface CylinderSummary {
-  start: { position: number };
-  final: { position: number; velocity: number };
-  /** Largest speed reached (signed: positive extending) and when. */
-  peak: { velocity: number; at: number };
-  /** Completed strokes: from leaving one stop to reaching the other. */
-  strokes: { direction: 'extend' | 'retract'; started: number; reached: number; time: number; impact_velocity: number }[];
-  /** Every contact with a stop, with the velocity just before it (signed). */
-  impacts: { t: number; stop: 'full' | 'retracted'; velocity: number }[];
-  /** Duration of the first completed stroke, s; null when none completed. */
-  stroke_time: number | null;
-  /** Time held at rest inside the stroke by static friction, s. */
-  time_stuck: number;
-  /** Energy dissipated by friction and impacts, J. */
-  dissipated: number;
+/**
+ * Summaries by section and element name, as the elements give them (elements/contract.ts:
+ * `ElementSummary`): `chambers`, `lines`, `valves`, and the sections of other kinds.
+ */
+export type ElementSections = Record<string, Record<string, Record<string, unknown>>>;
+
+export type { CylinderSummary } from '../elements/cylinder-summary.js';
+
+/** A cylinder's summary in a run result (`sections.cylinders`), or undefined. */
+export function cylinderSummary(r: Pick<RunResult, 'sections'>, name: string): import('../elements/cylinder-summary.js').CylinderSummary | undefined {
+  return r.sections?.cylinders?.[name] as import('../elements/cylinder-summary.js').CylinderSummary | undefined;
 }
 
 export interface ExpectationResult {
@@ -100,8 +95,10 @@ export interface RunResult {
   chambers: Record<string, ChamberSummary>;
   lines: Record<string, LineSummary>;
   valves: Record<string, ValveSummary>;
-  /** Present when the network has cylinders. */
-  cylinders?: Record<string, CylinderSummary>;
+  /** Sections of element kinds beyond chambers, lines and valves (written after them in JSON). */
+  sections?: ElementSections;
+  /** Rows of the printed table for those sections, where the elements give them (not in JSON). */
+  rows?: Record<string, Record<string, [string, string][]>>;
   mass: { initial: number; final: number; through_boundaries: number; drift: number };
   events: { t: number; what: string }[];
   warnings: string[];

@@ -1,5 +1,6 @@
 /** Rest positions of cylinders and their stability with the load's dynamics (equilibria/cylinder-rest.ts). */
 import { describe, expect, it } from 'vitest';
+import { cylinderSummary } from '../../src/transient/results.js';
 import { findEquilibria } from '../../src/equilibria/equilibria.js';
 import { modelFromText, runChecked } from '../helpers.js';
 
@@ -40,7 +41,7 @@ simulate: { duration: 3 s }
     expect(e.friction_band![1]).toBeCloseTo(want + 5 / 800, 8);
     // the transient (overdamped, from retracted) comes to rest inside the friction band
     const run = runChecked(model);
-    const x = run.cylinders!.c.final.position;
+    const x = cylinderSummary(run, 'c')!.final.position;
     expect(x).toBeGreaterThanOrEqual(e.friction_band![0] - 1e-9);
     expect(x).toBeLessThanOrEqual(e.friction_band![1] + 1e-9);
   });

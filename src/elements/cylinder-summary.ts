@@ -4,8 +4,25 @@
  *
  * Time stuck is time at rest inside the stroke (stops excluded), held by static friction.
  */
-import type { CylinderState } from '../elements/cylinder.js';
-import type { CylinderSummary } from './results.js';
+import type { CylinderState } from './cylinder.js';
+
+/** What a cylinder did during a run: JSON `cylinders.<name>` (SI). */
+export interface CylinderSummary {
+  start: { position: number };
+  final: { position: number; velocity: number };
+  /** Largest speed reached (signed: positive extending) and when. */
+  peak: { velocity: number; at: number };
+  /** Completed strokes: from leaving one stop to reaching the other. */
+  strokes: { direction: 'extend' | 'retract'; started: number; reached: number; time: number; impact_velocity: number }[];
+  /** Every contact with a stop, with the velocity just before it (signed). */
+  impacts: { t: number; stop: 'full' | 'retracted'; velocity: number }[];
+  /** Duration of the first completed stroke, s; null when none completed. */
+  stroke_time: number | null;
+  /** Time held at rest inside the stroke by static friction, s. */
+  time_stuck: number;
+  /** Energy dissipated by friction and impacts, J. */
+  dissipated: number;
+}
 
 export interface CylinderRun {
   /** Whether the piston was stuck inside the stroke at the start. */
