@@ -12,6 +12,7 @@
  */
 import { FiniteJacobian } from './finite-jacobian.js';
 import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
+import { allFinite, checkArguments as checkArgs, initialStep, justInside, minStep, positive, rmsNorm } from './step-control.js';
 import {
   zeroWork,
   type DenseOutput,
@@ -71,43 +72,6 @@ const DEFAULT_MAX_STEPS = 100_000;
 const MAX_SINGULAR = 5;
 /** Non-finite attempts (each dividing h by 4) without getting past the trouble spot. */
 const MAX_NON_FINITE = 10;
-const EPS = 2.220446049250313e-16;
-
-// ---- Small helpers ------------------------------------------------------------------------
-
-/** An option that is given and usable as a step size. */
-function positive(x: number | undefined): x is number {
-  return x !== undefined && x > 0 && Number.isFinite(x);
-}
-
-function allFinite(v: Float64Array): boolean {
-  for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) return false;
-  return true;
-}
-
-/** Weighted RMS of v with sc_i = atol_i + rtol·max(|a_i|, |b_i|). */
-function rmsNorm(v: Float64Array, a: Float64Array, b: Float64Array, p: OdeProblem): number {
-  let s = 0;
-  for (let i = 0; i < v.length; i++) {
-    const sc = p.atol[i] + p.rtol * Math.max(Math.abs(a[i]), Math.abs(b[i]));
-    s += (v[i] / sc) ** 2;
-  }
-  return Math.sqrt(s / Math.max(1, v.length));
-}
-
-/**
- * The double a round-off or two inside tEnd. Stages that would sample f exactly at tEnd use it,
- * so a schedule switching at tEnd (a breakpoint, where the driver restarts) is never seen
- * from the wrong side, whichever way its comparison is written.
- */
-function justInside(tEnd: number, dir: number): number {
-  return tEnd - dir * Math.max(Math.abs(tEnd) * EPS, Number.MIN_VALUE);
-}
-
-/** Smallest step the integrator will try near t: below it t + h cannot resolve the step. */
-function minStep(t: number, tEnd: number): number {
-  return 10 * EPS * Math.max(Math.abs(t), Math.abs(tEnd));
-}
 
 /**
  * One RODAS step machine: workspace, the linearisation at (t, y), a step attempt and the dense
@@ -236,24 +200,14 @@ class Rodas {
     this.hOld = h;
   }
 
-  /**
-   * Starting step from the scaled sizes of y and f: h = 0.01·‖y‖/‖f‖.
-   *
-   * References: Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed. 1993, §II.4 ("Starting step
-   * size", steps a–b).
-   */
+  /** Starting step from the scaled sizes of y and f0 (step-control.ts). */
   initialStep(y: Float64Array, span: number): number {
-    const d0 = rmsNorm(y, y, y, this.p);
-    const d1 = rmsNorm(this.f0, y, y, this.p);
-    return d0 < 1e-5 || d1 < 1e-5 ? 1e-6 * span : 0.01 * (d0 / d1);
+    return initialStep(this.p, y, this.f0, span);
   }
 }
 
 function checkArguments(problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number): void {
-  if (y0.length !== problem.n || problem.atol.length !== problem.n) {
-    throw new RangeError(`rosenbrock: y0 has ${y0.length} and atol ${problem.atol.length} entries, problem.n is ${problem.n}`);
-  }
-  if (!Number.isFinite(t0) || !Number.isFinite(tEnd)) throw new RangeError('rosenbrock: t0 and tEnd must be finite');
+  checkArgs('rosenbrock', problem, t0, y0, tEnd);
 }
 
 /**
