@@ -28,7 +28,7 @@
  */
 import { FiniteJacobian } from './finite-jacobian.js';
 import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
-import { allFinite, checkArguments, initialStep, justInside, minStep, positive, rmsNorm } from './step-control.js';
+import { adaptiveSteps, allFinite, checkArguments, justInside, rmsNorm, type StepMachine } from './step-control.js';
 import {
   zeroWork,
   type DenseOutput,
@@ -87,13 +87,7 @@ const E = rowTimesGinv((i) => ROSW_B[i] - ROSW_BHAT[i]);
 const C = ROSW_ALPHA.map((r) => r.reduce((a, b) => a + b, 0));
 const D = ROSW_GAMMA_IJ.map((r) => r.reduce((a, b) => a + b, ROSW_GAMMA));
 
-// ---- Step-size control --------------------------------------------------------------------
-const SAFE = 0.9;
-const SHRINK_MAX = 5;
-const GROW_MAX = 6;
-const DEFAULT_MAX_STEPS = 100_000;
-const MAX_SINGULAR = 5;
-const MAX_NON_FINITE = 10;
+// ---- Jacobian reuse ------------------------------------------------------------------------
 /** Accepted steps one jacobian serves at most. */
 export const MAX_JACOBIAN_AGE = 20;
 /** An accepted step with an error norm above this asks for a fresh jacobian (measured: bench/integrators.ts). */
@@ -205,8 +199,8 @@ class RosW {
     return allFinite(this.f1);
   }
 
-  /** Accepts the attempt from (t, y) over signed h: dense output, then f0 ← f1. */
-  accept(t: number, h: number, y: Float64Array): void {
+  /** Keeps the attempt from (t, y) over signed h: dense output, then f0 ← f1. */
+  keep(t: number, h: number, y: Float64Array): void {
     const { n, y0, dy, hf0, hf1, f0, f1, yNew } = this;
     for (let i = 0; i < n; i++) {
       y0[i] = y[i];
@@ -228,104 +222,60 @@ export interface RosWOptions extends IntegrateOptions {
   keepError?: number;
 }
 
+/** ROS34PW2 for the shared adaptive loop, with the jacobian kept while steps succeed with room. */
+class RosWMachine extends RosW implements StepMachine {
+  /** Accepted steps since the jacobian was computed; −1: compute one before the next attempt. */
+  private age = -1;
+  private tEnd = 0;
+
+  constructor(p: OdeProblem, options: RosWOptions) {
+    super(p, options.linearAlgebra);
+    this.maxAge = Math.max(1, options.jacobianAge ?? MAX_JACOBIAN_AGE);
+    this.keepError = options.keepError ?? KEEP_ERROR;
+  }
+  private readonly maxAge: number;
+  private readonly keepError: number;
+
+  start(t: number, y: Float64Array, work: WorkCounts): boolean {
+    return this.evalRhs(t, y, work);
+  }
+
+  prepare(t: number, y: Float64Array, hs: number, tInside: number, work: WorkCounts): boolean {
+    this.tEnd = tInside;
+    if (this.age >= 0 && this.age < this.maxAge) return true;
+    this.age = 0;
+    return this.linearise(t, y, hs, tInside, work);
+  }
+
+  override attempt(t: number, y: Float64Array, hs: number, tLast: number, work: WorkCounts): 'ok' | 'singular' | 'non-finite' {
+    const r = super.attempt(t, y, hs, tLast, work);
+    // f at the step end: the dense output's and the next step's first stage
+    return r === 'ok' && !this.evalEnd(tLast, work) ? 'non-finite' : r;
+  }
+
+  retry(kind: 'singular' | 'non-finite' | 'error'): boolean {
+    if (this.age <= 0) return false;
+    this.age = -1; // an old jacobian may be the trouble: a fresh one, and for a failure the same h
+    return kind !== 'error';
+  }
+
+  accept(t: number, hs: number, y: Float64Array): void {
+    this.keep(t, hs, y);
+    this.age++;
+  }
+
+  accepted(err: number, shrinking: boolean): void {
+    if (err > this.keepError || shrinking) this.age = this.maxAge;
+  }
+}
+
 /**
- * Adaptive ROS34PW2 with jacobian reuse. Same options, statuses and conventions as `rosenbrock`;
+ * Adaptive ROS34PW2 with jacobian reuse (the loop: step-control.ts, adaptiveSteps). Same
+ * options, statuses and conventions as `rosenbrock`, plus `jacobianAge` and `keepError`;
  * work.jacobians counts the jacobians actually computed.
  */
-export const rosw: Integrator = (problem, t0, y0, tEnd, onStep, options: RosWOptions = {}) => {
-  checkArguments('rosw', problem, t0, y0, tEnd);
-  const work = zeroWork();
-  const y = Float64Array.from(y0);
-  let t = t0;
-  let hLast = 0;
-  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
-    ({ status, t, y: Float64Array.from(y), work, hLast, message });
-  if (t0 === tEnd) return finish('completed', 'empty interval');
-
-  const dir = Math.sign(tEnd - t0);
-  const span = Math.abs(tEnd - t0);
-  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
-  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
-  const maxAge = Math.max(1, options.jacobianAge ?? MAX_JACOBIAN_AGE);
-  const keepError = options.keepError ?? KEEP_ERROR;
-  const tInside = justInside(tEnd, dir);
-  const st = new RosW(problem, options.linearAlgebra);
-
-  if (!st.evalRhs(t, y, work)) return finish('non-finite', `rhs is not finite at the initial point t = ${t}`);
-  let h = Math.min(positive(options.h0) ? options.h0 : initialStep(problem, y, st.f0, span), hMax);
-  let jacobianAge = -1; // −1: none yet
-  let reject = false;
-  let hAcc = 0;
-  let errAcc = 1;
-  let nSingular = 0;
-  let nNonFinite = 0;
-  let tTrouble = t;
-
-  for (;;) {
-    if (work.steps + work.rejected >= maxSteps) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
-    if (!(h > minStep(t, tEnd))) return finish('step-too-small', `step size ${h} below round-off limit at t = ${t}`);
-    const hProposed = h;
-    const last = Math.abs(tEnd - t) <= 1.0001 * h;
-    const tNew = last ? tEnd : t + dir * h;
-    const hs = last ? tEnd - t : dir * h;
-    if (last) h = Math.abs(hs);
-
-    if (jacobianAge < 0 || jacobianAge >= maxAge) {
-      if (!st.linearise(t, y, hs, tInside, work)) return finish('non-finite', `jacobian or ∂f/∂t not finite at t = ${t}`);
-      jacobianAge = 0;
-    }
-
-    let outcome = st.attempt(t, y, hs, last ? tInside : tNew, work);
-    if (outcome === 'ok' && !st.evalEnd(last ? tInside : tNew, work)) outcome = 'non-finite';
-    if (outcome !== 'ok') {
-      work.rejected++;
-      reject = true;
-      if (jacobianAge > 0) { jacobianAge = -1; continue; } // first retry with a fresh jacobian
-      if (outcome === 'singular') {
-        if (++nSingular >= MAX_SINGULAR) return finish('singular', `iteration matrix singular ${nSingular} times at t = ${t}`);
-        h *= 0.5;
-      } else {
-        if (dir * (tNew - tTrouble) > 0) tTrouble = tNew;
-        if (++nNonFinite > MAX_NON_FINITE) return finish('non-finite', `non-finite stage values after ${MAX_NON_FINITE} step reductions at t = ${t}`);
-        h *= 0.25;
-      }
-      continue;
-    }
-
-    const err = st.errorNorm(y);
-    let fac = Math.max(1 / GROW_MAX, Math.min(SHRINK_MAX, Math.cbrt(err) / SAFE));
-    if (err > 1) {
-      work.rejected++;
-      reject = true;
-      h /= fac;
-      if (jacobianAge > 0) jacobianAge = -1;
-      continue;
-    }
-    if (work.steps > 0) {
-      const facGus = Math.max(1 / GROW_MAX, Math.min(SHRINK_MAX, ((hAcc / h) * Math.cbrt(err * err / errAcc)) / SAFE));
-      fac = Math.max(fac, facGus);
-    }
-    hAcc = h;
-    errAcc = Math.max(1e-2, err);
-    work.steps++;
-    st.accept(t, hs, y);
-    y.set(st.yNew);
-    const tOld = t;
-    t = tNew;
-    hLast = last ? Math.max(h, hProposed) : h;
-    if (dir * (t - tTrouble) > 0) nNonFinite = 0;
-    nSingular = 0;
-    jacobianAge++;
-    if (onStep(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
-    if (last) return finish('completed', 'reached tEnd');
-    let hNew = Math.min(h / fac, hMax);
-    if (reject) hNew = Math.min(hNew, h);
-    // the old jacobian is kept only while it serves: steps accepted with room and not shrinking
-    if (err > keepError || hNew < h) jacobianAge = maxAge;
-    reject = false;
-    h = hNew;
-  }
-};
+export const rosw: Integrator = (problem, t0, y0, tEnd, onStep, options: RosWOptions = {}) =>
+  adaptiveSteps('rosw', new RosWMachine(problem, options), 3, problem, t0, y0, tEnd, onStep, options);
 
 /**
  * ROS34PW2 with `steps` equal steps and no error control, for order studies. With
@@ -354,7 +304,7 @@ export function roswFixedSteps(
     if (outcome !== 'ok') return finish(outcome, `${outcome} step at t = ${t}`);
     if (!st.evalEnd(i === steps ? tInside : tNew, work)) return finish('non-finite', `non-finite rhs at t = ${tNew}`);
     work.steps++;
-    st.accept(t, hs, y);
+    st.keep(t, hs, y);
     y.set(st.yNew);
     const tOld = t;
     t = tNew;
