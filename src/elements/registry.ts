@@ -1,15 +1,20 @@
 /**
  * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
  * keeps: gas nodes first (chambers, then reservoirs), so that they evaluate before the elements
- * between them, then lines and valves, then feeds. The one place that names the kinds: a new
- * kind adds its line here (and its parameter table, netlist reading and model entry).
+ * between them, then lines and valves, then feeds, then the kinds read from their table alone
+ * (netlist/kinds.ts: ELEMENT_TABLES), each made by its line in MAKERS. The one place that names
+ * the kinds: a new kind adds its table and its line here.
  */
-import type { Model, NodeRef } from '../model/types.js';
+import type { ElementModel, Model, NodeRef } from '../model/types.js';
 import { BranchElement } from './branch-element.js';
 import { ChamberElement } from './chamber-element.js';
 import type { Assembly, Element } from './contract.js';
 import { FeedElement } from './feed.js';
 import { ReservoirElement } from './reservoir.js';
+
+/** Kinds read from their table alone (netlist/kinds.ts: ELEMENT_TABLES): how each makes its element. */
+const MAKERS: Record<string, (m: ElementModel, asm: Assembly, node: (n: NodeRef) => number) => Element> = {
+};
 
 export function createElements(model: Model, asm: Assembly): Element[] {
   const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
@@ -17,5 +22,10 @@ export function createElements(model: Model, asm: Assembly): Element[] {
   const node = (n: NodeRef): number => (n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node);
   const branches = model.branches.map((b) => new BranchElement(b, asm, node(b.from), node(b.to)));
   const feeds = model.feeds.map((f) => new FeedElement(f, asm, chambers[f.into].node));
-  return [...chambers, ...reservoirs, ...branches, ...feeds];
+  const more = (model.elements ?? []).map((m) => {
+    const make = MAKERS[m.kind];
+    if (!make) throw new Error(`element kind ${m.kind} has a table but no element (elements/registry.ts)`);
+    return make(m, asm, node);
+  });
+  return [...chambers, ...reservoirs, ...branches, ...feeds, ...more];
 }

@@ -63,6 +63,7 @@ export type Section =
   | 'valve-operation'
   | 'schedule-step'
   | 'feed'
+  | 'element'
   | 'simulate'
   | 'expect';
 
@@ -313,6 +314,27 @@ export const FEED: KindTable = {
   ],
 };
 
+// ---- element kinds read from their table alone -------------------------------------------
+
+/**
+ * An element kind that needs no reading code of its own: the netlist section `key` maps names to
+ * entries whose keys are the table's parameters (a `name` parameter names a chamber, a reservoir
+ * or `ambient`). Its element lives in src/elements/ and is made by elements/registry.ts; see
+ * DEVELOPERS.md, "How to add an element kind".
+ */
+export interface ElementTable extends KindTable {
+  section: 'element';
+  /** The netlist section, e.g. `leaks`. */
+  key: string;
+  /** Quantities its channels offer to expectations (`<name>.<quantity>`), with their dimensions. */
+  probes: Readonly<Record<string, Dimension>>;
+  /** It exchanges gas with the surroundings: a group of chambers it touches is open. */
+  boundary?: boolean;
+}
+
+/** Element kinds read from their table alone, in the order their sections are read. */
+export const ELEMENT_TABLES: ElementTable[] = [];
+
 // ---- top level -----------------------------------------------------------------------------
 
 export const AMBIENT: KindTable = {
@@ -414,6 +436,7 @@ export const TOP: KindTable = {
     opt('lines', 'structure', 'lines by name', { shape: 'lines' }),
     opt('valves', 'structure', 'valves by name', { shape: 'valves' }),
     opt('feeds', 'structure', 'feeds by name', { shape: 'feeds' }),
+    ...ELEMENT_TABLES.map((k) => opt(k.key, 'structure', `${k.kind}s by name`, { shape: k.key })),
     p('simulate', 'structure', 'duration and solver settings', { shape: 'simulate' }),
     opt('expect', 'structure', 'checks for CI', { shape: 'expect' }),
   ],
@@ -422,7 +445,7 @@ export const TOP: KindTable = {
 /** Every table, for `plenum kinds` and the README. */
 export const ALL_TABLES: KindTable[] = [
   TOP, AMBIENT, CUSTOM_GAS, VISCOSITY, CHAMBER, ...WALL_LAWS, START, LIMITS, RESERVOIR, LINE, VALVE,
-  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, SCHEDULE_STEP, FEED, SIMULATE, EXPECT, NEAR, SETTLES,
+  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, SCHEDULE_STEP, FEED, ...ELEMENT_TABLES, SIMULATE, EXPECT, NEAR, SETTLES,
 ];
 
 /** The table of a wall law, or undefined. */
@@ -430,10 +453,11 @@ export function wallLaw(kind: string): KindTable | undefined {
   return WALL_LAWS.find((w) => w.kind === kind);
 }
 
-/** Probe quantities by element kind. */
-export const PROBE_QUANTITIES = {
+/** Probe quantities by element kind (kinds read from their table bring their own). */
+export const PROBE_QUANTITIES: Readonly<Record<string, readonly string[]>> = {
   chamber: ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch'],
   line: ['flow', 'reynolds'],
   valve: ['flow', 'reynolds'],
   total: ['mass'],
-} as const;
+  ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, Object.keys(k.probes)])),
+};

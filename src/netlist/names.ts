@@ -5,15 +5,18 @@
  */
 import { didYouMean } from '../diag/did-you-mean.js';
 import { IDENTIFIER, type Checker, type Where } from './checker.js';
+import { ELEMENT_TABLES } from './kinds.js';
 import type { YMap, YNode } from './yaml-types.js';
 
-export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed';
-export const SECTIONS: Record<ElementKind, string> = {
+/** Built-in kinds, and kinds read from their table alone (kinds.ts: ELEMENT_TABLES). */
+export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | (string & {});
+export const SECTIONS: Readonly<Record<string, string>> = {
   chamber: 'chambers',
   reservoir: 'reservoirs',
   line: 'lines',
   valve: 'valves',
   feed: 'feeds',
+  ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, k.key])),
 };
 export const AMBIENT = 'ambient';
 

@@ -6,7 +6,7 @@
  */
 import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
 import {
-  AMBIENT, CHAMBER, CHECK, CUSTOM_GAS, EXPECT, FEED, GAS_NAMES, LIMITS, LINE, NEAR, RELIEF, RESERVOIR,
+  AMBIENT, CHAMBER, CHECK, CUSTOM_GAS, ELEMENT_TABLES, EXPECT, FEED, GAS_NAMES, LIMITS, LINE, NEAR, RELIEF, RESERVOIR,
   SCHEDULE_STEP, SETTLES, SIMULATE, START, TOP, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, VISCOSITY, WALL_LAWS,
   type Bounds, type KindTable, type ParamSpec,
 } from './kinds.js';
@@ -108,6 +108,7 @@ function shapes(): Record<string, () => Schema> {
     lines: () => namedMap(objectOf(LINE), 'Lines by name.'),
     valves: () => namedMap(valveSchema(), 'Valves by name.'),
     feeds: () => namedMap(objectOf(FEED), 'Feeds by name.'),
+    ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.key, () => namedMap(objectOf(k), `${k.doc[0].toUpperCase()}${k.doc.slice(1)}, by name.`)])),
     simulate: () => objectOf(SIMULATE),
     expect: () => ({ type: 'array', description: 'Checks for CI.', items: objectOf(EXPECT) }),
     at: () => ({ description: 'A time or `end`.', anyOf: [{ const: 'end' }, timeValue] }),

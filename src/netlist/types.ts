@@ -116,9 +116,10 @@ export interface SimulateSpec {
   maxWall?: number;        // s
 }
 
+/** Quantities of the built-in kinds; kinds read from their table bring their own (kinds.ts). */
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
-  | 'flow' | 'reynolds';
+  | 'flow' | 'reynolds' | (string & {});
 
 export interface Probe {
   /** Element name, or 'total' with quantity 'mass'. */
@@ -147,6 +148,17 @@ export type ExpectSpec =
     }
   | { kind: 'settles'; name: string; within: number; band: number; pos: SourcePos };
 
+/**
+ * An element of a kind read from its table alone (kinds.ts: ELEMENT_TABLES): its parameters as
+ * the table reads them (SI numbers, names as text), by parameter name.
+ */
+export interface ElementSpec {
+  kind: string;
+  name: string;
+  values: Record<string, unknown>;
+  pos: SourcePos;
+}
+
 export interface NetlistDoc {
   file: string;
   /** The source text, kept for reports. */
@@ -161,6 +173,8 @@ export interface NetlistDoc {
   lines: LineSpec[];
   valves: ValveSpec[];
   feeds: FeedSpec[];
+  /** Elements of kinds read from their table alone. */
+  elements?: ElementSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
   /** Dotted netlist paths of optional parameters that took their default (e.g. `lines.supply.roughness`). */
