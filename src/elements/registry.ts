@@ -10,10 +10,12 @@ import { BranchElement } from './branch-element.js';
 import { ChamberElement } from './chamber-element.js';
 import type { Assembly, Element } from './contract.js';
 import { FeedElement } from './feed.js';
+import { LeakElement } from './leak.js';
 import { ReservoirElement } from './reservoir.js';
 
 /** Kinds read from their table alone (netlist/kinds.ts: ELEMENT_TABLES): how each makes its element. */
 const MAKERS: Record<string, (m: ElementModel, asm: Assembly, node: (n: NodeRef) => number) => Element> = {
+  leak: (m, asm, node) => new LeakElement(m, asm, node(m.nodes.from)),
 };
 
 export function createElements(model: Model, asm: Assembly): Element[] {

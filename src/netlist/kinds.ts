@@ -332,8 +332,22 @@ export interface ElementTable extends KindTable {
   boundary?: boolean;
 }
 
+export const LEAK: ElementTable = {
+  kind: 'leak',
+  section: 'element',
+  key: 'leaks',
+  doc: 'a fixed leak: a sharp orifice from a chamber to the surroundings (compressible nozzle flow, choked and subsonic)',
+  probes: { flow: 'mass-flow', lost: 'mass' },
+  boundary: true,
+  params: [
+    p('from', 'name', 'the chamber that leaks'),
+    p('diameter', 'length', 'orifice diameter', { bounds: POSITIVE }),
+    opt('discharge-coefficient', 'dimensionless', 'discharge coefficient Cd (about 0.6 for a sharp-edged hole, common practice)', { default: 0.6, bounds: { gt: 0, le: 1 } }),
+  ],
+};
+
 /** Element kinds read from their table alone, in the order their sections are read. */
-export const ELEMENT_TABLES: ElementTable[] = [];
+export const ELEMENT_TABLES: ElementTable[] = [LEAK];
 
 // ---- top level -----------------------------------------------------------------------------
 
