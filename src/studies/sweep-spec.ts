@@ -46,7 +46,7 @@ export interface ScalarValue {
 }
 
 /** Maps x in one unit to SI: si = offset + factor·x (affine for °C and °F). */
-interface UnitMap { unit: string; reference?: PressureReference; anr?: boolean; offset: number; factor: number; siLabel: string; base: number[] }
+export interface UnitMap { unit: string; reference?: PressureReference; anr?: boolean; offset: number; factor: number; siLabel: string; base: number[] }
 
 export interface Distribution {
   kind: 'normal' | 'uniform';
@@ -159,7 +159,7 @@ export function readScalar(text: string): { ok: true; value: ScalarValue } | { o
   return { ok: true, value };
 }
 
-function unitMap(v: ScalarValue): UnitMap {
+export function unitMap(v: ScalarValue): UnitMap {
   if (v.unit === '%') return { unit: '%', offset: 0, factor: 0.01, siLabel: '-', base: v.base };
   if (v.unit === '') return { unit: '', offset: 0, factor: 1, siLabel: '-', base: v.base };
   const dim = nameDimension(v.base);
@@ -170,7 +170,7 @@ function unitMap(v: ScalarValue): UnitMap {
 }
 
 /** x (in `map.unit`) → SI. */
-function toSi(map: UnitMap, x: number): number {
+export function toSi(map: UnitMap, x: number): number {
   return map.offset + map.factor * x;
 }
 
