@@ -42,6 +42,8 @@ export { size, type SizeOptions, type SizeReport } from './studies/size.js';
 export { sizeText, sizeJson } from './studies/size-report.js';
 export { expectationMargin } from './studies/margins.js';
 export { readMeasuredCsv, checkSeries, type MeasuredSeries } from './studies/bench-series.js';
+export { measuredOverlays, measuredTrace, alignToMeasured } from './studies/measured-overlay.js';
+export type { MeasuredOverlay } from './transient/report-input.js';
 export { reportInput, type ReportInput, type ReportInputOptions, type EquilibriumMark, type WallCurve, type ReportTopology } from './transient/report-input.js';
 export { reportHtml } from './report/html.js';
 export { reportFigures, type Figure, type FigureOptions } from './report/plots.js';

@@ -70,8 +70,8 @@ program.command('check')
 
 program.command('diff')
   .description('compare two traces (baselines from `run --baseline`, or CSV from `run --csv`): largest deviations, exit 1 outside tolerance')
-  .argument('<a>', 'the reference: a baseline (.json) or a CSV trace')
-  .argument('<b>', 'the trace to compare with it')
+  .argument('<a>', 'the reference: a baseline (.json), a CSV trace, or a bench recording (measured CSV)')
+  .argument('<b>', 'the trace to compare with it (a recording is compared at its reading times, on its channels)')
   .option('--rtol <r>', 'relative tolerance (default 1e-6)')
   .option('--atol <a>', 'absolute tolerance for every quantity, SI (default: per quantity, see docs/ci.md)')
   .option('--tol <quantity=value>', 'tolerance for a quantity (pressure, volume, mass, temperature, flow, stretch, reynolds, time) or one channel: `pressure=50 Pa`, `cell_a.gauge=0.1%` (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
@@ -164,8 +164,9 @@ program.command('report')
   .argument('<netlist>', 'netlist file (.yaml)')
   .option('-o, --out <file>', 'the HTML file to write')
   .option('--plots <dir>', 'also write the figures as SVG files into this directory')
+  .option('--data <file>', 'a bench recording (CSV with `time [s]` and `<probe> [unit]` columns) to overlay, with a residual panel (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
   .option('-q, --quiet', 'do not print the summary table')
-  .action(async (file: string, opts: { out?: string; plots?: string; quiet?: boolean }) => {
+  .action(async (file: string, opts: { out?: string; plots?: string; data: string[]; quiet?: boolean }) => {
     const { reportCommand } = await import('./report.js');
     process.exitCode = await reportCommand(file, { ...opts, version: VERSION });
   });
