@@ -7,7 +7,8 @@
  */
 import { isScalar, parseDocument } from 'yaml';
 import { checkPath, splitPath } from '../netlist/override.js';
-import { readScalar, toSi, unitMap, valueText, type ScalarValue, type UnitMap } from './sweep-spec.js';
+import { readScalar, valueText, type ScalarValue } from '../units/scalar.js';
+import { unitMap, type UnitMap } from './sweep-spec.js';
 
 export interface FreeParam {
   path: string;
@@ -96,5 +97,3 @@ export function startValue(p: FreeParam): number {
   return 0.5 * (p.lo + p.hi);
 }
 
-/** toSi re-exported for the study modules. */
-export { toSi };

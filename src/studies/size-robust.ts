@@ -8,7 +8,7 @@
  * deterministic function).
  */
 import { caseStream } from './rng.js';
-import { readScalar } from './sweep-spec.js';
+import { readScalar } from '../units/scalar.js';
 import { checkPath } from '../netlist/override.js';
 
 /** Corners above this many parameters: use a Monte Carlo sample instead. */
