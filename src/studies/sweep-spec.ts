@@ -110,7 +110,7 @@ export function unitMap(v: ScalarValue): UnitMap {
 }
 
 /** x (in `map.unit`) → SI. */
-export function toSi(map: UnitMap, x: number): number {
+function toSi(map: UnitMap, x: number): number {
   return map.offset + map.factor * x;
 }
 
