@@ -50,6 +50,8 @@ export const CALIBRATION_TOLERANCE = 1e-8;
 const SINGULAR_RATIO = 1e-8;
 /** Correlations above this are reported. */
 const STRONG_CORRELATION = 0.98;
+/** Relative disagreement of forward and backward differences above which a response counts as non-smooth. */
+const ROUGH = 0.25;
 /** Eigenvector components above this name a parameter in an identifiability warning. */
 const COMPONENT = 0.3;
 
@@ -299,6 +301,8 @@ export async function calibrate(o: CalibrateOptions): Promise<Result<Calibration
   const weigh = (sim: Float64Array, r: Float64Array): void => {
     for (let i = 0; i < m; i++) r[i] = (sim[i] - measured[i]) / sigma[group[i]];
   };
+  /** Per parameter at the last Jacobian: ‖D⁺ − D⁻‖/max(‖D⁺‖, ‖D⁻‖) of the one-sided differences. */
+  const roughness = new Float64Array(n);
   let cacheX: Float64Array | null = null;
   let cacheSim: Float64Array | null = null;
   const cachedAt = (x: ArrayLike<number>): boolean => cacheX !== null && cacheX.every((v, j) => v === x[j]);
@@ -335,6 +339,19 @@ export async function calibrate(o: CalibrateOptions): Promise<Result<Calibration
         const sm = minus ? sims[at++]! : centre;
         const d = plus + minus;
         for (let i = 0; i < m; i++) J[i * n + j] = d > 0 ? (sp[i] - sm[i]) / d / sigma[group[i]] : 0;
+        // a smooth response has nearly equal forward and backward differences (they differ by
+        // about h·f''); a large difference means a jump (a valve that pops or not) within the step
+        roughness[j] = 0;
+        if (plus && minus) {
+          let dd = 0, fp = 0, fm = 0;
+          for (let i = 0; i < m; i++) {
+            const a = (sp[i] - centre[i]) / plus / sigma[group[i]];
+            const b = (centre[i] - sm[i]) / minus / sigma[group[i]];
+            dd += (a - b) ** 2; fp += a * a; fm += b * b;
+          }
+          const big = Math.sqrt(Math.max(fp, fm));
+          roughness[j] = big > 0 ? Math.sqrt(dd) / big : 0;
+        }
       }
       return true;
     },
@@ -385,6 +402,9 @@ export async function calibrate(o: CalibrateOptions): Promise<Result<Calibration
   const correlation = free.map((_, i) => free.map((__, j) => (inv ? inv[i * n + j] / Math.sqrt(inv[i * n + i] * inv[j * n + j]) : Number.NaN)));
   if (evaluable) warnings.push(...identifiability(fit.J, m, n, free.map((f) => f.path), correlation));
   for (const p of parameters) if (Number.isFinite(p.stderr) && Math.abs(p.stderr) > Math.abs(p.value)) warnings.push(`${p.path} is poorly determined: its standard error exceeds its value`);
+  free.forEach((f, j) => {
+    if (roughness[j] > ROUGH) warnings.push(`the simulated probes respond to ${f.path} non-smoothly near the fitted value (forward and backward differences differ by ${(100 * roughness[j]).toFixed(0)} %): a valve that switches or not, a wall that snaps through; the fit may sit in a local minimum and its standard error and interval are not reliable`);
+  });
 
   const channelFit = (keep: (i: number) => boolean): ChannelFit[] => groups.map((key, g) => {
     let ss = 0, sum = 0, k = 0;

@@ -32,6 +32,11 @@ export function netlistText(source: string, path: string): string | undefined {
   return isScalar(node) ? String(node.value) : undefined;
 }
 
+/** A unit as netlists write it: `L/(s*bar)` rather than mathjs's `L / (s bar)`. */
+function tidyUnit(map: UnitMap): UnitMap {
+  return { ...map, unit: map.unit.replace(/ \/ /g, '/').replace(/(\w) (?=\w)/g, '$1*') };
+}
+
 /** SI value of a scalar; pressures absolute. */
 function siOf(v: ScalarValue, pa: number): number {
   return v.reference === 'gauge' ? v.si + pa : v.si;
@@ -62,7 +67,7 @@ export function parseFree(arg: string, source: string, pa: number, boundsOptiona
   if (!body) {
     if (!boundsOptional) return { ok: false, message: `--free ${path} needs bounds`, hint: `write \`--free ${path}=LOW..HIGH\`, e.g. \`--free lines.feed.diameter=2 mm..6 mm\`` };
     if (!nominal) return { ok: false, message: `--free ${path}: the netlist does not set this value, so there is no start`, hint: `give bounds (\`${path}=LOW..HIGH\`): the search starts in their middle` };
-    return { ok: true, value: { path, lo: -Infinity, hi: Infinity, nominal: siOf(nominal.value, pa), map: unitMap(nominal.value) } };
+    return { ok: true, value: { path, lo: -Infinity, hi: Infinity, nominal: siOf(nominal.value, pa), map: tidyUnit(unitMap(nominal.value)) } };
   }
   const parts = body.split('..');
   if (parts.length !== 2 || !parts[0].trim() || !parts[1].trim()) return { ok: false, message: `--free ${path}: \`${body}\` is not LOW..HIGH`, hint: NUMBER_HINT };
@@ -85,7 +90,7 @@ export function parseFree(arg: string, source: string, pa: number, boundsOptiona
   const b = siOf(hi.value, pa);
   if (!(a < b)) return { ok: false, message: `--free ${path}: the lower bound is not below the upper bound`, hint: 'write LOW..HIGH with LOW < HIGH' };
   // values are written back in the netlist's own unit when it has one, else in the bounds' unit
-  const map = unitMap(nominal && nominal.value.unit !== '' && same(nominal.value, lo.value) ? nominal.value : lo.value);
+  const map = tidyUnit(unitMap(nominal && nominal.value.unit !== '' && same(nominal.value, lo.value) ? nominal.value : lo.value));
   const nom = nominal ? siOf(nominal.value, pa) : undefined;
   return { ok: true, value: { path, lo: a, hi: b, nominal: nom !== undefined && Number.isFinite(nom) ? nom : undefined, map } };
 }

@@ -44,6 +44,8 @@ const STEP_MIN = 1e-4;
 /** Interior points tried when both ends of a one-parameter range fail. */
 const SCAN_POINTS = 9;
 const MAX_POLLS = 400;
+/** Notes of a non-interval feasible set listed at most. */
+const MAX_NOTES = 3;
 
 export interface SizeOptions {
   source: string;
@@ -145,6 +147,7 @@ export async function size(o: SizeOptions): Promise<Result<SizeReport>> {
     });
     return [...values.values()];
   });
+  const notes: string[] = [];
   const designs = async (ps: number[][]): Promise<Design[]> => {
     const jobs = ps.flatMap((p) => jobsFor(p).map((params) => ({ experiment: 0, params })));
     const res: EvalResult[] = await pool.map(jobs);
@@ -171,25 +174,34 @@ export async function size(o: SizeOptions): Promise<Result<SizeReport>> {
     });
   };
   /**
-   * Narrows [bad, good] (g < 0 at bad, ≥ 0 at good) on pass/fail, several points a round when
-   * workers are free; returns the feasible end.
+   * Narrows [bad, good] on pass/fail, several points a round when workers are free; returns the
+   * feasible end. "Fails" means: one of the expectations that fail at `bad` (the ones that make
+   * the boundary) is short of the margin. Another expectation failing inside the bracket, while
+   * passing at both ends, means the feasible set is not an interval; that is noted, and the
+   * bracket still closes on the boundary of the expectations that define it.
    */
-  const bisect = async (bad: number, good: { v: number; d: Design }, at: (v: number) => number[]): Promise<{ v: number; d: Design }> => {
+  const bisect = async (bad: { v: number; d: Design }, good: { v: number; d: Design }, at: (v: number) => number[]): Promise<{ v: number; d: Design }> => {
+    const defining = names.filter((nm) => !(bad.d.margins.get(nm)! >= margin));
+    const gDef = (d: Design): number => Math.min(...defining.map((nm) => d.margins.get(nm)!)) - margin;
     const per = Math.max(1, Math.floor((o.jobs ?? defaultJobs()) / cases.length));
-    while (Math.abs(good.v - bad) > BRACKET_REL * Math.max(Math.abs(good.v), Math.abs(bad))) {
-      const vs = Array.from({ length: per }, (_, i) => bad + ((good.v - bad) * (i + 1)) / (per + 1));
+    let lo = bad.v;
+    while (Math.abs(good.v - lo) > BRACKET_REL * Math.max(Math.abs(good.v), Math.abs(lo))) {
+      const vs = Array.from({ length: per }, (_, i) => lo + ((good.v - lo) * (i + 1)) / (per + 1));
       const ds = await designs(vs.map(at));
-      // the first feasible point from the infeasible side; the one before it is the new bad end
-      const i = ds.findIndex((d) => d.g >= 0);
-      if (i < 0) bad = vs[per - 1];
+      ds.forEach((d, i) => {
+        const other = names.filter((nm) => !defining.includes(nm) && !(d.margins.get(nm)! >= margin));
+        if (other.length && gDef(d) >= 0 && notes.length < MAX_NOTES) notes.push(`at ${free.map((f, j) => paramText(f, at(vs[i])[j], pa, 6)).join(', ')} \`${other.join('`, `')}\` fails although it passes at both ends of the bracket: the feasible set is not an interval here (a valve that switches or not?); check the design by a sweep`);
+      });
+      // the first point from the infeasible side that clears the defining expectations
+      const i = ds.findIndex((d) => gDef(d) >= 0);
+      if (i < 0) lo = vs[per - 1];
       else {
-        if (i > 0) bad = vs[i - 1];
+        if (i > 0) lo = vs[i - 1];
         good = { v: vs[i], d: ds[i] };
       }
     }
     return good;
   };
-  const notes: string[] = [];
   let best: { p: number[]; d: Design } | undefined;
   let method: SizeReport['method'] = 'boundary';
   try {
@@ -217,7 +229,7 @@ export async function size(o: SizeOptions): Promise<Result<SizeReport>> {
         }
         if (feasible) {
           stage = 'bisecting on pass/fail';
-          const b = await bisect(near.v, feasible, (v) => [v]);
+          const b = await bisect(near, feasible, (v) => [v]);
           best = { p: [b.v], d: b.d };
         }
       }
@@ -257,7 +269,7 @@ export async function size(o: SizeOptions): Promise<Result<SizeReport>> {
         const at = (v: number): number[] => u2p(u.map((x, j) => (j === objIndex ? v : x)));
         const end = o.minimise ? 0 : 1;
         const [dEnd] = await designs([at(end)]);
-        const b = dEnd.g >= 0 ? { v: end, d: dEnd } : await bisect(end, { v: u[objIndex], d: cur }, at);
+        const b = dEnd.g >= 0 ? { v: end, d: dEnd } : await bisect({ v: end, d: dEnd }, { v: u[objIndex], d: cur }, at);
         u = u.map((x, j) => (j === objIndex ? b.v : x));
         cur = b.d;
       }
