@@ -18,6 +18,7 @@ import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { didYouMean } from '../diag/did-you-mean.js';
 import type { Dimension } from '../units/dimensions.js';
 import { mathUnit } from '../units/math.js';
+import { dataDiag, splitCells } from './fit-data.js';
 import { splitQualifier } from '../units/pressure.js';
 import { readUnit } from '../units/quantity.js';
 
@@ -59,24 +60,6 @@ export interface MeasuredSeries {
   timePos: { line: number; column: number };
 }
 
-function diag(file: string, line: number, column: number, code: string, message: string, hint: string): Diagnostic {
-  return { code, severity: 'error', message, file, line, column, path: [], hint };
-}
-
-function splitCells(line: string, delimiter: string): { text: string; column: number }[] {
-  const out: { text: string; column: number }[] = [];
-  let start = 0;
-  for (;;) {
-    const at = line.indexOf(delimiter, start);
-    const raw = at < 0 ? line.slice(start) : line.slice(start, at);
-    const lead = raw.length - raw.trimStart().length;
-    out.push({ text: raw.trim().replace(/^"(.*)"$/, '$1').trim(), column: start + lead + 1 });
-    if (at < 0) break;
-    start = at + delimiter.length;
-  }
-  return out;
-}
-
 /** SI = offset + factor·x for a unit of a dimension (affine for °C); an error text otherwise. */
 function unitMap(unit: string, dimension: Dimension): { factor: number; offset: number } | string {
   if (dimension === 'dimensionless') return ['-', '1', ''].includes(unit) ? { factor: 1, offset: 0 } : `a plain number is written \`[-]\`, not \`[${unit}]\``;
@@ -113,11 +96,11 @@ export function readMeasuredCsv(text: string, file: string, ambient: number): Re
     headerAt = i;
     break;
   }
-  if (headerAt < 0) return { ok: false, diagnostics: [diag(file, 1, 1, 'data-empty', 'the file has no data', 'start with a header such as `time [s],receiver.gauge [kPa]`, then one row per reading')] };
+  if (headerAt < 0) return { ok: false, diagnostics: [dataDiag(file, 1, 1, 'data-empty', 'the file has no data', 'start with a header such as `time [s],receiver.gauge [kPa]`, then one row per reading')] };
   const header = lines[headerAt];
   const delimiter = header.includes('\t') ? '\t' : header.includes(';') && !header.includes(',') ? ';' : ',';
   const cells = splitCells(header, delimiter);
-  const at = (column: number, code: string, message: string, hint: string): void => { errors.push(diag(file, headerAt + 1, column, code, message, hint)); };
+  const at = (column: number, code: string, message: string, hint: string): void => { errors.push(dataDiag(file, headerAt + 1, column, code, message, hint)); };
   const parsed = cells.map((c) => {
     const m = /^(.*?)\s*(?:\[([^\]]*)\])?\s*$/.exec(c.text);
     return { name: (m?.[1] ?? c.text).trim(), unit: m?.[2]?.trim(), cell: c };
@@ -173,7 +156,7 @@ export function readMeasuredCsv(text: string, file: string, ambient: number): Re
   const colIndex = parsed.slice(1).map((p) => seen.get(p.name) ?? -1);
   let more = 0;
   const bad = (line: number, column: number, message: string, hint: string): void => {
-    if (errors.length < MAX_ERRORS) errors.push(diag(file, line, column, 'data-row', message, hint));
+    if (errors.length < MAX_ERRORS) errors.push(dataDiag(file, line, column, 'data-row', message, hint));
     else more++;
   };
   for (let i = headerAt + 1; i < lines.length; i++) {
@@ -202,9 +185,9 @@ export function readMeasuredCsv(text: string, file: string, ambient: number): Re
     rowLines.push(i + 1);
     row.forEach((v, k) => values[k].push(v));
   }
-  if (more) errors.push(diag(file, 0, 0, 'data-row', `and ${more} more bad row${more === 1 ? '' : 's'}`, 'fix the rows above first'));
+  if (more) errors.push(dataDiag(file, 0, 0, 'data-row', `and ${more} more bad row${more === 1 ? '' : 's'}`, 'fix the rows above first'));
   if (errors.length) return { ok: false, diagnostics: errors };
-  if (!times.length) return { ok: false, diagnostics: [diag(file, headerAt + 1, 1, 'data-empty', 'the file has a header but no rows', 'add one row per reading')] };
+  if (!times.length) return { ok: false, diagnostics: [dataDiag(file, headerAt + 1, 1, 'data-empty', 'the file has a header but no rows', 'add one row per reading')] };
   columns.forEach((col, k) => { col.values = Float64Array.from(values[k]); });
   return {
     ok: true,
@@ -223,12 +206,12 @@ export function checkSeries(s: MeasuredSeries, channels: readonly string[], dura
   for (const c of s.columns) {
     if (!known.has(c.key)) {
       const close = didYouMean(c.key, known);
-      out.push(diag(s.file, c.line, c.column, 'data-probe', `the netlist has no probe \`${c.key}\``, close || `probes of this netlist: ${[...known].slice(0, 8).join(', ')}${known.size > 8 ? ', …' : ''}`));
+      out.push(dataDiag(s.file, c.line, c.column, 'data-probe', `the netlist has no probe \`${c.key}\``, close || `probes of this netlist: ${[...known].slice(0, 8).join(', ')}${known.size > 8 ? ', …' : ''}`));
     }
   }
   const inside = s.times.filter((t) => t >= 0 && t <= duration).length;
   if (inside === 0) {
-    out.push(diag(s.file, s.lines[0], s.timePos.column, 'data-time', `the readings (t = ${s.times[0]} … ${s.times[s.times.length - 1]} s) do not overlap the simulation (0 … ${duration} s)`, 'check the time unit in the header, or set `simulate.duration` to cover the recording'));
+    out.push(dataDiag(s.file, s.lines[0], s.timePos.column, 'data-time', `the readings (t = ${s.times[0]} … ${s.times[s.times.length - 1]} s) do not overlap the simulation (0 … ${duration} s)`, 'check the time unit in the header, or set `simulate.duration` to cover the recording'));
   }
   return out;
 }
