@@ -15,8 +15,8 @@ import type { Figure, FigureOptions } from './plots.js';
 /** Readings drawn per channel at most (evenly thinned beyond). */
 const MAX_MARKS = 300;
 
-const KIND_OF: Record<string, DisplayKind> = { pressure: 'gauge', gauge: 'gauge', volume: 'volume', mass: 'mass', temperature: 'temperature', flow: 'flow', stretch: 'stretch', reynolds: 'reynolds' };
-const TITLE: Partial<Record<DisplayKind, string>> = { gauge: 'gauge pressure', volume: 'volume', mass: 'mass', temperature: 'temperature', flow: 'mass flow', stretch: 'stretch', reynolds: 'Reynolds number' };
+const KIND_OF: Record<string, DisplayKind> = { pressure: 'gauge', gauge: 'gauge', volume: 'volume', mass: 'mass', temperature: 'temperature', flow: 'flow', stretch: 'stretch', reynolds: 'reynolds', position: 'position', velocity: 'velocity' };
+const TITLE: Partial<Record<DisplayKind, string>> = { gauge: 'gauge pressure', volume: 'volume', mass: 'mass', temperature: 'temperature', flow: 'mass flow', stretch: 'stretch', reynolds: 'Reynolds number', position: 'position', velocity: 'velocity' };
 
 function quantity(key: string): string {
   return key.slice(key.lastIndexOf('.') + 1);

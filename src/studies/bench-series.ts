@@ -28,7 +28,7 @@ const MAX_ERRORS = 20;
 /** The dimension of each probe quantity. */
 const QUANTITY_DIMENSION: Record<string, Dimension> = {
   pressure: 'pressure', gauge: 'pressure', volume: 'volume', mass: 'mass', temperature: 'temperature',
-  flow: 'mass-flow', stretch: 'dimensionless', reynolds: 'dimensionless', position: 'length', velocity: 'dimensionless',
+  flow: 'mass-flow', stretch: 'dimensionless', reynolds: 'dimensionless', position: 'length', velocity: 'velocity', force: 'force',
 };
 
 export interface SeriesColumn {
@@ -65,7 +65,7 @@ function unitMap(unit: string, dimension: Dimension): { factor: number; offset: 
   if (dimension === 'dimensionless') return ['-', '1', ''].includes(unit) ? { factor: 1, offset: 0 } : `a plain number is written \`[-]\`, not \`[${unit}]\``;
   const r = readUnit(`1 ${unit}`);
   if (!r.ok) return r.message;
-  const si = { pressure: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', 'mass-flow': 'kg/s', length: 'm', time: 's' }[dimension as string];
+  const si = { pressure: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', 'mass-flow': 'kg/s', length: 'm', time: 's', velocity: 'm/s', force: 'N' }[dimension as string];
   if (!si) return `cannot read \`${unit}\``;
   try {
     const offset = mathUnit(`0 ${unit}`).toNumber(si);

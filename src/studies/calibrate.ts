@@ -125,7 +125,7 @@ export interface CalibrationReport {
 interface Slot { e: number; c: number; k: number }
 
 /** The dimension of a measurement scale, by the probe's quantity (a pressure scale is a difference). */
-const SIGMA_DIMENSION: Record<string, Dimension> = { pressure: 'pressure', gauge: 'pressure', volume: 'volume', mass: 'mass', temperature: 'temperature-difference', flow: 'mass-flow' };
+const SIGMA_DIMENSION: Record<string, Dimension> = { pressure: 'pressure', gauge: 'pressure', volume: 'volume', mass: 'mass', temperature: 'temperature-difference', flow: 'mass-flow', position: 'length', velocity: 'velocity', force: 'force' };
 
 function fail(file: string, message: string, hint: string, line = 0, column = 0): Diagnostic {
   return { code: 'calibrate', severity: 'error', message, file, line, column, path: [], hint };
@@ -133,7 +133,7 @@ function fail(file: string, message: string, hint: string, line = 0, column = 0)
 
 function unitOf(key: string): string {
   const q = key.slice(key.lastIndexOf('.') + 1);
-  return ({ pressure: 'Pa', gauge: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', flow: 'kg/s' } as Record<string, string>)[q] ?? '-';
+  return ({ pressure: 'Pa', gauge: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', flow: 'kg/s', position: 'm', velocity: 'm/s', force: 'N' } as Record<string, string>)[q] ?? '-';
 }
 
 function parseOverride(arg: string, source: string, where: string): { ok: true; value: PathValue } | { ok: false; d: Diagnostic } {

@@ -13,7 +13,7 @@ import { simulate } from '../transient/transient.js';
 import { checkSeries, readMeasuredCsv, type MeasuredSeries } from './bench-series.js';
 
 /** SI unit of a channel as plenum writes it in its CSV. */
-const SI_UNIT: Record<string, string> = { pressure: 'Pa', gauge: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', flow: 'kg/s' };
+const SI_UNIT: Record<string, string> = { pressure: 'Pa', gauge: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', flow: 'kg/s', position: 'm', velocity: 'm/s', force: 'N' };
 
 /**
  * Reads recordings against a model (probes must exist, times must overlap the run) and
