@@ -16,7 +16,7 @@ import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { formatDiagnostic, junitXml, type NetlistCheck } from '../index.js';
 import { checkNetlist, internalError, NEXT, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
 
 export interface CheckOptions { junit?: string; annotations?: boolean; jobs?: string; quiet?: boolean }
 
@@ -178,6 +178,8 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
   const files = expand(args);
   if (!files.length) throw new UsageError('no netlists given');
   if (opts.junit && files.some((f) => samePath(f, opts.junit!))) throw new UsageError(`refusing to overwrite the netlist ${opts.junit} with the JUnit report`);
+  if (opts.junit === '-') throw new UsageError('--junit needs a file name');
+  checkOutputPaths(files, { '--junit': opts.junit });
   const entry = workerFile();
   const jobs = entry ? parseJobs(opts.jobs, files.length) : 1;
   const quiet = Boolean(opts.quiet);
@@ -206,12 +208,6 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
 
   const checks = results as NetlistCheck[];
   process.stdout.write(tally(checks, jobs, (performance.now() - started) / 1000) + '\n');
-  if (opts.junit) {
-    try {
-      writeAtomic(opts.junit, junitXml(checks));
-    } catch (e) {
-      throw new UsageError(`cannot write the JUnit report ${opts.junit} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
-    }
-  }
+  if (opts.junit) writeOutput(opts.junit, junitXml(checks), '--junit');
   return checkExitCode(checks);
 }

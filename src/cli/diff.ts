@@ -3,7 +3,7 @@
  * `run --csv`, or result JSON from `run --json`), prints the largest deviations and exits 0
  * within tolerance, 1 outside, 2 when a file cannot be read or the two have nothing in common.
  */
-import { readFileSync } from 'node:fs';
+import { readInputFile } from './netlist-file.js';
 import { diffTraces, readTrace, type DiffOptions, type TraceFile } from '../index.js';
 import { DEFAULT_RTOL, QUANTITY_CLASSES, type Deviation, type QuantityClass, type Tolerance } from '../transient/trace-diff.js';
 import { didYouMean } from '../diag/did-you-mean.js';
@@ -25,13 +25,7 @@ const DIMENSION_OF_UNIT: Record<string, Dimension> = {
 };
 
 function load(file: string): TraceFile {
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: cannot read (${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code ?? String(e)})`);
-  }
+  const text = readInputFile(file, 'the trace');
   const r = readTrace(text, file);
   if (!r.ok) throw new UsageError(r.message);
   return r.value;

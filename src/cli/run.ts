@@ -5,7 +5,7 @@
  * first, and the reader, the model and the reports are loaded while it starts (for a small
  * netlist the start-up is most of the run; docs/dev-performance.md).
  */
-import { checkOutputPaths, checkPlotsDir, samePath, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, checkPlotsDir, samePath, UsageError, type OutputFile } from './io.js';
 import { readNetlistFile } from './netlist-file.js';
 import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
 
@@ -51,16 +51,18 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
 
   const toStdout = opts.json === '-' || opts.csv === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(summaryText(result));
-  if (opts.json) {
-    const text = resultJson(result);
-    if (opts.json === '-') process.stdout.write(text); else writeOutput(opts.json, text, '--json');
-  }
-  if (opts.csv) {
-    const text = traceCsv(result.trace);
-    if (opts.csv === '-') process.stdout.write(text); else writeOutput(opts.csv, text, '--csv');
-  }
-  if (opts.baseline) writeOutput(opts.baseline, baselineJson(result), '--baseline');
-  if (opts.plots) (await import('./report.js')).writePlots(opts.plots, model, result);
+  // every output is made first and written together: a failure leaves none of them written
+  const files: OutputFile[] = [];
+  let stdout: string | undefined;
+  const add = (path: string | undefined, make: () => string, what: string): void => {
+    if (!path) return;
+    if (path === '-') stdout = make(); else files.push({ path, text: make(), what });
+  };
+  add(opts.json, () => resultJson(result), '--json');
+  add(opts.csv, () => traceCsv(result.trace), '--csv');
+  add(opts.baseline, () => baselineJson(result), '--baseline');
+  (await import('./report.js')).writeWithPlots(files, opts.plots, file, model, result);
+  if (stdout !== undefined) process.stdout.write(stdout);
   if (result.status === 'failed') {
     const written = [opts.json, opts.csv, opts.baseline].some((o) => o && o !== '-') ? '; the results up to then were written' : '';
     process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s${written}: ${result.message}\n`);
