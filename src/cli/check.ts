@@ -17,6 +17,7 @@ import { Worker } from 'node:worker_threads';
 import { formatDiagnostic, junitXml, type NetlistCheck } from '../index.js';
 import { checkNetlist, internalError, NEXT, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
 import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
+import { printable, printableOutput } from '../diag/text.js';
 
 export interface CheckOptions { junit?: string; annotations?: boolean; jobs?: string; quiet?: boolean }
 
@@ -51,9 +52,12 @@ function parseJobs(text: string | undefined, n: number): number {
   return Math.min(j, n);
 }
 
+/** Diagnostics printed (and annotated) per netlist; the rest are counted. */
+const MAX_DIAGNOSTICS = 50;
+
 // ---- CI log annotations (the `::error file=…::message` workflow-command syntax) ----------------
 
-const escData = (s: string): string => s.replace(/%/g, '%25').replace(/\r/g, '%0D').replace(/\n/g, '%0A');
+const escData = (s: string): string => printableOutput(s.replace(/%/g, '%25').replace(/\r/g, '%0D').replace(/\n/g, '%0A'));
 const escProp = (s: string): string => escData(s).replace(/:/g, '%3A').replace(/,/g, '%2C');
 
 function annotation(level: 'error' | 'warning', file: string, line: number, column: number, title: string, message: string): string {
@@ -63,7 +67,7 @@ function annotation(level: 'error' | 'warning', file: string, line: number, colu
 
 function annotations(c: NetlistCheck): string[] {
   const out: string[] = [];
-  for (const d of c.diagnostics) out.push(annotation(d.severity, d.file, d.line, d.column, `plenum: ${d.code}`, `${d.message}${d.hint ? ` (hint: ${d.hint})` : ''}`));
+  for (const d of c.diagnostics.slice(0, MAX_DIAGNOSTICS)) out.push(annotation(d.severity, d.file, d.line, d.column, `plenum: ${d.code}`, `${d.message}${d.hint ? ` (hint: ${d.hint})` : ''}`));
   if (c.status === 'failed') out.push(annotation('error', c.file, 0, 0, 'plenum: simulation did not complete', c.message));
   for (const e of c.expectations) if (!e.passed) out.push(annotation('error', e.file, e.line, e.column, `expectation failed: ${e.name}`, e.message));
   for (const w of c.warnings) out.push(annotation('warning', c.file, 0, 0, 'plenum: warning', w));
@@ -75,12 +79,16 @@ function annotations(c: NetlistCheck): string[] {
 function lines(c: NetlistCheck, quiet: boolean): string[] {
   const out: string[] = [];
   const where = (x: { file: string; line: number; column: number }): string => `${x.file}:${x.line}:${x.column}`;
+  const shown = c.diagnostics.slice(0, MAX_DIAGNOSTICS);
+  const more = c.diagnostics.length - shown.length;
   if (c.status === 'invalid') {
     out.push(`ERROR ${c.file}  invalid netlist: ${c.message}`);
-    for (const d of c.diagnostics) out.push(...formatDiagnostic(d).split('\n').map((l) => `      ${l}`));
+    for (const d of shown) out.push(...formatDiagnostic(d).split('\n').map((l) => `      ${l}`));
+    if (more > 0) out.push(`      ... and ${more} more problems not shown`);
     return out;
   }
-  if (!quiet) for (const d of c.diagnostics) out.push(`warn  ${formatDiagnostic(d).replace(/\n\s*/g, ' ')}`);
+  if (!quiet) for (const d of shown) out.push(`warn  ${formatDiagnostic(d).replace(/\n\s*/g, ' ')}`);
+  if (!quiet && more > 0) out.push(`warn  ${c.file}  ... and ${more} more warnings not shown`);
   if (c.status === 'failed') {
     out.push(`ERROR ${c.file}  ${c.message}`);
     if (!quiet) for (const u of c.unjudged) out.push(`skip  ${where(u)}  ${u.name} — not judged: the simulation did not complete`);
@@ -195,7 +203,7 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
     results[index] = check;
     while (printed < files.length && results[printed]) {
       const c = results[printed]!;
-      const text = [...lines(c, quiet), ...(opts.annotations ? annotations(c) : [])];
+      const text = [...lines(c, quiet).map(printable), ...(opts.annotations ? annotations(c) : [])];
       if (text.length) process.stdout.write(text.join('\n') + '\n');
       printed++;
     }

@@ -6,6 +6,8 @@
  * read against it), then simulate (expressions and expectations are checked against its
  * duration), then all names (so references may point forwards), then the elements.
  */
+import { boundDiagnostic } from '../diag/diagnostic.js';
+import { resetSuggestions } from '../diag/did-you-mean.js';
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { readFeed, readLine, readValve } from './branches.js';
 import { readChamber } from './chambers.js';
@@ -138,6 +140,12 @@ function defined<T>(xs: (T | undefined)[]): T[] {
 
 /** Reads and validates a netlist. `file` is used in diagnostics and as the default title. */
 export function readNetlist(source: string, file: string): Result<NetlistDoc> {
+  resetSuggestions();
+  const r = readChecked(source, file);
+  return r.ok ? { ...r, warnings: r.warnings.map(boundDiagnostic) } : { ok: false, diagnostics: r.diagnostics.map(boundDiagnostic) };
+}
+
+function readChecked(source: string, file: string): Result<NetlistDoc> {
   const tree = parseYamlTree(source, file);
   if (!tree.root) return { ok: false, diagnostics: tree.diagnostics };
   const ck = new Checker(file);

@@ -2,6 +2,7 @@
 import type { RunResult } from '../transient/results.js';
 import { keepLargest } from '../transient/select.js';
 import { display } from '../units/display.js';
+import { printable } from '../diag/text.js';
 
 function table(head: string[], rows: string[][]): string {
   const w = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
@@ -33,7 +34,7 @@ export function nameList(names: string[]): string {
 
 export function summaryText(r: RunResult): string {
   const out: string[] = [];
-  out.push(`${r.title}  (${r.file})`);
+  out.push(`${printable(r.title)}  (${printable(r.file)})`);
   out.push(`${r.status === 'completed' ? 'completed' : 'FAILED'}: ${r.message}`);
   out.push(`solver ${r.stats.method}: ${r.stats.steps} steps (${r.stats.rejected} rejected), ${r.stats.rhs} rhs, ${r.stats.jacobians} jacobians, ${r.stats.wall_ms} ms`);
   out.push('');
@@ -93,7 +94,7 @@ export function summaryText(r: RunResult): string {
   if (r.expectations.length) {
     out.push('');
     const pass = r.expectations.filter((e) => e.passed).length;
-    for (const e of r.expectations) out.push(`  ${e.passed ? 'pass' : 'FAIL'}  ${e.name}: ${e.message}${e.passed ? '' : `  (${e.file}:${e.line}:${e.column})`}`);
+    for (const e of r.expectations) out.push(`  ${e.passed ? 'pass' : 'FAIL'}  ${printable(e.name)}: ${printable(e.message)}${e.passed ? '' : `  (${e.file}:${e.line}:${e.column})`}`);
     out.push(`expectations: ${pass} passed, ${r.expectations.length - pass} failed`);
   }
   return out.join('\n') + '\n';

@@ -12,6 +12,7 @@ import type { ParamValue } from './sweep-spec.js';
 import { summarise, wilson, type NumericSummary, type Proportion } from './sweep-stats.js';
 import { keepLargest } from '../transient/select.js';
 import type { Shard, Study, SweepResult } from './sweep.js';
+import { printable } from '../diag/text.js';
 
 export interface NumericField extends NumericSummary {
   key: string;
@@ -235,7 +236,7 @@ export function sweepSummaryText(r: SweepResult): string {
   const s = summariseCases(r.study, r.cases);
   const out: string[] = [];
   const shard = r.shard ? ` (shard ${r.shard.index}/${r.shard.count}: ${r.cases.length} of ${r.study.cases} cases)` : '';
-  out.push(`${r.study.title}: study ${r.study.id}, ${r.study.cases} cases${shard}`);
+  out.push(`${printable(r.study.title)}: study ${r.study.id}, ${r.study.cases} cases${shard}`);
   for (const c of s.categorical) {
     if (c.key === 'warnings' && c.values.length === 1 && c.values[0].value === 'none') continue;
     out.push(`  ${c.key}:`);
