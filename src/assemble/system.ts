@@ -15,6 +15,7 @@
  * here (jacobian.ts), so the stiff integrator can use sparse LU on large networks.
  */
 import type { Gas } from '../physics/gas.js';
+import { EventLog } from './event-log.js';
 import type { EventfulProblem } from '../solve/driver.js';
 import type { Model, NodeRef } from '../model/types.js';
 import { ChamberState } from '../elements/chamber.js';
@@ -47,7 +48,7 @@ export interface SystemEvent {
  */
 const CHECK_DEADBAND = 1e-7;
 
-export interface LoggedEvent { t: number; what: string; kind: string; element: string }
+export type { LoggedEvent } from './event-log.js';
 
 export interface Channel { key: string; unit: string }
 
@@ -81,7 +82,7 @@ export class NetworkSystem implements EventfulProblem {
   readonly feedFlow: Float64Array;
   readonly breakpoints: number[];
   readonly events: SystemEvent[];
-  readonly log: LoggedEvent[] = [];
+  readonly log = new EventLog();
   /** The first element whose state left its law's range during the last evaluation. */
   fault: string | null = null;
   private readonly solved = { p: 0, V: 0, kappa: 0 };
@@ -362,6 +363,12 @@ export class NetworkSystem implements EventfulProblem {
           break;
       }
     }
+  }
+
+  /** Extrema passed and limits exceeded only log: they never change the rhs. */
+  eventLogsOnly(k: number): boolean {
+    const kind = this.events[k].kind;
+    return kind === 'extremum' || kind === 'limit-pressure' || kind === 'limit-stretch';
   }
 
   eventDirection(k: number): number {

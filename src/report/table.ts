@@ -79,7 +79,12 @@ export function summaryText(r: RunResult): string {
     out.push('events:');
     const shown = r.events.slice(0, 40);
     for (const e of shown) out.push(`  ${display(e.t, 'time').padStart(10)}  ${e.what}`);
-    if (r.events.length > shown.length) out.push(`  ... and ${r.events.length - shown.length} more (see --json)`);
+    const more = r.events.length - shown.length + (r.events_omitted ?? 0);
+    if (more > 0) out.push(`  ... and ${more} more (see --json)`);
+    if (r.events_omitted) {
+      const top = [...(r.event_counts ?? [])].sort((a, b) => b.count - a.count).slice(0, 5);
+      out.push(`  events by element: ${top.map((c) => `${c.element || 'schedules'} ${c.kind} ${c.count}`).join(', ')}${(r.event_counts?.length ?? 0) > top.length ? ', ...' : ''}`);
+    }
     out.push('');
   }
   const m = r.mass;

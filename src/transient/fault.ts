@@ -38,8 +38,8 @@ function fmt(x: number): string {
 
 function chatter(sys: NetworkSystem): Omit<RunFault, 't' | 'cause'> | undefined {
   const counts = new Map<string, number>();
-  for (const e of sys.log) {
-    if (e.kind === 'relief' || e.kind === 'check') counts.set(e.element, (counts.get(e.element) ?? 0) + 1);
+  for (const c of sys.log.counts()) {
+    if (c.kind === 'relief' || c.kind === 'check') counts.set(c.element, (counts.get(c.element) ?? 0) + c.count);
   }
   let worst: [string, number] | undefined;
   for (const c of counts) if (!worst || c[1] > worst[1]) worst = c;

@@ -3,14 +3,14 @@
  */
 import type { Model } from '../model/types.js';
 import { NetworkSystem } from '../assemble/system.js';
-import { drive } from '../solve/driver.js';
+import { drive, type EventChatter } from '../solve/driver.js';
 import { rosenbrock } from '../solve/rosenbrock.js';
 import { odex } from '../solve/odex.js';
 import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
 import { ExpectationMonitor } from './expectations.js';
 import { diagnoseFault } from './fault.js';
-import type { ChamberSummary, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
+import type { ChamberSummary, EventTally, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
 import { classifyOutcomes } from './outcome.js';
 
@@ -46,6 +46,26 @@ export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array)
     : { integrator: odex, name: 'odex', why: `auto: non-stiff (ρ(J)·duration ≈ ${Math.round(rho * model.simulate.duration)})` };
 }
 
+/** A log-only event that chattered, in words: which element, which crossing, how often, when. */
+function chatterWarning(sys: NetworkSystem, c: EventChatter): string {
+  const e = sys.events[c.k];
+  const crossing = e.kind === 'extremum' ? `its pressure ${e.extremum?.kind === 'max' ? 'maximum' : 'minimum'}`
+    : e.kind === 'limit-pressure' ? 'its pressure limit' : e.kind === 'limit-stretch' ? 'its stretch limit' : e.kind;
+  return `${e.element} chatters at ${crossing}: ${c.count} more crossings between t = ${display(c.from, 'time')} and ${display(c.to, 'time')} were not logged one by one (the state hovers at the crossing)`;
+}
+
+/** Event counts by element and kind (the wording merged), in order of first occurrence. */
+function tallyByElement(counts: readonly { element: string; kind: string; count: number; first: number; last: number }[]): EventTally[] {
+  const by = new Map<string, EventTally>();
+  for (const c of counts) {
+    const key = `${c.element}\u0000${c.kind}`;
+    const t = by.get(key);
+    if (!t) by.set(key, { element: c.element, kind: c.kind, count: c.count, first: c.first, last: c.last });
+    else { t.count += c.count; t.first = Math.min(t.first, c.first); t.last = Math.max(t.last, c.last); }
+  }
+  return [...by.values()];
+}
+
 export function simulate(model: Model, options: SimulateOptions = {}): RunResult {
   const started = Date.now();
   const sys = new NetworkSystem(model);
@@ -68,6 +88,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
   let lastProgress = 0;
 
+  const chatter: EventChatter[] = [];
   const row = new Float64Array(nch);
   const observe = (t: number, y: Float64Array, kind: 'sample' | 'step'): void => {
     sys.observe(t, y, row);
@@ -103,6 +124,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     maxSteps: model.simulate.maxSteps ?? DEFAULT_MAX_STEPS,
     maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
     interrupt: options.interrupt,
+    onChatter: (c) => { chatter.push(c); },
   });
   const method = r.switchedAt !== undefined ? `${chosen}, then rodas from t = ${+r.switchedAt.toPrecision(6)} s` : chosen;
 
@@ -143,13 +165,13 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const drift = (final - initial - through) / initial;
 
   const warnings: string[] = [];
-  const seen = new Set<string>();
-  for (const e of sys.log) {
-    if ((e.kind === 'limit-pressure' || e.kind === 'limit-stretch') && !seen.has(e.what)) {
-      seen.add(e.what);
-      warnings.push(`${e.what} at t = ${display(e.t, 'time')}: it may burst or yield; see the safety notes`);
+  const counts = sys.log.counts();
+  for (const c of counts) {
+    if (c.kind === 'limit-pressure' || c.kind === 'limit-stretch') {
+      warnings.push(`${c.what} at t = ${display(c.first, 'time')}: it may burst or yield; see the safety notes`);
     }
   }
+  for (const c of chatter) warnings.push(chatterWarning(sys, c));
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
   model.chambers.forEach((c, i) => {
     if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${c.name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
@@ -169,11 +191,12 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     stats: { method, steps: r.work.steps, rejected: r.work.rejected, rhs: r.work.rhs, jacobians: r.work.jacobians, lu: r.work.lu, wall_ms: Date.now() - started },
     chambers, lines, valves,
     mass: { initial, final, through_boundaries: through, drift },
-    events: sys.log.map((e) => ({ t: e.t, what: e.what })),
+    events: sys.log.entries().map((e) => ({ t: e.t, what: e.what })),
+    ...(sys.log.omitted > 0 ? { events_omitted: sys.log.omitted, event_counts: tallyByElement(counts) } : {}),
     warnings,
     expectations,
     ...(fault ? { fault } : {}),
-    outcomes: classifyOutcomes(model, trace, sys.log),
+    outcomes: classifyOutcomes(model, trace, sys.log.entries(), sys.log.omitted > 0 ? counts : undefined),
     trace,
     ambient: model.pa,
   };
