@@ -40,7 +40,7 @@ function nonNegative(text: string, what: string): number {
 /** An absolute tolerance in the unit of a quantity (`50 Pa`, `0.1 kPa`, `1 mg`; a bare number is SI). */
 function absolute(text: string, unit: string): QuantityResult {
   if (unit === 'Pa') return parsePressureDifference(text);
-  const dim = DIMENSION_OF_UNIT[unit];
+  const dim = Object.hasOwn(DIMENSION_OF_UNIT, unit) ? DIMENSION_OF_UNIT[unit] : undefined;
   return parseQuantity(text, dim ?? 'dimensionless');
 }
 

@@ -25,7 +25,7 @@ const escape = (ch: string): string => {
  * (the start of a CI workflow command) broken up, so that it prints as one inert line.
  */
 export function printable(s: string): string {
-  const out = s.replace(UNPRINTABLE, escape);
+  const out = String(s).replace(UNPRINTABLE, escape);
   return out.startsWith('::') ? `\\x3a${out.slice(1)}` : out;
 }
 

@@ -52,6 +52,12 @@ export interface DriverOptions {
   onStep?(tOld: number, tNew: number, dense: DenseOutput): void;
   maxSteps?: number;
   maxWallMs?: number;
+  /**
+   * When the wall-time budget started (ms since the epoch, as Date.now()); default: when
+   * `drive` is called. A caller that prepares the run (the system, the choice of method) passes
+   * its own start so that the budget covers that work too.
+   */
+  wallStart?: number;
   /** Polled once a step; a string stops the run with that message (e.g. Ctrl-C). */
   interrupt?: () => string | null;
   hMax?: number;
@@ -173,7 +179,7 @@ function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Floa
 }
 
 export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
-  const started = Date.now();
+  const started = o.wallStart ?? Date.now();
   const work = zeroWork();
   const n = p.n;
   let t = o.t0;

@@ -123,6 +123,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     onStep: monitor.needsSteps ? monitor.step : undefined,
     maxSteps: model.simulate.maxSteps ?? DEFAULT_MAX_STEPS,
     maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
+    wallStart: started,
     interrupt: options.interrupt,
     onChatter: (c) => { chatter.push(c); },
   });
