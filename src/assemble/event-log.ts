@@ -6,16 +6,19 @@
  * opened, and when first and last), whatever the number.
  */
 
-export interface LoggedEvent { t: number; what: string; kind: string; element: string }
+import type { EventSink, LoggedEvent } from '../elements/contract.js';
 
-/** How often one element logged one kind of event with one wording, and when first and last. */
-export interface EventCount { element: string; kind: string; what: string; count: number; first: number; last: number }
+/**
+ * How often one element logged one kind of event with one wording, and when first and last;
+ * `warning` as on the entries (the run repeats it among its warnings).
+ */
+export interface EventCount { element: string; kind: string; what: string; count: number; first: number; last: number; warning?: boolean }
 
 /** Events kept in full at the start of a run, and at its end. */
 export const EVENTS_KEPT_FIRST = 500;
 export const EVENTS_KEPT_LAST = 500;
 
-export class EventLog {
+export class EventLog implements EventSink {
   private readonly head: LoggedEvent[] = [];
   /** The last EVENTS_KEPT_LAST events after the head, as a ring. */
   private readonly tail: LoggedEvent[] = [];
@@ -32,7 +35,7 @@ export class EventLog {
       c.count++;
       c.last = e.t;
     } else {
-      this.tally.set(key, { element: e.element, kind: e.kind, what: e.what, count: 1, first: e.t, last: e.t });
+      this.tally.set(key, { element: e.element, kind: e.kind, what: e.what, count: 1, first: e.t, last: e.t, ...(e.warning ? { warning: true } : {}) });
     }
     if (this.head.length < EVENTS_KEPT_FIRST) {
       this.head.push(e);
