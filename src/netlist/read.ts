@@ -111,6 +111,9 @@ function readReservoir(ck: Checker, entry: NameEntry, duration?: number): Reserv
  * as written, from every entry of the sections, including entries with other errors (a bad or
  * duplicate name, a misspelt key), so that a slip elsewhere is not reported twice.
  */
+/** Keys of lines, valves and feeds that name a node. */
+const NODE_KEYS = new Set(['from', 'to', 'into']);
+
 function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, NameEntry[]>): void {
   const touched = new Set<string>();
   for (const key of [SECTIONS.line, SECTIONS.valve, SECTIONS.feed]) {
@@ -119,6 +122,8 @@ function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, N
     for (const element of section.entries) {
       if (element.value.kind !== 'map') continue;
       for (const e of element.value.entries) {
+        // only the keys that name a node (a chamber named `open` is not joined by `initially: open`)
+        if (!NODE_KEYS.has(e.key)) continue;
         if (e.value.kind === 'scalar' && typeof e.value.value === 'string') touched.add(e.value.value.trim());
       }
     }

@@ -8,6 +8,7 @@ import { rosenbrock } from '../solve/rosenbrock.js';
 import { odex } from '../solve/odex.js';
 import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
+import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import { ExpectationMonitor } from './expectations.js';
 import { diagnoseFault } from './fault.js';
 import type { ChamberSummary, ElementSections, EventTally, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
@@ -131,7 +132,10 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
-  const drift = (final - initial - through) / initial;
+  // relative to the larger of the gas held at the start and the gas that came in or left: a
+  // feed into a nearly empty chamber made the start mass alone a divisor near zero (drift ∞)
+  const scale = Math.max(initial, Math.abs(through));
+  const drift = scale > 0 ? (final - initial - through) / scale : 0;
 
   const warnings: string[] = [];
   const counts = sys.log.counts();
@@ -143,6 +147,14 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   for (const c of chatter) warnings.push(chatterWarning(sys, c));
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
   for (const s of summaries) if (s.warnings) warnings.push(...s.warnings());
+  // a pressure past any physical range (a runaway supply expression, a stiff wall squeezed):
+  // the run completes, but its numbers mean nothing, and it must not pass silently
+  for (const [name, c] of Object.entries(chambers as unknown as Record<string, ChamberSummary>)) {
+    const peak = c.peak.gauge + model.pa;
+    if (!(peak <= MAX_GAS_PRESSURE)) {
+      warnings.push(`${name} reached ${Number.isFinite(peak) ? `${peak.toExponential(2)} Pa absolute` : 'a pressure that is not a finite number'} at t = ${display(c.peak.at, 'time')}, above ${MAX_GAS_PRESSURE / 1e6} MPa: past the range of plenum's gas and wall laws, so the results are not physical; check the supply pressures, the units and the wall parameters`);
+    }
+  }
 
   const expectations = r.status === 'completed'
     ? monitor.results(r.t, yEnd)
