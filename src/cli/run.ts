@@ -41,6 +41,15 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   try {
     const { loadOrExit } = await import('./load.js');
     model = loadOrExit(file);
+    if (opts.csv) {
+      // the CSV text of the history costs memory too: refuse what cannot be written
+      const { formatDiagnostic, traceMemoryDiagnostic } = await import('../index.js');
+      const d = traceMemoryDiagnostic(model, { csv: true });
+      if (d) {
+        process.stderr.write(formatDiagnostic(d) + '\n');
+        throw new UsageError(`1 error in ${file}; nothing was simulated or written`);
+      }
+    }
   } catch (e) {
     started?.cancel();
     throw e;
