@@ -19,7 +19,7 @@ import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } 
 import { readPressureSeries } from './time-series.js';
 import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
 import { parseYamlTree } from './yaml-tree.js';
-import type { YMap, YNode } from './yaml-types.js';
+import type { YamlTree, YMap, YNode } from './yaml-types.js';
 
 const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
 
@@ -146,13 +146,17 @@ function defined<T>(xs: (T | undefined)[]): T[] {
 
 /** Reads and validates a netlist. `file` is used in diagnostics and as the default title. */
 export function readNetlist(source: string, file: string): Result<NetlistDoc> {
+  return readNetlistTree(parseYamlTree(source, file), source, file);
+}
+
+/** readNetlist on a tree already parsed from `source` (or edited from one: see override.ts). */
+export function readNetlistTree(tree: YamlTree, source: string, file: string): Result<NetlistDoc> {
   resetSuggestions();
-  const r = readChecked(source, file);
+  const r = readChecked(tree, source, file);
   return r.ok ? { ...r, warnings: r.warnings.map(boundDiagnostic) } : { ok: false, diagnostics: r.diagnostics.map(boundDiagnostic) };
 }
 
-function readChecked(source: string, file: string): Result<NetlistDoc> {
-  const tree = parseYamlTree(source, file);
+function readChecked(tree: YamlTree, source: string, file: string): Result<NetlistDoc> {
   if (!tree.root) return { ok: false, diagnostics: tree.diagnostics };
   const ck = new Checker(file);
   ck.diagnostics.push(...tree.diagnostics);
