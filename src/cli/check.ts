@@ -15,7 +15,8 @@ import { performance } from 'node:perf_hooks';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { formatDiagnostic, junitXml, type NetlistCheck } from '../index.js';
-import { checkNetlist, internalError, NEXT, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
+import { heapLimit } from '../transient/trace-memory.js';
+import { checkNetlist, internalError, NEXT, outOfMemory, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
 import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
 import { printable, printableOutput } from '../diag/text.js';
 
@@ -128,16 +129,25 @@ function tally(checks: NetlistCheck[], jobs: number, seconds: number): string {
   return `check: ${plural(all.length + unjudged, 'expectation')} in ${plural(checks.length, 'netlist')}: ${judged}; ${trouble} (${plural(jobs, 'job')}, ${seconds.toFixed(2)} s)`;
 }
 
+/**
+ * Heap of a check worker, MB: this process's own heap limit (so a worker may use as much as
+ * a lone run), or PLENUM_CHECK_WORKER_HEAP_MB (for tests of a worker that runs out).
+ */
+function workerHeapMb(): number {
+  const env = Number(process.env.PLENUM_CHECK_WORKER_HEAP_MB);
+  return Number.isFinite(env) && env >= 16 ? env : Math.round(heapLimit() / 1024 / 1024);
+}
+
 // ---- running --------------------------------------------------------------------------------
 
-type Deliver = (index: number, check: NetlistCheck) => void;
+export type Deliver = (index: number, check: NetlistCheck) => void;
 
 /**
  * Checks the netlists on the main thread and on `workers` worker threads at once. All take
  * the next index from a shared counter; the main thread starts at once while the workers load,
  * so a short list is not slower than running alone.
  */
-async function runAll(files: string[], workers: number, entry: string | undefined, control: SharedArrayBuffer, deliver: Deliver): Promise<void> {
+export async function runAll(files: string[], workers: number, entry: string | undefined, control: SharedArrayBuffer, deliver: Deliver): Promise<void> {
   const ctl = new Int32Array(control);
   let done = 0;
   let finished: () => void = () => undefined;
@@ -146,8 +156,12 @@ async function runAll(files: string[], workers: number, entry: string | undefine
     deliver(index, check);
     if (++done === files.length) finished();
   };
+  // each worker gets a heap limit of its own: a netlist that exhausts it ends that worker
+  // (ERR_WORKER_OUT_OF_MEMORY), not the process, and becomes an error case; without one, V8
+  // aborts the whole process (exit 134) and every other netlist's result is lost
+  const resourceLimits = { maxOldGenerationSizeMb: workerHeapMb() };
   for (let k = 0; k < workers && entry; k++) {
-    const w = new Worker(entry, { workerData: { files, control } satisfies CheckWorkerData });
+    const w = new Worker(entry, { workerData: { files, control } satisfies CheckWorkerData, resourceLimits });
     let current = -1;
     let started = 0;
     w.on('message', (m: CheckMessage) => {
@@ -160,7 +174,8 @@ async function runAll(files: string[], workers: number, entry: string | undefine
       if (current < 0) return;
       const i = current;
       current = -1;
-      settle(i, internalError(files[i], why, (performance.now() - started) / 1000));
+      const oom = (why as NodeJS.ErrnoException)?.code === 'ERR_WORKER_OUT_OF_MEMORY';
+      settle(i, oom ? outOfMemory(files[i], resourceLimits.maxOldGenerationSizeMb, (performance.now() - started) / 1000) : internalError(files[i], why, (performance.now() - started) / 1000));
     };
     w.on('error', lost);
     w.on('exit', (code) => { if (code !== 0) lost(new Error(`worker thread exited with code ${code}`)); });
