@@ -15,8 +15,12 @@
 import { closeSync, fsyncSync, lstatSync, mkdirSync, openSync, realpathSync, renameSync, statSync, unlinkSync, writeSync } from 'node:fs';
 import { basename, dirname, join, resolve } from 'node:path';
 
-/** One output of a command: where, what, and the option that named it (for messages). */
-export interface OutputFile { path: string; text: string; what: string }
+/**
+ * One output of a command: where, what, and the option that named it (for messages). `staged`
+ * instead of `text`: a temporary file already written whole (see `stagingPath`), renamed into
+ * place with the others.
+ */
+export type OutputFile = { path: string; what: string } & ({ text: string; staged?: undefined } | { staged: string; text?: undefined });
 
 /** Where the bytes for an output path go: a file replaced by rename, or a device or pipe written through. */
 interface Target { kind: 'file' | 'stream'; path: string }
@@ -57,7 +61,7 @@ function targetOf(path: string, what: string): Target {
   throw new UsageError(`${what} ${path} is ${st.isBlockDevice() ? 'a block device' : st.isSocket() ? 'a socket' : 'not a regular file'}; plenum writes only files, character devices and pipes`);
 }
 
-function writeAll(fd: number, text: string): void {
+export function writeAll(fd: number, text: string): void {
   const buf = Buffer.from(text, 'utf8');
   let off = 0;
   while (off < buf.length) {
@@ -67,6 +71,19 @@ function writeAll(fd: number, text: string): void {
       if ((e as NodeJS.ErrnoException).code !== 'EAGAIN') throw e;
     }
   }
+}
+
+/**
+ * The temporary file to write an output into before it is renamed into place (by
+ * `writeOutputs` with `staged`), or undefined when the output is not a file (a device, a pipe)
+ * and must be written through at the end.
+ */
+export function stagingPath(path: string, what: string): string | undefined {
+  const t = targetOf(path, what);
+  if (t.kind !== 'file') return undefined;
+  const tmp = tmpName(t.path);
+  try { unlinkSync(tmp); } catch { /* no stale file of this process */ }
+  return tmp;
 }
 
 function tmpName(path: string): string {
@@ -125,14 +142,21 @@ export function writeAtomic(path: string, text: string): void {
  * `-` is not a path here: the caller prints standard output itself.
  */
 export function writeOutputs(files: readonly OutputFile[]): void {
-  const targets = files.map((f) => targetOf(f.path, f.what));
-  const temps: (string | null)[] = [];
+  // staged files are ours to remove from the start, whatever fails
+  const temps: (string | null)[] = files.map((f) => f.staged ?? null);
+  let targets: Target[];
+  try {
+    targets = files.map((f) => targetOf(f.path, f.what));
+  } catch (e) {
+    for (const tmp of temps) if (tmp) try { unlinkSync(tmp); } catch { /* already gone */ }
+    throw e;
+  }
   const fail = (f: OutputFile, e: unknown, none: boolean): UsageError =>
     new UsageError(`cannot write ${f.what} ${f.path} (${errCode(e)})${none ? '; nothing was written' : ''}`);
   try {
     files.forEach((f, i) => {
       try {
-        temps.push(targets[i].kind === 'file' ? writeTemp(targets[i].path, f.text) : null);
+        if (f.text !== undefined && targets[i].kind === 'file') temps[i] = writeTemp(targets[i].path, f.text);
       } catch (e) {
         throw fail(f, e, true);
       }
@@ -141,7 +165,7 @@ export function writeOutputs(files: readonly OutputFile[]): void {
     // (a full device) still leaves every file as it was
     let streamed = false;
     files.forEach((f, i) => {
-      if (targets[i].kind !== 'stream') return;
+      if (targets[i].kind !== 'stream' || f.text === undefined) return;
       try {
         writeStream(targets[i].path, f.text);
         streamed = true;

@@ -20,6 +20,11 @@ export interface SimulateOptions {
   interrupt?: () => string | null;
   /** Called now and then with the simulated time reached. */
   progress?: (t: number, tEnd: number) => void;
+  /**
+   * Receives the sampled history as it is taken (e.g. to stream the CSV to disk): `begin` once
+   * with the channels, then `sample` at every sample time with the channel values.
+   */
+  samples?: { begin(channels: readonly { key: string; unit: string }[]): void; sample(t: number, row: Float64Array): void };
 }
 
 /**
@@ -73,6 +78,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const sample = model.simulate.sample ?? duration / DEFAULT_SAMPLES;
   const channels = sys.channels();
   const nch = channels.length;
+  options.samples?.begin(channels);
   const keys = new Map(channels.map((c, i) => [c.key, i] as const));
   const trace = { channels, times: [] as number[], values: channels.map(() => [] as number[]) };
   // expectations are judged on the dense output inside every step, not on samples
@@ -89,6 +95,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     if (kind === 'sample') {
       trace.times.push(t);
       for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
+      options.samples?.sample(t, row);
     }
     for (let s = 0; s < summaries.length; s++) summaries[s].track(t, row);
     if (options.progress && Date.now() - lastProgress > 100) {
