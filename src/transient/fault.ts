@@ -79,7 +79,8 @@ const AT_END = 1e-3;
 function rangeFault(sys: NetworkSystem, model: Model, t: number, y: Float64Array): Omit<RunFault, 't' | 'cause'> | undefined {
   const f = new Float64Array(sys.n);
   sys.rhs(t, y, f); // also fills p, V and the flows at (t, y)
-  for (let i = 0; i < sys.nc; i++) {
+  // the first gas nodes with states are the chambers, in order (cylinder sides follow)
+  for (let i = 0; i < model.chambers.length; i++) {
     const c = model.chambers[i];
     const m = y[sys.mIdx[i]];
     const mdot = f[sys.mIdx[i]];
@@ -150,19 +151,20 @@ function colourChambers(model: Model): { colour: Int32Array; count: number } {
  * chamber run take 9 minutes after its wall-time budget of 2 s).
  */
 function fastest(sys: NetworkSystem, model: Model, t: number, y: Float64Array): Fastest | undefined {
-  if (sys.nc === 0) return undefined;
+  if (model.chambers.length === 0) return undefined;
   const f0 = new Float64Array(sys.n);
   const f1 = new Float64Array(sys.n);
   sys.rhs(t, y, f0);
   const q0 = sys.flows.map((q) => q.mdot);
   const yp = Float64Array.from(y);
+  const nc = model.chambers.length; // the first gas nodes with states (cylinder sides follow)
   const dm = (i: number): number => 1e-7 * Math.max(Math.abs(y[sys.mIdx[i]]), model.chambers[i].m0 * 1e-6, 1e-18);
   const { colour, count } = colourChambers(model);
   let best = { rate: 0, chamber: -1 };
   for (let c = 0; c < count; c++) {
-    for (let i = 0; i < sys.nc; i++) if (colour[i] === c) yp[sys.mIdx[i]] = y[sys.mIdx[i]] + dm(i);
+    for (let i = 0; i < nc; i++) if (colour[i] === c) yp[sys.mIdx[i]] = y[sys.mIdx[i]] + dm(i);
     sys.rhs(t, yp, f1);
-    for (let i = 0; i < sys.nc; i++) {
+    for (let i = 0; i < nc; i++) {
       if (colour[i] !== c) continue;
       const k = sys.mIdx[i];
       yp[k] = y[k];
@@ -208,6 +210,9 @@ export function diagnoseFault(sys: NetworkSystem, model: Model, cause: Cause, t:
   const found = chatter(sys) ?? reservoirFault(model, t)
     ?? (numerical ? rangeFault(sys, model, t, y) : undefined);
   if (found) return at(found);
+  if (numerical && trialFault && model.cylinders.some((c) => c.name === trialFault)) {
+    return at({ element: trialFault, kind: null, likely: `cylinder \`${trialFault}\` had a side emptied to vacuum during a step; a likely cause is a side vented or pumped out much faster than the piston can follow` });
+  }
   if (numerical && trialFault) {
     return at({ element: trialFault, kind: 'chamber', likely: `chamber \`${trialFault}\` left the range of its wall law during a step; a likely cause is a chamber emptied to vacuum or filled to a Gent lock` });
   }
