@@ -10,6 +10,7 @@ import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import { ExpectationMonitor } from './expectations.js';
+import { TimeProbe, type ProbeRequest } from './probe-times.js';
 import { diagnoseFault } from './fault.js';
 import type { ChamberSummary, ElementSections, EventTally, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
@@ -25,6 +26,8 @@ export interface SimulateOptions {
    * with the channels, then `sample` at every sample time with the channel values.
    */
   samples?: { begin(channels: readonly { key: string; unit: string }[]): void; sample(t: number, row: Float64Array): void };
+  /** Channels to read at given times on the dense output (calibration); see RunResult.probed. */
+  probe?: ProbeRequest;
 }
 
 /**
@@ -84,6 +87,10 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   // expectations are judged on the dense output inside every step, not on samples
   const monitor = new ExpectationMonitor(model.expect, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) },
     model.chambers.map((c) => c.name), model.pa);
+  const probe = options.probe ? new TimeProbe(options.probe, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) }) : undefined;
+  const onStep = probe && monitor.needsSteps
+    ? (a: number, b: number, d: Parameters<typeof monitor.step>[2]): void => { monitor.step(a, b, d); probe.step(a, b, d); }
+    : probe ? probe.step : monitor.needsSteps ? monitor.step : undefined;
   // every element's summaries (peaks, finals), tracked at samples and step ends
   const summaries = sys.elements.flatMap((e) => e.summaries?.((key) => keys.get(key)!) ?? []);
   let lastProgress = 0;
@@ -109,7 +116,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     // auto: an explicit start hands over to the stiff method if it meets a kink it cannot pass
     fallback: model.simulate.method === 'auto' && integrator === odex ? rosenbrock : undefined,
     tEnd: duration, y0, sample, observe,
-    onStep: monitor.needsSteps ? monitor.step : undefined,
+    onStep,
     maxSteps: model.simulate.maxSteps ?? DEFAULT_MAX_STEPS,
     maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
     wallStart: started,
@@ -192,6 +199,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     ...(fault ? { fault } : {}),
     outcomes: classifyOutcomes(model, trace, sys.log.entries(), sys.log.omitted > 0 ? counts : undefined),
     trace,
+    ...(probe ? { probed: probe.values } : {}),
     ambient: model.pa,
   };
 }
