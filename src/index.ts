@@ -6,11 +6,7 @@
  *   if (!m.ok) console.error(m.diagnostics.map(formatDiagnostic).join('\n'));
  *   else console.log(resultJson(simulate(m.value)));
  */
-import type { Diagnostic, Result } from './diag/diagnostic.js';
-import { readNetlist } from './netlist/read.js';
-import { buildModel } from './model/build.js';
-import type { Model } from './model/types.js';
-
+export { loadModel } from './model/load.js';
 export type { Diagnostic, Result } from './diag/diagnostic.js';
 export { formatDiagnostic } from './diag/diagnostic.js';
 export type { NetlistDoc } from './netlist/types.js';
@@ -51,12 +47,3 @@ export { stabilityAt, type Stability, type Linearisation } from './equilibria/st
 export { eigenvalues } from './linalg/eigen.js';
 export { equilibriaText, equilibriaJson, traceText, traceJson, traceBranchesCsv } from './report/equilibria.js';
 
-/** Reads and builds in one go; diagnostics from both stages, warnings kept. */
-export function loadModel(source: string, file: string): Result<Model> {
-  const doc = readNetlist(source, file);
-  if (!doc.ok) return doc;
-  const model = buildModel(doc.value);
-  if (!model.ok) return model;
-  const warnings: Diagnostic[] = [...doc.warnings, ...model.warnings];
-  return { ok: true, value: model.value, warnings };
-}

@@ -7,7 +7,9 @@
  */
 import { checkOutputPaths, checkPlotsDir, samePath, UsageError, writeOutput } from './io.js';
 import { readNetlistFile } from './netlist-file.js';
-import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
+import { interruptOnSigint, simulateHere, startSimulation, type Interrupter } from './run-thread.js';
+import type { Model } from '../model/types.js';
+import type { RunResult } from '../transient/results.js';
 
 export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
 
@@ -33,19 +35,28 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   const progress = tty
     ? (t: number, tEnd: number): void => { process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `); }
     : undefined;
-  // The worker starts on the text while this thread reads it too (see startSimulation).
+  // The worker reads the netlist (the only reading) and reports back before it simulates
+  // (see startSimulation); this thread reads it only when there is no bundled worker.
   const text = readNetlistFile(file);
   const keepTrace = Boolean(opts.csv || opts.plots || opts.baseline);
-  const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace) : undefined;
-  let model;
-  try {
+  const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace, Boolean(opts.plots)) : undefined;
+  let model: Model | undefined;
+  let result: RunResult;
+  if (started) {
+    const { acceptLoaded } = await import('./load.js');
+    const doc = acceptLoaded(file, await started.loaded());
+    if (doc) {
+      // the plots need the model: built here from the worker's checked document, not re-read
+      const built = (await import('../model/build.js')).buildModel(doc);
+      if (!built.ok) throw new Error('the checked netlist did not build on the main thread');
+      model = built.value;
+    }
+    result = await started.result();
+  } else {
     const { loadOrExit } = await import('./load.js');
     model = loadOrExit(file);
-  } catch (e) {
-    started?.cancel();
-    throw e;
+    result = await simulateHere(model, stop, progress);
   }
-  const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
   if (tty) process.stderr.write('\r\x1b[K');
   const { baselineJson, resultJson, summaryText, traceCsv } = await import('../index.js');
 
@@ -60,7 +71,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     if (opts.csv === '-') process.stdout.write(text); else writeOutput(opts.csv, text, '--csv');
   }
   if (opts.baseline) writeOutput(opts.baseline, baselineJson(result), '--baseline');
-  if (opts.plots) (await import('./report.js')).writePlots(opts.plots, model, result);
+  if (opts.plots && model) (await import('./report.js')).writePlots(opts.plots, model, result);
   if (result.status === 'failed') {
     const written = [opts.json, opts.csv, opts.baseline].some((o) => o && o !== '-') ? '; the results up to then were written' : '';
     process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s${written}: ${result.message}\n`);
