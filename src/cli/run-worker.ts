@@ -27,6 +27,7 @@ if (!model.ok) {
   const result = simulate(model.value, {
     interrupt: () => (Atomics.load(flag, STOP_FLAG) ? 'interrupted (Ctrl-C)' : null),
     progress: progress ? (t, tEnd) => post({ kind: 'progress', t, tEnd }) : undefined,
+    record: keepTrace === false ? 'outcomes' : 'all',
   });
   // the trace's values stay here unless the caller writes them (see RunWorkerData.keepTrace)
   post({ kind: 'result', result: keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result });
