@@ -54,6 +54,8 @@ export interface AnchorRun {
   nfev: number; njev: number; status: number;
   /** Peak resident memory of the python3 process, MB. */
   peakMB: number;
+  /** User + system CPU of the whole python3 process. */
+  cpuS: number;
 }
 
 /** One BLAS/OpenMP thread for the anchor: on a busy host a threaded BLAS made SciPy's BDF 5× slower. */
@@ -67,8 +69,8 @@ export function runAnchor(script: string, n: number): AnchorRun | string {
   if (r.error) return `python3 not runnable: ${r.error.message}`;
   if (r.status !== 0) return `anchor failed: ${(r.stderr || r.stdout).trim().split('\n').pop()}`;
   const f = r.stdout.trim().split(/\s+/).map(Number);
-  if (f.length < 6 || f.some((x) => !Number.isFinite(x))) return `unexpected anchor output: ${r.stdout.trim()}`;
-  return { n: f[0], solveS: f[1], wallS, nfev: f[2], njev: f[3], status: f[4], peakMB: f[5] };
+  if (f.length < 7 || f.some((x) => !Number.isFinite(x))) return `unexpected anchor output: ${r.stdout.trim()}`;
+  return { n: f[0], solveS: f[1], wallS, nfev: f[2], njev: f[3], status: f[4], peakMB: f[5], cpuS: f[6] };
 }
 
 /** log(t2/t1)/log(n2/n1): 1 means linear growth. */
