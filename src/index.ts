@@ -6,7 +6,12 @@
  *   if (!m.ok) console.error(m.diagnostics.map(formatDiagnostic).join('\n'));
  *   else console.log(resultJson(simulate(m.value)));
  */
-export { loadModel } from './model/load.js';
+import type { Diagnostic, Result } from './diag/diagnostic.js';
+import { readNetlist } from './netlist/read.js';
+import { buildModel } from './model/build.js';
+import type { Model } from './model/types.js';
+import { traceMemoryDiagnostic } from './transient/trace-memory.js';
+
 export type { Diagnostic, Result } from './diag/diagnostic.js';
 export { formatDiagnostic } from './diag/diagnostic.js';
 export type { NetlistDoc } from './netlist/types.js';
@@ -32,6 +37,14 @@ export { fitWall, fitJson, fitText, fitResidualCsv, chamberSnippet, measuredSnip
 export { readBenchCsv, type BenchData, type BenchRow } from './studies/fit-data.js';
 export { levenbergMarquardt, type LmProblem, type LmResult } from './studies/fit-lm.js';
 export { studentQuantile, studentCdf } from './studies/fit-stats.js';
+export { calibrate, type CalibrateOptions, type CalibrationReport, type CalibratedParameter, type CalibrationInput, type ChannelFit, type ResidualRow } from './studies/calibrate.js';
+export { calibrationText, calibrationJson, residualCsv, calibratedNetlist, netlistWithValues } from './studies/calibrate-report.js';
+export { size, type SizeOptions, type SizeReport } from './studies/size.js';
+export { sizeText, sizeJson } from './studies/size-report.js';
+export { expectationMargin } from './studies/margins.js';
+export { readMeasuredCsv, checkSeries, type MeasuredSeries } from './studies/bench-series.js';
+export { measuredOverlays, measuredTrace, alignToMeasured } from './studies/measured-overlay.js';
+export type { MeasuredOverlay } from './transient/report-input.js';
 export { reportInput, type ReportInput, type ReportInputOptions, type EquilibriumMark, type WallCurve, type ReportTopology } from './transient/report-input.js';
 export { reportHtml } from './report/html.js';
 export { reportFigures, type Figure, type FigureOptions } from './report/plots.js';
@@ -47,3 +60,17 @@ export { stabilityAt, type Stability, type Linearisation } from './equilibria/st
 export { eigenvalues } from './linalg/eigen.js';
 export { equilibriaText, equilibriaJson, traceText, traceJson, traceBranchesCsv } from './report/equilibria.js';
 
+/** Reads and builds in one go; diagnostics from both stages, warnings kept. */
+export { traceMemory, traceMemoryDiagnostic } from './transient/trace-memory.js';
+
+export function loadModel(source: string, file: string): Result<Model> {
+  const doc = readNetlist(source, file);
+  if (!doc.ok) return doc;
+  const model = buildModel(doc.value);
+  if (!model.ok) return model;
+  // a run whose sampled history cannot fit in memory is refused before it starts
+  const memory = traceMemoryDiagnostic(model.value);
+  if (memory) return { ok: false, diagnostics: [memory] };
+  const warnings: Diagnostic[] = [...doc.warnings, ...model.warnings];
+  return { ok: true, value: model.value, warnings };
+}

@@ -1,6 +1,5 @@
 /** Reads a netlist file for a command: diagnostics printed, exit 2 on any error. */
-import { formatDiagnostic, loadModel, type Diagnostic, type Model, type NetlistDoc } from '../index.js';
-import type { Loaded } from './run-thread.js';
+import { formatDiagnostic, loadModel, type Diagnostic, type Model } from '../index.js';
 import { UsageError } from './io.js';
 import { readNetlistFile } from './netlist-file.js';
 
@@ -16,23 +15,15 @@ function printDiagnostics(ds: readonly Diagnostic[]): void {
   if (shown.length) process.stderr.write(shown.join('\n') + '\n');
 }
 
-/** The run worker's reading of the netlist (run-thread.ts), reported like loadOrExit's: the checked document, if sent. */
-export function acceptLoaded(file: string, loaded: Loaded): NetlistDoc | undefined {
-  if (!loaded.ok) failed(file, loaded.diagnostics);
-  printDiagnostics(loaded.warnings);
-  return loaded.doc;
-}
-
-function failed(file: string, errs: readonly Diagnostic[]): never {
-  const n = errs.filter((d) => d.severity === 'error').length;
-  printDiagnostics(errs);
-  throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${file}; nothing was simulated or written`);
-}
-
 export function loadOrExit(file: string): Model {
   const read = readNetlistFile(file);
   const m = 'text' in read ? loadModel(read.text, file) : { ok: false as const, diagnostics: [read.tooLarge] };
-  if (!m.ok) failed(file, m.diagnostics);
+  if (!m.ok) {
+    const errs = m.diagnostics;
+    const n = errs.filter((d) => d.severity === 'error').length;
+    printDiagnostics(errs);
+    throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${file}; nothing was simulated or written`);
+  }
   printDiagnostics(m.warnings);
   return m.value;
 }

@@ -4,11 +4,11 @@
  * Nothing is written when the netlist is invalid (exit 2); a run that stops early still gets
  * its report, saying so (exit 3).
  */
-import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { findEquilibria, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
+import { findEquilibria, formatDiagnostic, measuredOverlays, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
+import { readText } from './study-io.js';
 import { loadOrExit } from './load.js';
-import { checkOutputPaths, checkPlotsDir, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, checkPlotsDir, makePlotsDir, samePath, UsageError, writeOutputs, type OutputFile } from './io.js';
 
 export { checkPlotsDir };
 import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
@@ -20,21 +20,29 @@ export interface ReportOptions {
   quiet?: boolean;
   /** plenum's version, for the report's footer. */
   version?: string;
+  /** Bench recordings to overlay (measured CSV). */
+  data?: string[];
 }
 
-/** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */
-export function writePlots(dir: string, model: Model, result: RunResult): string[] {
-  try {
-    mkdirSync(dir, { recursive: true });
-  } catch (e) {
-    throw new UsageError(`cannot create --plots ${dir} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
-  }
-  const figures = reportFigures(reportInput(model, result), { standalone: true });
+/**
+ * The SVG files of the figures for `--plots DIR`, one a figure (none is written yet). The
+ * netlist is never among them: a figure that would land on it is refused (exit 2).
+ */
+export function plotFiles(dir: string, netlist: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): OutputFile[] {
+  const figures = reportFigures(reportInput(model, result, { measured }), { standalone: true });
   return figures.map((f) => {
     const path = join(dir, `${f.id}.svg`);
-    writeOutput(path, f.svg, '--plots');
-    return path;
+    if (samePath(path, netlist)) throw new UsageError(`refusing to overwrite the netlist ${netlist} with the figure ${path} (--plots ${dir}); choose another directory`);
+    return { path, text: f.svg, what: '--plots' };
   });
+}
+
+/** Writes `files` and the figures of `--plots DIR` together (DIR is created if needed). */
+export function writeWithPlots(files: OutputFile[], plots: string | undefined, netlist: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): number {
+  const figures = plots ? plotFiles(plots, netlist, model, result, measured) : [];
+  if (plots) makePlotsDir(plots);
+  writeOutputs([...files, ...figures]);
+  return figures.length;
 }
 
 /**
@@ -68,15 +76,27 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
   const stop = interruptOnSigint();
   try {
     const model = loadOrExit(file);
+    // recordings are checked before anything runs: bad data is exit 2 with nothing written
+    let measured: MeasuredOverlay[] | undefined;
+    if (opts.data?.length) {
+      const inputs = opts.data.map((d) => ({ file: d, text: readText(d, 'the recording') }));
+      const o = measuredOverlays(model, inputs);
+      if (!o.ok) {
+        const n = o.diagnostics.length;
+        throw new UsageError(`${o.diagnostics.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'} in the recordings; nothing was written`);
+      }
+      measured = o.value.overlays;
+      for (const note of o.value.notes) process.stderr.write(`plenum: note: ${note}\n`);
+    }
     const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
     const result = await simulateInterruptibly(model, stop, tty
       ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
       : undefined);
     if (tty) process.stderr.write('\r\x1b[K');
     if (!opts.quiet) process.stdout.write(summaryText(result));
-    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, ...restStates(model) })), '--out');
-    const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
-    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
+    const html = reportHtml(reportInput(model, result, { version: opts.version, measured, ...restStates(model) }));
+    const plots = writeWithPlots([{ path: opts.out, text: html, what: '--out' }], opts.plots, file, model, result, measured);
+    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots ? `; ${plots} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
       return 3;

@@ -11,10 +11,10 @@
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
-import type { Diagnostic } from '../diag/diagnostic.js';
 import type { RunResult } from '../transient/results.js';
 import type { Model } from '../model/types.js';
-import type { NetlistDoc } from '../netlist/types.js';
+import { CsvFile } from './csv-file.js';
+import { UsageError } from './io.js';
 
 /** Index of the stop flag in the shared control array. */
 export const STOP_FLAG = 0;
@@ -30,19 +30,13 @@ export interface RunWorkerData {
    * is sent: copying a large trace between threads costs seconds (10 000 chambers: 1.4 s).
    */
   keepTrace?: boolean;
-  /** Send the checked document back (this thread builds the model from it for the plots). */
-  keepDoc?: boolean;
+  /** A new file to write the CSV trace into as the samples are taken (see csv-file.ts). */
+  csvPath?: string;
 }
 
-/** The worker's reading of the netlist: its warnings, or its diagnostics when it is invalid. */
-export type Loaded =
-  | { ok: true; warnings: Diagnostic[]; doc?: NetlistDoc }
-  | { ok: false; diagnostics: Diagnostic[] };
-
 export type RunWorkerMessage =
-  | { kind: 'loaded'; loaded: Loaded }
   | { kind: 'progress'; t: number; tEnd: number }
-  | { kind: 'result'; result: RunResult }
+  | { kind: 'result'; result: RunResult; csvError?: string }
   | { kind: 'error'; message: string };
 
 /** Where the bundled worker may be, relative to the module holding this code. */
@@ -89,39 +83,41 @@ export function interruptOnSigint(): Interrupter {
 
 /** Simulates `model` on a worker thread; the run stops early when the interrupter's flag is set. */
 export async function simulateInterruptibly(model: Model, stop: Interrupter, progress?: (t: number, tEnd: number) => void): Promise<RunResult> {
-  const started = startSimulation(model.doc.source, model.doc.file, stop, progress);
-  return started ? started.result() : simulateHere(model, stop, progress);
+  return startSimulation(model.doc.source, model.doc.file, stop, progress).result(model);
 }
 
-/** The same run on this thread (no bundled worker: running from the TypeScript sources); Ctrl-C cannot stop it. */
-export async function simulateHere(model: Model, stop: Interrupter, progress?: (t: number, tEnd: number) => void): Promise<RunResult> {
-  const { simulate } = await import('../transient/transient.js');
-  return simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress });
-}
-
-/** A simulation started on a worker thread from the netlist text. */
+/** A simulation started on a worker thread from the netlist text, before its model is needed here. */
 export interface StartedSimulation {
-  /** The worker's reading of the netlist (this thread does not read it again). */
-  loaded(): Promise<Loaded>;
-  /** The result (after a valid `loaded`). */
-  result(): Promise<RunResult>;
-  cancel(): void;
+  /** The result; `model` (loaded on this thread from the same text) is used only without a worker. */
+  result(model: Model): Promise<RunResult>;
+  /** Stops the worker (when this thread found the netlist invalid); resolves once it has stopped. */
+  cancel(): Promise<void>;
 }
 
 /**
- * Starts the worker on the netlist text at once; undefined when there is no bundled worker.
- * The netlist is read once, by the worker, which reports its diagnostics (or warnings, and
- * with `keepDoc` the checked document) before it simulates; meanwhile this thread loads the
- * reports. Reading it on both threads cost a large netlist its reading twice in CPU and memory
- * (10 000 chambers: 0.65 s and the syntax tree on each thread).
+ * Starts the worker on the netlist text at once. The worker reads the text itself; started
+ * before this thread reads it (for the diagnostics and the model that plots need), the two
+ * readings overlap on a machine with two cores instead of following each other, which for a
+ * large netlist saves seconds (docs/dev-performance.md).
  */
-export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void, keepTrace = true, keepDoc = false): StartedSimulation | undefined {
+export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void, keepTrace = true, csvPath?: string): StartedSimulation {
   const entry = workerFile();
-  if (!entry) return undefined;
-  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress), keepTrace, keepDoc };
+  const csvFailed = (code: string): UsageError => new UsageError(`cannot write the CSV trace (${code}); nothing was written`);
+  if (!entry) {
+    return {
+      result: async (model) => {
+        const { simulate } = await import('../transient/transient.js');
+        const csv = csvPath ? new CsvFile(csvPath) : undefined;
+        const r = simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress, samples: csv });
+        const error = csv?.close();
+        if (error) throw csvFailed(error);
+        return r;
+      },
+      cancel: async () => {},
+    };
+  }
+  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress), keepTrace, csvPath };
   const worker = new Worker(entry, { workerData: data });
-  let onLoaded: (l: Loaded) => void = () => {};
-  const loaded = new Promise<Loaded>((resolve) => { onLoaded = resolve; });
   const done = new Promise<RunResult>((resolve, reject) => {
     let settled = false;
     const finish = (f: () => void): void => {
@@ -130,16 +126,13 @@ export function startSimulation(source: string, file: string, stop: Interrupter,
       f();
     };
     worker.on('message', (m: RunWorkerMessage) => {
-      if (m.kind === 'loaded') onLoaded(m.loaded);
-      else if (m.kind === 'progress') progress?.(m.t, m.tEnd);
-      else if (m.kind === 'result') finish(() => resolve(m.result));
+      if (m.kind === 'progress') progress?.(m.t, m.tEnd);
+      else if (m.kind === 'result') finish(() => (m.csvError ? reject(csvFailed(m.csvError)) : resolve(m.result)));
       else finish(() => reject(new Error(m.message)));
     });
     worker.on('error', (e) => finish(() => reject(e)));
     worker.on('exit', (code) => finish(() => reject(new Error(`the simulation thread ended (code ${code}) without a result`))));
   });
   done.catch(() => {}); // observed by `result`; a cancelled run's rejection is not an error
-  // a worker that dies before reading leaves `loaded` to the failure of `done`
-  const loadedOrFailed = Promise.race([loaded, done.then(() => new Promise<Loaded>(() => {}))]);
-  return { loaded: () => loadedOrFailed, result: () => done, cancel: () => { void worker.terminate(); } };
+  return { result: () => done, cancel: async () => { await worker.terminate(); } };
 }

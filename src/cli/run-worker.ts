@@ -1,34 +1,39 @@
 /**
- * Worker thread of `plenum run` (bundled to dist/cli/run-worker.js): reads and checks the
- * netlist text (the only reading of it in a run), posts its diagnostics or warnings (and with
- * keepDoc the checked document), then simulates the model and posts the result.
+ * Worker thread of `plenum run` (bundled to dist/cli/run-worker.js): rebuilds the model from
+ * the netlist text the main thread has already checked, simulates it, and posts the result.
  *
  * The run happens here rather than on the main thread so that Ctrl-C works: a signal handler
  * runs only when the main thread's event loop is free, which it never is during a synchronous
  * simulation. The main thread's handler sets a shared flag that the run polls every step.
  *
- * Messages out: { kind: 'loaded', loaded }, then { kind: 'progress', t, tEnd } and
- * { kind: 'result', result } (or { kind: 'error', message }).
+ * Messages out: { kind: 'progress', t, tEnd }, then { kind: 'result', result } or
+ * { kind: 'error', message }.
  */
 import { parentPort, workerData } from 'node:worker_threads';
 import { simulate } from '../transient/transient.js';
-import { loadModel } from '../model/load.js';
+import { buildModel } from '../model/build.js';
+import { readNetlist } from '../netlist/read.js';
+import { CsvFile } from './csv-file.js';
 import { STOP_FLAG, type RunWorkerData, type RunWorkerMessage } from './run-thread.js';
 
-const { source, file, control, progress, keepTrace, keepDoc } = workerData as RunWorkerData;
+const { source, file, control, progress, keepTrace, csvPath } = workerData as RunWorkerData;
 const flag = new Int32Array(control);
 const post = (m: RunWorkerMessage): void => parentPort!.postMessage(m);
 
-const model = loadModel(source, file);
-if (!model.ok) {
-  post({ kind: 'loaded', loaded: { ok: false, diagnostics: model.diagnostics } });
+const doc = readNetlist(source, file);
+const model = doc.ok ? buildModel(doc.value) : undefined;
+if (!model?.ok) {
+  post({ kind: 'error', message: 'the netlist did not load in the worker thread although it did on the main thread' });
 } else {
-  post({ kind: 'loaded', loaded: { ok: true, warnings: model.warnings, ...(keepDoc ? { doc: model.value.doc } : {}) } });
+  const csv = csvPath ? new CsvFile(csvPath) : undefined;
   const result = simulate(model.value, {
+    samples: csv,
+    // a trace nobody writes records only what the outcome analysis reads (transient/samples.ts)
+    record: keepTrace === false ? 'outcomes' : 'all',
     interrupt: () => (Atomics.load(flag, STOP_FLAG) ? 'interrupted (Ctrl-C)' : null),
     progress: progress ? (t, tEnd) => post({ kind: 'progress', t, tEnd }) : undefined,
-    record: keepTrace === false ? 'outcomes' : 'all',
   });
   // the trace's values stay here unless the caller writes them (see RunWorkerData.keepTrace)
-  post({ kind: 'result', result: keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result });
+  const csvError = csv?.close();
+  post({ kind: 'result', result: keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result, ...(csvError ? { csvError } : {}) });
 }

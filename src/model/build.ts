@@ -9,7 +9,8 @@ import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
 import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
 import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
-import type { BranchModel, ChamberModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import type { BranchModel, ChamberModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
 import { buildCylinder, type CylinderModel } from './cylinder.js';
 import { PORT_NAME } from '../netlist/names.js';
@@ -65,7 +66,19 @@ function volumeForPressure(wall: WallLaw, pa: number, pAbs: number, pos: SourceP
     const pa0 = s.p;
     wall.eval(ends[i + 1], s);
     const pb = s.p;
-    if (pa0 <= target && target <= pb) return volumeAtGauge(wall, target, ends[i], ends[i + 1]);
+    if (pa0 <= target && target <= pb) {
+      const V = volumeAtGauge(wall, target, ends[i], ends[i + 1]);
+      // a measured curve with a level stretch at the start pressure: every volume along it has
+      // that pressure, so the start volume is undetermined (as at a flat top)
+      wall.eval(V, s);
+      if (wall.kind === 'measured' && !(Math.abs(s.dpdV) * V > 1e-9 * Math.max(Math.abs(target), 1))) {
+        errs.push(diag(pos, 'start-unreachable',
+          `start pressure ${kPa(target)} gauge lies on a level part of the measured curve: the start volume would be undetermined`,
+          'start the chamber by volume or mass instead'));
+        return Number.NaN;
+      }
+      return V;
+    }
     if (pa0 > target) break; // a pressure maximum lies below the target
   }
   const max = wall.extrema.find((e) => e.kind === 'max');
@@ -179,6 +192,15 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
     branches.push({ name: v.name, kind: 'valve', from: node(v.from), to: node(v.to), valve: { rating: v.rating, operation: v.operation } });
   }
 
+  // Kinds read from their table alone: name parameters become nodes (after the lines, so that
+  // the order of the reservoirs, `ambient` among them, does not depend on them).
+  const elements: ElementModel[] = (doc.elements ?? []).map((e) => {
+    const table = ELEMENT_TABLES.find((k) => k.kind === e.kind)!;
+    const nodes: Record<string, NodeRef> = {};
+    for (const p of table.params) if (p.dimension === 'name' && typeof e.values[p.name] === 'string') nodes[p.name] = node(e.values[p.name] as string);
+    return { kind: e.kind, name: e.name, values: e.values, nodes, boundary: table.boundary === true };
+  });
+
   const chambers: ChamberModel[] = [];
   // Large networks repeat a few chamber designs: build each wall law once (its extrema search
   // and monotonicity scan cost thousands of evaluations) and share it, and check each
@@ -286,6 +308,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   if (errs.length) return { ok: false, diagnostics: errs };
   const model: Model = {
     doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders,
+    ...(elements.length ? { elements } : {}),
     simulate: doc.simulate, expect: doc.expect,
   };
   return { ok: true, value: model, warnings };
