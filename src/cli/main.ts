@@ -5,7 +5,9 @@
  * simulation could not be completed.
  */
 import { Command, CommanderError } from 'commander';
-import { UsageError } from './io.js';
+import { quietOnClosedPipe, UsageError } from './io.js';
+
+quietOnClosedPipe();
 
 const VERSION = '0.1.0';
 
@@ -43,11 +45,11 @@ Examples:
 
 program.command('run')
   .description('simulate a netlist and print a summary; optionally write CSV and JSON')
-  .argument('<netlist>', 'netlist file (.yaml)')
+  .argument('<netlist>', 'netlist file (.yaml); - reads it from standard input')
   .option('--csv <file>', 'write the sampled time history as CSV (- for stdout)')
   .option('--json <file>', 'write the result summary as JSON (- for stdout)')
   .option('-q, --quiet', 'do not print the summary table')
-  .option('--baseline <file>', 'write a compact trace and summary for `plenum diff` (regression baselines)')
+  .option('--baseline <file>', 'write a compact trace and summary for `plenum diff` (regression baselines; - for stdout)')
   .option('--plots <dir>', 'write the figures (network, pressure–volume, time histories) as SVG files into this directory')
   .action(async (file: string, opts: { csv?: string; json?: string; quiet?: boolean; baseline?: string; plots?: string }) => {
     const { runCommand } = await import('./run.js');
@@ -56,8 +58,8 @@ program.command('run')
 
 program.command('check')
   .description('simulate netlists in parallel and judge their expectations (for CI): one line per expectation, a tally, exit 0/1/2/3')
-  .argument('<netlists...>', 'netlist files (.yaml), or directories of them')
-  .option('--junit <file>', 'write a JUnit XML report (one testsuite per netlist, one testcase per expectation)')
+  .argument('<netlists...>', 'netlist files (.yaml), directories of them, or quoted glob patterns (\'networks/*.yaml\')')
+  .option('--junit <file>', 'write a JUnit XML report (one testsuite per netlist, one testcase per expectation; - for stdout)')
   .option('--annotations', 'also print CI log annotations (`::error file=…,line=…::message`) for failures and warnings')
   .option('--jobs <n>', 'threads to use (default: the available cores; 1: the main thread only)')
   .option('-q, --quiet', 'print only failures, errors and the tally')
@@ -124,7 +126,7 @@ program.command('fit')
 program.command('report')
   .description('simulate a netlist and write a self-contained HTML report (network, figures, tables, events, checks)')
   .argument('<netlist>', 'netlist file (.yaml)')
-  .option('-o, --out <file>', 'the HTML file to write')
+  .option('-o, --out <file>', 'the HTML file to write (- for stdout)')
   .option('--plots <dir>', 'also write the figures as SVG files into this directory')
   .option('-q, --quiet', 'do not print the summary table')
   .action(async (file: string, opts: { out?: string; plots?: string; quiet?: boolean }) => {
@@ -177,6 +179,13 @@ program.command('kinds')
     const { kindsText } = await import('./kinds.js');
     process.stdout.write(kindsText(Boolean(opts.markdown)));
   });
+
+// no command at all is a usage error (exit 2), with the help on standard error
+if (process.argv.length <= 2) {
+  process.stderr.write(program.helpInformation());
+  process.stderr.write('plenum: no command given (run, check, report, ...); see above\n');
+  process.exit(2);
+}
 
 try {
   await program.parseAsync(process.argv);

@@ -8,7 +8,8 @@ import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { findEquilibria, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
 import { loadOrExit } from './load.js';
-import { checkOutputPaths, checkPlotsDir, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, checkPlotsDir, emit, toStdout, UsageError, writeOutput } from './io.js';
+import { progressLine, simulationProgress } from './progress.js';
 
 export { checkPlotsDir };
 import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
@@ -61,22 +62,21 @@ function restStates(model: Model): { equilibria?: ReturnType<typeof findEquilibr
 
 export async function reportCommand(file: string, opts: ReportOptions): Promise<number> {
   if (!opts.out) throw new UsageError('report needs --out FILE.html (where to write the report)');
-  if (opts.out === '-') throw new UsageError('--out needs a file name: the report is a file to open in a browser');
   checkOutputPaths(file, { '--out': opts.out });
+  // `--out -` writes the HTML to standard output (for a pipe); the summary then goes to stderr
+  const log = toStdout({ '--out': opts.out }) ? process.stderr : process.stdout;
   if (opts.plots) checkPlotsDir(opts.plots);
   // Ctrl-C stops the run; the report then covers what was computed (exit 3)
   const stop = interruptOnSigint();
   try {
     const model = loadOrExit(file);
-    const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
-    const result = await simulateInterruptibly(model, stop, tty
-      ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
-      : undefined);
-    if (tty) process.stderr.write('\r\x1b[K');
-    if (!opts.quiet) process.stdout.write(summaryText(result));
-    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, ...restStates(model) })), '--out');
+    const line = progressLine(opts.quiet);
+    const result = await simulateInterruptibly(model, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
+    line.clear();
+    if (!opts.quiet) log.write(summaryText(result));
+    emit(opts.out, reportHtml(reportInput(model, result, { version: opts.version, ...restStates(model) })), '--out');
     const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
-    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
+    if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
       return 3;

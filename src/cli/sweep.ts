@@ -1,7 +1,8 @@
 /** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
 import { formatDiagnostic } from '../diag/diagnostic.js';
 import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { emit, samePath, toStdout, UsageError } from './io.js';
+import { progressLine } from './progress.js';
 import { readBounded } from './netlist-file.js';
 
 export interface SweepCliOptions {
@@ -45,19 +46,19 @@ export async function sweepCommand(file: string, opts: SweepCliOptions): Promise
   for (const out of [opts.csv, opts.json]) {
     if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
   }
-  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json });
   const samples = wholeNumber(opts.samples, '--samples', 1);
   const seed = wholeNumber(opts.seed, '--seed', 0);
   const jobs = wholeNumber(opts.jobs, '--jobs', 1);
   const shard = parseShard(opts.shard);
   const source = readText(file, 'the netlist');
 
-  const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
+  const line = progressLine(opts.quiet);
   const r = await runSweep({
     source, file, vary: opts.vary, samples, seed, jobs, shard,
-    progress: tty ? (done, total) => process.stderr.write(`\r  cases: ${done} of ${total}   `) : undefined,
+    progress: line.active ? (done, total) => line.update(`  cases: ${done} of ${total}`) : undefined,
   });
-  if (tty) process.stderr.write('\r\x1b[K');
+  line.clear();
   if (!r.ok) {
     const n = r.diagnostics.filter((d) => d.severity === 'error').length;
     throw new UsageError(`${r.diagnostics.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'}; nothing was run or written`);
@@ -69,15 +70,8 @@ export async function sweepCommand(file: string, opts: SweepCliOptions): Promise
     const first = bad[0];
     process.stderr.write(`plenum: ${bad.length} of ${result.cases.length} cases did not complete (they count as outcomes); the first, case ${first.index} (${first.params.map((p) => `${p.path} = ${p.text}`).join(', ')}): ${first.status}: ${first.message.split('\n')[0]}\n`);
   }
-  const toStdout = opts.json === '-' || opts.csv === '-';
-  if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(sweepSummaryText(result));
-  if (opts.json) {
-    const text = sweepJson(result);
-    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
-  }
-  if (opts.csv) {
-    const text = sweepCsv(result);
-    if (opts.csv === '-') process.stdout.write(text); else writeAtomic(opts.csv, text);
-  }
+  if (!opts.quiet) (stdoutTaken ? process.stderr : process.stdout).write(sweepSummaryText(result));
+  if (opts.json) emit(opts.json, sweepJson(result), '--json');
+  if (opts.csv) emit(opts.csv, sweepCsv(result), '--csv');
   return 0;
 }

@@ -406,6 +406,7 @@ export const TOP: KindTable = {
   params: [
     p('format', 'integer', 'netlist format version: 1'),
     opt('title', 'text', 'title for reports (default: the file name)'),
+    opt('description', 'text', 'free text describing the rig and the purpose of the run, shown in reports'),
     opt('gas', 'structure', 'air (default), nitrogen, helium, carbon-dioxide, or { molar-mass, gamma, viscosity }', { shape: 'gas', default: 'air' }),
     opt('ambient', 'structure', 'ambient pressure and temperature', { shape: 'ambient' }),
     opt('heat', 'enum', 'heat model: isothermal, adiabatic, or exchange (uses each chamber’s heat-transfer)', { values: HEAT_MODES, default: 'isothermal' }),

@@ -153,6 +153,8 @@ export interface NetlistDoc {
   source: string;
   format: 1;
   title: string;
+  /** Free text about the rig and the run (top-level `description:`), shown in reports. */
+  description?: string;
   gas: GasSpec;
   ambient: { pressure: number; temperature: number };
   heat: 'isothermal' | 'adiabatic' | 'exchange';

@@ -325,7 +325,8 @@ function safetyNotes(): string {
 export function reportHtml(input: ReportInput): string {
   const r = input.result;
   const figures = reportFigures(input);
-  const job = netlistDescription(input.source);
+  // the netlist's `description:`, else the comment lines at its top
+  const job = r.description ?? netlistDescription(input.source);
   const ok = r.status === 'completed';
   const failedChecks = r.expectations.filter((e) => !e.passed).length;
   const badge = !ok ? h('span', { class: 'badge bad' }, 'run failed')
@@ -360,7 +361,7 @@ export function reportHtml(input: ReportInput): string {
     h('header', {},
       h('h1', {}, esc(r.title || r.file), ' ', badge),
       h('p', { class: 'meta' }, esc(`${r.file} · gas: ${input.gas} · heat: ${input.heat} · ambient ${display(r.ambient, 'pressure')} · ${display(r.end, 'time')} simulated`)),
-      job ? h('p', { class: 'job' }, esc(job)) : '',
+      ...job.split(/\n\s*\n/).filter((para) => para.trim()).map((para) => h('p', { class: 'job' }, esc(para.trim()))),
       h('nav', { class: 'toc' }, ...[['glance', 'At a glance'], ['figures', 'Figures'], ['summary', 'Summary'], ['events', 'Events'], ['checks', 'Expectations'], ['warnings', 'Warnings and safety'], ['solver', 'Solver'], ['netlist', 'Netlist']]
         .map(([id, t]) => h('a', { href: `#${id}` }, esc(t))))),
     h('section', { id: 'glance' }, h('h2', {}, 'At a glance'),

@@ -74,6 +74,8 @@ export interface RunFault {
 export interface RunResult {
   format: 1;
   title: string;
+  /** The netlist's `description:`, when it has one. */
+  description?: string;
   file: string;
   status: 'completed' | 'failed';
   message: string;
