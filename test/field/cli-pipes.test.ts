@@ -157,16 +157,19 @@ describe('the progress line', () => {
     }
   });
 
-  it('a short run on a terminal prints no progress (under `script`, a pseudo-terminal)', () => {
+  it('with -q a run on a terminal prints no progress (under `script`, a pseudo-terminal)', () => {
     const which = spawnSync('bash', ['-c', 'command -v script'], { encoding: 'utf8' });
     if (which.status !== 0) return; // util-linux's script is part of every Debian system
     const env = { ...process.env };
     delete env.CI;
     const out = join(tmp, 'tty.txt');
-    const r = spawnSync('script', ['-qec', `${process.execPath} bin/plenum run ${SETTLE}`, out], { encoding: 'utf8', env });
+    // a run long enough to pass the one-second delay on any machine
+    const long = join(tmp, 'long.yaml');
+    writeFileSync(long, readFileSync(SETTLE, 'utf8').replace(/duration: [^,}]+/, 'duration: 600 s').replace(/sample: [^,}]+/, 'sample: 10 ms').replace(/tolerance: [^,}]+/, 'tolerance: 1e-10'));
+    const r = spawnSync('script', ['-qec', `${process.execPath} bin/plenum run ${long} -q --json ${join(tmp, 'long.json')}`, out], { encoding: 'utf8', env });
     expect(r.status).toBe(0);
     const seen = readFileSync(out, 'utf8');
-    expect(seen).toContain('cell_a');
+    expect(JSON.parse(readFileSync(join(tmp, 'long.json'), 'utf8')).status).toBe('completed');
     expect(seen).not.toContain('simulating:');
     expect(seen).not.toContain('\x1b[K');
   });
