@@ -223,7 +223,9 @@ function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): E
     return undefined;
   }
   if (within === undefined || v.band === undefined) return undefined;
-  return { kind: 'settles', name, within, band: v.band as number, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  if (ck.get(s, 'relative-to') && v['relative-to'] === undefined) return undefined;
+  const relativeTo = (v['relative-to'] ?? 'excursion') as 'excursion' | 'final-value';
+  return { kind: 'settles', name, within, band: v.band as number, relativeTo, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
 }
 
 /** The quantity a probe's text names (`x.gauge` → gauge), whatever its element; or undefined. */

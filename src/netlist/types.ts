@@ -145,7 +145,14 @@ export type ExpectSpec =
       compare: Comparison;
       pos: SourcePos;
     }
-  | { kind: 'settles'; name: string; within: number; band: number; pos: SourcePos };
+  | {
+    kind: 'settles'; name: string; within: number;
+    /** Fraction of each quantity's excursion over the run (or of its final value, below). */
+    band: number;
+    /** `excursion` (default): |q − q_end| ≤ band·max(E, 0.1 %·|q_end|); `final-value`: ≤ band·|q_end|. */
+    relativeTo?: 'excursion' | 'final-value';
+    pos: SourcePos;
+  };
 
 export interface NetlistDoc {
   file: string;

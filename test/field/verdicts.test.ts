@@ -1,0 +1,91 @@
+/**
+ * Verdicts that mean what they say: the run's outcome and `settles:` share one definition of
+ * "settled" (a band relative to each quantity's own excursion, with an absolute floor), and an
+ * oscillation is judged on swings above the integrator's resolution.
+ */
+import { describe, expect, it } from 'vitest';
+import { classifyOutcomes } from '../../src/transient/outcome.js';
+import type { Trace } from '../../src/transient/results.js';
+import { modelFromText, runChecked } from '../helpers.js';
+
+const PA = 101325;
+
+describe('outcome: round-off is not an oscillation (item 11)', () => {
+  const model = modelFromText(`
+format: 1
+chambers:
+  a: { wall: rigid, volume: 1 L, start: { pressure: 5 kPa gauge } }
+  b: { wall: rigid, volume: 1 L, start: { pressure: 5 kPa gauge } }
+lines:
+  j: { from: a, to: b, diameter: 1 mm, length: 1 m }
+simulate: { duration: 20 s, sample: 10 ms, tolerance: 1e-6 }
+`);
+  /** a decays slowly towards its end; b sits still apart from a wiggle of `amp` Pa, period 5 s. */
+  function trace(amp: number): Trace {
+    const times: number[] = [];
+    for (let k = 0; k <= 2000; k++) times.push(k * 0.01);
+    const a = times.map((t) => PA + 5000 * Math.exp(-t / 20));
+    const b = times.map((t) => PA + 5000 + amp * Math.sin((2 * Math.PI * t) / 5));
+    const v = times.map(() => 1e-3);
+    return {
+      channels: [{ key: 'a.pressure', unit: 'Pa' }, { key: 'a.volume', unit: 'm^3' }, { key: 'b.pressure', unit: 'Pa' }, { key: 'b.volume', unit: 'm^3' }],
+      times, values: [a, v, b, v.slice()],
+    };
+  }
+
+  it('a chamber wiggling by 5e-6 Pa (far below the tolerance of 1e-6 × 106 kPa) leaves the group "still moving"', () => {
+    const [o] = classifyOutcomes(model, trace(5e-6), []);
+    expect(o?.outcome).toBe('moving');
+    expect(o?.evidence).toContain('a.pressure');
+  });
+
+  it('a swing of 50 Pa, well above the resolution, is still an oscillation with its period', () => {
+    const [o] = classifyOutcomes(model, trace(50), []);
+    expect(o?.outcome).toBe('oscillating');
+    expect(o?.period).toBeGreaterThan(4);
+    expect(o?.period).toBeLessThan(6);
+  });
+});
+
+describe('settles: relative to the excursion, with a floor, as the outcome judges it (item 12)', () => {
+  // two equal rigid tanks at 10 and 0 kPa gauge equalise at 5 kPa gauge
+  const net = (checks: string) => `
+format: 1
+chambers:
+  a: { wall: rigid, volume: 1 L, start: { pressure: 10 kPa gauge } }
+  b: { wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }
+lines:
+  j: { from: a, to: b, diameter: 1 mm, length: 1 m }
+simulate: { duration: 30 s, sample: 10 ms, tolerance: 1e-8 }
+expect:
+${checks}
+`;
+
+  it('two tanks going from 10 and 0 kPa gauge to 5 kPa gauge do not "settle within 5 %" from t = 0', () => {
+    const r = runChecked(modelFromText(net('  - { name: at once, settles: { within: 0 s, band: 5% } }')));
+    const e = r.expectations[0]!;
+    expect(e.passed).toBe(false);
+    // at t = 0 each tank is its whole excursion (5 kPa) away from its final value
+    expect(e.actual).toBeCloseTo(1, 6);
+    expect(e.message).toMatch(/^[ab]\.pressure is 100 % of its excursion \(4\.99\d kPa\) away from its final value 106\.3 kPa abs at t = 0 s/);
+  });
+
+  it('the old meaning survives under a name that says it: `relative-to: final-value` passes from t = 0', () => {
+    const r = runChecked(modelFromText(net('  - { name: loose, settles: { within: 0 s, band: 5%, relative-to: final-value } }')));
+    const e = r.expectations[0]!;
+    expect(e.passed).toBe(true);
+    expect(e.actual).toBeCloseTo(5000 / (PA + 5000), 4);
+  });
+
+  it('the settling time the outcome reports is where a settles check of the same 2 % band starts to pass', () => {
+    const probe = runChecked(modelFromText(net('  - { name: never, settles: { within: 30 s, band: 100% } }')));
+    const o = probe.outcomes?.[0];
+    expect(o?.outcome).toBe('settled');
+    const ts = o?.settling_time ?? Number.NaN;
+    expect(ts).toBeGreaterThan(1);
+    expect(ts).toBeLessThan(29);
+    const r = runChecked(modelFromText(net(`  - { name: after, settles: { within: ${ts} s, band: 2% } }\n  - { name: before, settles: { within: ${(0.9 * ts).toPrecision(6)} s, band: 2% } }`)));
+    expect(r.expectations[0]?.passed).toBe(true);
+    expect(r.expectations[1]?.passed).toBe(false);
+  });
+});
