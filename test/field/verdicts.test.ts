@@ -3,7 +3,10 @@
  * "settled" (a band relative to each quantity's own excursion, with an absolute floor), and an
  * oscillation is judged on swings above the integrator's resolution.
  */
+import { spawnSync } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
+import { runSweep, summariseCases, sweepJson, sweepSummaryText } from '../../src/index.js';
 import { classifyOutcomes } from '../../src/transient/outcome.js';
 import type { Trace } from '../../src/transient/results.js';
 import { modelFromText, runChecked } from '../helpers.js';
@@ -88,4 +91,48 @@ ${checks}
     expect(r.expectations[0]?.passed).toBe(true);
     expect(r.expectations[1]?.passed).toBe(false);
   });
+});
+
+describe('sweeps: intervals only for random draws; values with units (items 15 and 17)', () => {
+  const source = readFileSync('networks/cushion-settle.yaml', 'utf8');
+
+  it('a deterministic grid reports exact shares without Wilson intervals; a Monte Carlo study keeps them', async () => {
+    const grid = await runSweep({ source, file: 'cushion-settle.yaml', vary: ['chambers.cell_a.thickness=1.4 mm,1.5 mm,1.6 mm'], jobs: 1 });
+    if (!grid.ok) throw new Error(grid.diagnostics.map((d) => d.message).join('\n'));
+    const status = summariseCases(grid.value.study, grid.value.cases).categorical.find((c) => c.key === 'status');
+    expect(status?.values[0]).toMatchObject({ value: 'completed', count: 3, n: 3, p: 1, low: null, high: null });
+    const text = sweepSummaryText(grid.value);
+    expect(text).not.toMatch(/\[\d/);
+    expect(text).toContain('deterministic grid');
+    expect(JSON.parse(sweepJson(grid.value)).summary.categorical[0].values[0].low).toBeNull();
+
+    const mc = await runSweep({ source, file: 'cushion-settle.yaml', vary: ['chambers.cell_a.thickness=1.5 mm±2%'], samples: 3, seed: 4, jobs: 1 });
+    if (!mc.ok) throw new Error(mc.diagnostics.map((d) => d.message).join('\n'));
+    expect(sweepSummaryText(mc.value)).toMatch(/100(\.0)? %\s+\[43\.\d %, 100(\.0)? %\]\s+\(3 of 3\)/);
+  }, 120_000);
+
+  it('`--vary lines.crossover.diameter=2,3` is refused: a bare number would mean 2 m', async () => {
+    const r = await runSweep({ source, file: 'cushion-settle.yaml', vary: ['lines.crossover.diameter=2,3'], jobs: 1 });
+    expect(r.ok).toBe(false);
+    if (r.ok) return;
+    expect(r.diagnostics[0]?.code).toBe('vary-unit');
+    expect(r.diagnostics[0]?.message).toContain('2 m, 3 m');
+    expect(r.diagnostics[0]?.hint).toContain('2 mm,3 mm');
+  });
+
+  it('messages show rounded values with units (the override, the volume of the problem)', async () => {
+    const r = await runSweep({ source, file: 'cushion-settle.yaml', vary: ['lines.crossover.diameter=2 m'], jobs: 1 });
+    expect(r.ok).toBe(false);
+    if (r.ok) return;
+    const m = r.diagnostics[0]?.message ?? '';
+    expect(m).toMatch(/near \d+(\.\d)? mL\)/);
+    expect(m).toContain('(with lines.crossover.diameter = 2 m)');
+  });
+
+  it('`plenum trace` summaries carry the unit of the varied parameter everywhere', () => {
+    const r = spawnSync(process.execPath, ['bin/plenum', 'trace', 'networks/cushion-runaway.yaml', '--vary', 'mass:cell_a', '--from', '1 g', '--to', '4 g'], { encoding: 'utf8', env: { ...process.env, CI: '1' } });
+    expect(r.status, r.stderr).toBe(0);
+    expect(r.stdout).toContain('reached mass:cell_a = 1 g');
+    expect(r.stdout).not.toMatch(/= \d+(\.\d+)?(;|\n)/);
+  }, 120_000);
 });
