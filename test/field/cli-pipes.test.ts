@@ -93,9 +93,10 @@ describe('`-` means standard output for every output option', () => {
   });
 
   it('two outputs cannot both take standard output', () => {
-    const r = plenum(['run', SETTLE, '--json', '-', '--baseline', '-']);
-    expect(r.code).toBe(2);
-    expect(r.err).toContain('only one of --json and --baseline');
+    const r = spawnSync(process.execPath, [join(process.cwd(), 'bin/plenum'), 'run', join(process.cwd(), SETTLE), '--json', '-', '--baseline', '-'], { cwd: tmp, encoding: 'utf8', env: { ...process.env, CI: '1' } });
+    expect(r.status).toBe(2);
+    expect(r.stderr).toContain('only one of --json and --baseline');
+    expect(existsSync(join(tmp, '-'))).toBe(false);
   });
 });
 
