@@ -6,7 +6,7 @@
 import { spawnSync } from 'node:child_process';
 import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
-import { runSweep, summariseCases, sweepJson, sweepSummaryText } from '../../src/index.js';
+import { fitJson, fitText, fitWall, measuredSnippet, readBenchCsv, runSweep, summariseCases, sweepJson, sweepSummaryText } from '../../src/index.js';
 import { classifyOutcomes } from '../../src/transient/outcome.js';
 import type { Trace } from '../../src/transient/results.js';
 import { modelFromText, runChecked } from '../helpers.js';
@@ -135,4 +135,43 @@ describe('sweeps: intervals only for random draws; values with units (items 15 a
     expect(r.stdout).toContain('reached mass:cell_a = 1 g');
     expect(r.stdout).not.toMatch(/= \d+(\.\d+)?(;|\n)/);
   }, 120_000);
+});
+
+describe('fit: a law that cannot describe the data says so; the measured curve keeps its ends (item 16)', () => {
+  const FILE = 'networks/data/latex-cell-bench-synthetic.csv';
+  const geometry = { radius: 0.04, thickness: 0.0015 };
+  function fit(law: 'neo-hookean' | 'gent') {
+    const data = readBenchCsv(readFileSync(FILE, 'utf8'), FILE, { radius: geometry.radius, ambient: 101325 });
+    if (!data.ok) throw new Error('bench data');
+    const r = fitWall(data.value, law, geometry, FILE);
+    if (!r.ok) throw new Error('fit');
+    return { data: data.value, report: r.value };
+  }
+
+  it('a neo-Hookean fit of stiffening (Gent) data warns, names the other laws with their R², and the text and JSON carry it', () => {
+    const { report } = fit('neo-hookean');
+    expect(report.inflation?.r2).toBeLessThan(0.5);
+    const w = report.warnings.find((x) => x.startsWith('inflation:'));
+    expect(w).toMatch(/the neo-hookean law does not describe these readings \(R² = /);
+    expect(w).toMatch(/gent: R² = 0\.99\d+/);
+    expect(w).toContain('mooney-rivlin: R² = ');
+    expect(fitText(report)).toContain('WARNING: inflation: the neo-hookean law');
+    expect(JSON.parse(fitJson(report)).warnings.length).toBe(2);
+  });
+
+  it('the Gent fit of the same data raises no warning', () => {
+    expect(fit('gent').report.warnings).toEqual([]);
+  });
+
+  it('the measured snippet starts at the first reading and ends at the last', () => {
+    const { data, report } = fit('gent');
+    const snippet = measuredSnippet(report) ?? '';
+    const points = [...snippet.matchAll(/- \[([\d.]+) mL, (-?[\d.]+) kPa\]/g)].map((m) => Number(m[1]));
+    const v0 = (4 / 3) * Math.PI * geometry.radius ** 3 * 1e6;
+    const up = data.rows.slice(0, report.inflation?.points ?? 0);
+    const first = Math.min(...up.map((r) => v0 * r.stretch ** 3));
+    const last = Math.max(...up.map((r) => v0 * r.stretch ** 3));
+    expect(points[0]).toBeCloseTo(first, 1);
+    expect(points.slice(0, 20).some((v) => Math.abs(v - last) < 0.05)).toBe(true);
+  });
 });
