@@ -302,7 +302,7 @@ function pathTable(input: ReportInput): string {
       valveNames.length ? (choked ? 'yes' : 'no') : '–',
     ];
   });
-  return rows.length ? table(['path', 'element', 'peak flow', 'net moved', 'peak Re (regime)', 'choked'], rows, [0, 1]) : '<p>No lines or valves.</p>';
+  return rows.length ? table(['path', 'element', 'peak flow (+ from → to)', 'net moved', 'peak Re (regime)', 'choked'], rows, [0, 1]) : '<p>No lines or valves.</p>';
 }
 
 function boundaryTable(input: ReportInput): string {
