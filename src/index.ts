@@ -40,7 +40,7 @@ export { reportInput, type ReportInput, type ReportInputOptions, type Equilibriu
 export { reportHtml } from './report/html.js';
 export { reportFigures, type Figure, type FigureOptions } from './report/plots.js';
 export {
-  findEquilibria, restSetup, groupEquilibria, groupStability,
+  findEquilibria, openDuringRun, restSetup, groupEquilibria, groupStability,
   type EquilibriaOptions, type EquilibriaResult, type NetworkEquilibrium, type GroupResult, type GroupEquilibrium,
   type ChamberRest, type TransientMatch, type ValveState, type GasSource,
 } from './equilibria/equilibria.js';

@@ -20,6 +20,11 @@ function printDiagnostics(ds: readonly Diagnostic[]): void {
  * netlist; prints its warnings; on any error prints the diagnostics and throws a UsageError.
  */
 export function loadOrExit(file: string, read: ReturnType<typeof readNetlistFile> = readNetlistFile(file)): Model {
+  return loadWithWarnings(file, read).model;
+}
+
+/** loadOrExit, also giving back the netlist's warnings (for reports that show them). */
+export function loadWithWarnings(file: string, read: ReturnType<typeof readNetlistFile> = readNetlistFile(file)): { model: Model; warnings: Diagnostic[] } {
   const m = 'text' in read ? loadModel(read.text, netlistName(file)) : { ok: false as const, diagnostics: [read.tooLarge] };
   if (!m.ok) {
     const errs = m.diagnostics;
@@ -28,5 +33,5 @@ export function loadOrExit(file: string, read: ReturnType<typeof readNetlistFile
     throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${netlistName(file)}; nothing was simulated or written`);
   }
   printDiagnostics(m.warnings);
-  return m.value;
+  return { model: m.value, warnings: m.warnings };
 }

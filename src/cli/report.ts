@@ -6,8 +6,8 @@
  */
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { findEquilibria, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
-import { loadOrExit } from './load.js';
+import { findEquilibria, formatDiagnostic, openDuringRun, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
+import { loadWithWarnings } from './load.js';
 import { checkOutputPaths, checkPlotsDir, emit, toStdout, UsageError, writeOutput } from './io.js';
 import { progressLine, simulationProgress } from './progress.js';
 
@@ -49,12 +49,16 @@ export function writePlots(dir: string, model: Model, result: RunResult): string
  */
 const EQUILIBRIA_MAX_CHAMBERS = 150;
 
-function restStates(model: Model): { equilibria?: ReturnType<typeof findEquilibria>['equilibria']; equilibriaNote?: string } {
+function restStates(model: Model, result: RunResult): { equilibria?: ReturnType<typeof findEquilibria>['equilibria']; equilibriaNote?: string; equilibriaGas?: 'start' | 'end' } {
   if (model.chambers.length > EQUILIBRIA_MAX_CHAMBERS) {
     return { equilibriaNote: `Equilibria are not marked for a network of more than ${EQUILIBRIA_MAX_CHAMBERS} chambers (this one has ${model.chambers.length}); \`plenum equilibria\` computes them.` };
   }
   try {
-    return { equilibria: findEquilibria(model, { transient: false }).equilibria };
+    // the gas the run ends with when it exchanged gas with reservoirs or feeds (as plenum
+    // equilibria does by default): marks for the start's gas can lie far from the trajectory
+    const end = openDuringRun(model) && result.status === 'completed';
+    const masses = end ? model.chambers.map((c) => result.chambers[c.name]?.final.mass ?? c.m0) : undefined;
+    return { equilibria: findEquilibria(model, { transient: false, gas: end ? 'end' : 'start', ...(masses ? { masses } : {}) }).equilibria, equilibriaGas: end ? 'end' : 'start' };
   } catch {
     return {};
   }
@@ -69,12 +73,12 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
   // Ctrl-C stops the run; the report then covers what was computed (exit 3)
   const stop = interruptOnSigint();
   try {
-    const model = loadOrExit(file);
+    const { model, warnings: netlistWarnings } = loadWithWarnings(file);
     const line = progressLine(opts.quiet);
     const result = await simulateInterruptibly(model, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
     line.clear();
     if (!opts.quiet) log.write(summaryText(result));
-    emit(opts.out, reportHtml(reportInput(model, result, { version: opts.version, ...restStates(model) })), '--out');
+    emit(opts.out, reportHtml(reportInput(model, result, { version: opts.version, netlistWarnings: netlistWarnings.map(formatDiagnostic), ...restStates(model, result) })), '--out');
     const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
     if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {

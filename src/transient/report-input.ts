@@ -99,6 +99,12 @@ export interface ReportInput {
   equilibria?: EquilibriumMark[];
   /** Why the equilibria are not marked, when they are not (shown with the pressure–volume figure). */
   equilibriaNote?: string;
+  /** Whose gas the marked equilibria hold: the gas at the start, or at the end of the run. */
+  equilibriaGas?: 'start' | 'end';
+  /** The netlist's warnings (formatted diagnostics). */
+  netlistWarnings?: string[];
+  /** Per expectation (in order): the probe's quantity, or `fraction` for `settles`, to show `actual` in its unit. */
+  expectationUnits?: string[];
   /** plenum's version, for the report's footer. */
   version?: string;
 }
@@ -106,6 +112,9 @@ export interface ReportInput {
 export interface ReportInputOptions {
   equilibria?: EquilibriumMark[];
   equilibriaNote?: string;
+  equilibriaGas?: 'start' | 'end';
+  /** The netlist's warnings (formatted diagnostics), for the report's warnings section. */
+  netlistWarnings?: string[];
   version?: string;
 }
 
@@ -263,6 +272,9 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
     walls,
     equilibria: options.equilibria,
     equilibriaNote: options.equilibriaNote,
+    ...(options.equilibriaGas ? { equilibriaGas: options.equilibriaGas } : {}),
+    netlistWarnings: options.netlistWarnings ?? [],
+    expectationUnits: doc.expect.map((e) => (e.kind === 'settles' ? 'fraction' : e.probe.quantity)),
     version: options.version,
   };
 }
