@@ -21,13 +21,24 @@ DAMAGES OR OTHER LIABILITY, WHETHER IN AN ACTION OF CONTRACT, TORT OR OTHERWISE,
 OUT OF OR IN CONNECTION WITH THE SOFTWARE OR THE USE OR OTHER DEALINGS IN THE SOFTWARE.`;
 
 /**
+ * Source files of this project carried over from a package (its licence travels with them):
+ * the file and the package it came from.
+ */
+const CARRIED = [{ file: 'src/solve/odex-core.ts', from: 'node_modules/odex' }];
+
+/**
  * Package directories (`node_modules/a`, `node_modules/@s/b`, nested too) behind the inputs,
- * each with the input files taken from it.
+ * each with the input files taken from it; code carried over into src/ counts for its package.
  */
 export function bundledPackages(metafiles) {
   const dirs = new Map();
   for (const meta of metafiles) {
     for (const input of Object.keys(meta.inputs)) {
+      const carried = CARRIED.find((c) => input === c.file);
+      if (carried) {
+        if (!dirs.has(carried.from)) dirs.set(carried.from, new Set());
+        continue;
+      }
       const m = /^(.*node_modules\/(?:@[^/]+\/)?[^/]+)\//.exec(input);
       if (!m) continue;
       if (!dirs.has(m[1])) dirs.set(m[1], new Set());
