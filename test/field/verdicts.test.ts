@@ -13,16 +13,20 @@ import { modelFromText, runChecked } from '../helpers.js';
 
 const PA = 101325;
 
-describe('outcome: round-off is not an oscillation (item 11)', () => {
-  const model = modelFromText(`
+/** Two 1 L rigid tanks at `pa` and `pb` kPa gauge joined by a line; `rest` ends the netlist. */
+function tanks(pa: number, pb: number, rest: string): string {
+  return `
 format: 1
 chambers:
-  a: { wall: rigid, volume: 1 L, start: { pressure: 5 kPa gauge } }
-  b: { wall: rigid, volume: 1 L, start: { pressure: 5 kPa gauge } }
+  a: { wall: rigid, volume: 1 L, start: { pressure: ${pa} kPa gauge } }
+  b: { wall: rigid, volume: 1 L, start: { pressure: ${pb} kPa gauge } }
 lines:
   j: { from: a, to: b, diameter: 1 mm, length: 1 m }
-simulate: { duration: 20 s, sample: 10 ms, tolerance: 1e-6 }
-`);
+${rest}`;
+}
+
+describe('outcome: round-off is not an oscillation (item 11)', () => {
+  const model = modelFromText(tanks(5, 5, 'simulate: { duration: 20 s, sample: 10 ms, tolerance: 1e-6 }\n'));
   /** a decays slowly towards its end; b sits still apart from a wiggle of `amp` Pa, period 5 s. */
   function trace(amp: number): Trace {
     const times: number[] = [];
@@ -52,17 +56,7 @@ simulate: { duration: 20 s, sample: 10 ms, tolerance: 1e-6 }
 
 describe('settles: relative to the excursion, with a floor, as the outcome judges it (item 12)', () => {
   // two equal rigid tanks at 10 and 0 kPa gauge equalise at 5 kPa gauge
-  const net = (checks: string) => `
-format: 1
-chambers:
-  a: { wall: rigid, volume: 1 L, start: { pressure: 10 kPa gauge } }
-  b: { wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }
-lines:
-  j: { from: a, to: b, diameter: 1 mm, length: 1 m }
-simulate: { duration: 30 s, sample: 10 ms, tolerance: 1e-8 }
-expect:
-${checks}
-`;
+  const net = (checks: string): string => tanks(10, 0, `simulate: { duration: 30 s, sample: 10 ms, tolerance: 1e-8 }\nexpect:\n${checks}\n`);
 
   it('two tanks going from 10 and 0 kPa gauge to 5 kPa gauge do not "settle within 5 %" from t = 0', () => {
     const r = runChecked(modelFromText(net('  - { name: at once, settles: { within: 0 s, band: 5% } }')));
