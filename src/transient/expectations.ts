@@ -443,11 +443,11 @@ export class ExpectationMonitor {
     }
     const passed = worst.rel <= s.band;
     const after = `for t ≥ ${time(s.within)}`;
-    const of = ofFinal ? 'of their final values' : 'of their excursions';
+    const of = ofFinal ? 'of their final values' : 'of their excursions from their final values';
     if (passed) {
       return {
         passed, actual: worst.rel,
-        message: `every chamber's pressure and volume stay within ${pct(s.band)} ${of} from their final values ${after} (largest deviation ${pct(worst.rel)}${worst.key ? `, ${worst.key} at t = ${time(worst.t)}` : ''})`,
+        message: `every chamber's pressure and volume stay within ${pct(s.band)} ${of} ${after} (largest deviation ${pct(worst.rel)}${worst.key ? `, ${worst.key} at t = ${time(worst.t)}` : ''})`,
       };
     }
     const kind: DisplayKind = worst.key.endsWith('.pressure') ? 'pressure' : 'volume';
