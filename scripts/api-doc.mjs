@@ -7,7 +7,7 @@ import ts from 'typescript';
 
 const INTRO = `# plenum as a library: API reference
 
-Generated from \`src/index.ts\` by \`npm run api-doc\` (a test fails when this page is stale).
+Generated from \`src/index.ts\` by \`npm run api-doc\` (a test fails when an export is missing here).
 Import from \`'plenum'\` (ESM) or \`require('plenum')\` (CommonJS); the README's *Library*
 section has a worked example. All numbers are SI: pressure Pa absolute (\`gauge\` Pa gauge),
 volume m³, mass kg, temperature K, time s, flow kg/s. Functions that read input return a
