@@ -25,7 +25,7 @@ const common = {
 
 const esm = await build({
   ...common,
-  entryPoints: { 'cli/main': 'src/cli/main.ts', index: 'src/index.ts', 'cli/check-worker': 'src/cli/check-worker.ts', 'studies/sweep-worker': 'src/studies/sweep-worker.ts', 'cli/run-worker': 'src/cli/run-worker.ts' },
+  entryPoints: { 'cli/main': 'src/cli/main.ts', index: 'src/index.ts', 'cli/check-worker': 'src/cli/check-worker.ts', 'studies/sweep-worker': 'src/studies/sweep-worker.ts', 'studies/eval-worker': 'src/studies/eval-worker.ts', 'cli/run-worker': 'src/cli/run-worker.ts' },
   outdir: 'dist',
   splitting: true,
   format: 'esm',

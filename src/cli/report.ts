@@ -6,7 +6,8 @@
  */
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { findEquilibria, formatDiagnostic, openDuringRun, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
+import { findEquilibria, formatDiagnostic, measuredOverlays, openDuringRun, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
+import { readText } from './study-io.js';
 import { loadWithWarnings } from './load.js';
 import { checkOutputPaths, checkPlotsDir, emit, toStdout, UsageError, writeOutput } from './io.js';
 import { progressLine, simulationProgress } from './progress.js';
@@ -21,16 +22,18 @@ export interface ReportOptions {
   quiet?: boolean;
   /** plenum's version, for the report's footer. */
   version?: string;
+  /** Bench recordings to overlay (measured CSV). */
+  data?: string[];
 }
 
 /** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */
-export function writePlots(dir: string, model: Model, result: RunResult): string[] {
+export function writePlots(dir: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): string[] {
   try {
     mkdirSync(dir, { recursive: true });
   } catch (e) {
     throw new UsageError(`cannot create --plots ${dir} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
   }
-  const figures = reportFigures(reportInput(model, result), { standalone: true });
+  const figures = reportFigures(reportInput(model, result, { measured }), { standalone: true });
   return figures.map((f) => {
     const path = join(dir, `${f.id}.svg`);
     writeOutput(path, f.svg, '--plots');
@@ -74,12 +77,24 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
   const stop = interruptOnSigint();
   try {
     const { model, warnings: netlistWarnings } = loadWithWarnings(file);
+    // recordings are checked before anything runs: bad data is exit 2 with nothing written
+    let measured: MeasuredOverlay[] | undefined;
+    if (opts.data?.length) {
+      const inputs = opts.data.map((d) => ({ file: d, text: readText(d, 'the recording') }));
+      const o = measuredOverlays(model, inputs);
+      if (!o.ok) {
+        const n = o.diagnostics.length;
+        throw new UsageError(`${o.diagnostics.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'} in the recordings; nothing was written`);
+      }
+      measured = o.value.overlays;
+      for (const note of o.value.notes) process.stderr.write(`plenum: note: ${note}\n`);
+    }
     const line = progressLine(opts.quiet);
     const result = await simulateInterruptibly(model, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
     line.clear();
     if (!opts.quiet) log.write(summaryText(result));
-    emit(opts.out, reportHtml(reportInput(model, result, { version: opts.version, netlistWarnings: netlistWarnings.map(formatDiagnostic), ...restStates(model, result) })), '--out');
-    const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
+    emit(opts.out, reportHtml(reportInput(model, result, { version: opts.version, measured, netlistWarnings: netlistWarnings.map(formatDiagnostic), ...restStates(model, result) })), '--out');
+    const plots = opts.plots ? writePlots(opts.plots, model, result, measured) : [];
     if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
