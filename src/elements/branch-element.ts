@@ -63,35 +63,37 @@ export function scheduleStill(s: Schedule | null, t0: number, t1: number): boole
   return true;
 }
 
-export class BranchElement implements Element {
+export class BranchElement extends BranchState implements Element {
   readonly kind: string;
   readonly name: string;
-  readonly state: BranchState;
   /** The flow at the evaluated point. */
-  readonly flow: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
+  readonly current: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
   private readonly nodes: Nodes;
   private readonly withT: boolean;
   private readonly bp: BranchPartials = { q: 0, dp1: 0, dp2: 0, dT1: 0, dT2: 0 };
   private link = -1;
   /** Time of the evaluated point (observe has no t of its own). */
   private t = 0;
+  /** A relief valve's open state, the one mode of a branch (others have none: not in the memo key). */
+  readonly mode?: () => number;
 
-  constructor(readonly b: BranchModel, private readonly asm: Assembly, readonly from: number, readonly to: number) {
+  constructor(b: BranchModel, private readonly asm: Assembly, readonly from: number, readonly to: number) {
+    super(b, asm.gas, asm.pa);
     this.kind = b.kind;
     this.name = b.name;
-    this.state = new BranchState(b, asm.gas, asm.pa);
     this.nodes = asm.nodes;
     this.withT = asm.model.heat !== 'isothermal';
+    if (b.valve?.operation.kind === 'relief') this.mode = () => (this.open ? 1 : 0);
   }
 
   evaluate(t: number): void {
     this.t = t;
     const n = this.nodes, i = this.from, j = this.to;
-    this.state.flow(t, n.p[i], n.p[j], n.T[i], n.T[j], this.flow);
+    this.flow(t, n.p[i], n.p[j], n.T[i], n.T[j], this.current);
   }
 
   load(dydt: Float64Array): void {
-    this.nodes.between(dydt, this.from, this.to, this.flow.mdot);
+    this.nodes.between(dydt, this.from, this.to, this.current);
   }
 
   reserveJacobian(r: JacobianReserve): void {
@@ -100,30 +102,26 @@ export class BranchElement implements Element {
 
   loadJacobian(t: number, values: Float64Array): void {
     const n = this.nodes, a = this.from, c = this.to;
-    // this.flow is the flow at these end states (from the rhs just evaluated)
-    this.state.partials(t, n.p[a], n.p[c], n.T[a], n.T[c], this.withT, this.bp, this.flow);
+    // this.current is the flow at these end states (from the rhs just evaluated)
+    this.partials(t, n.p[a], n.p[c], n.T[a], n.T[c], this.withT, this.bp, this.current);
     n.transferJacobian(this.link, a, c, this.bp, values);
   }
 
   breakpoints(): number[] {
-    return this.state.schedule?.breakpoints ?? [];
+    return this.schedule?.breakpoints ?? [];
   }
 
   atBreakpoint(t: number, log: LoggedEvent[]): void {
-    if (this.state.schedule) describeSchedule(t, 'valve', this.name, this.state.schedule, log);
+    if (this.schedule) describeSchedule(t, 'valve', this.name, this.schedule, log);
   }
 
   timeInvariant(t0: number, t1: number): boolean {
-    return scheduleStill(this.state.schedule, t0, t1);
-  }
-
-  mode(): number {
-    return this.state.open ? 1 : 0;
+    return scheduleStill(this.schedule, t0, t1);
   }
 
   events(): ElementEvent[] {
     const op = this.b.valve?.operation;
-    const n = this.nodes, a = this.from, c = this.to, name = this.name, st = this.state, pa = this.asm.pa;
+    const n = this.nodes, a = this.from, c = this.to, name = this.name, st = this, pa = this.asm.pa;
     if (op?.kind === 'relief') {
       return [{
         kind: 'relief', element: name,
@@ -176,10 +174,10 @@ export class BranchElement implements Element {
   }
 
   /** Opening 0..1 at the evaluated point (see the file comment). */
-  opening(): number {
+  openingNow(): number {
     const op = this.b.valve?.operation;
     if (op?.kind === 'check') return this.nodes.p[this.from] - op.cracking - this.nodes.p[this.to] > 0 ? 1 : 0;
-    return this.state.opening(this.t);
+    return this.opening(this.t);
   }
 
   channels(): Channel[] {
@@ -193,18 +191,18 @@ export class BranchElement implements Element {
   }
 
   observe(_y: Float64Array, out: Float64Array, k: number): number {
-    const f = this.flow;
+    const f = this.current;
     out[k++] = f.mdot;
     out[k++] = f.reynolds;
-    if (this.b.kind === 'valve') out[k++] = this.opening();
+    if (this.b.kind === 'valve') out[k++] = this.openingNow();
     const op = this.operation;
-    if (op === 'check' || op === 'relief') out[k++] = this.opening() > 0 ? 1 : 0;
+    if (op === 'check' || op === 'relief') out[k++] = this.openingNow() > 0 ? 1 : 0;
     if (this.b.hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
     return k;
   }
 
   summaries(): ElementSummary[] {
-    const b = this.b, f = this.flow;
+    const b = this.b, f = this.current;
     const pk = { flow: 0, re: 0, choked: false };
     const track = (): void => {
       if (Math.abs(f.mdot) > Math.abs(pk.flow)) pk.flow = f.mdot;
@@ -220,7 +218,7 @@ export class BranchElement implements Element {
       // the opening's range and its value at the end; a relief or check valve's openings counted
       const op = { min: Infinity, max: -Infinity, last: 0, opens: 0, open: false };
       const trackOpening = (): void => {
-        const x = this.opening();
+        const x = this.openingNow();
         op.min = Math.min(op.min, x);
         op.max = Math.max(op.max, x);
         op.last = x;
