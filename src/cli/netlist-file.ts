@@ -35,7 +35,7 @@ export type BoundedRead = { text: string } | { tooLarge: Diagnostic } | { unread
  * be read (`ENOENT` as "no such file"; `directory` set for a directory). `-` reads standard
  * input (a pipe is read once, so the caller keeps the text).
  */
-export function readBounded(file: string): BoundedRead {
+export function readBounded(file: string, what = 'the netlist'): BoundedRead {
   let fd: number;
   // /dev/stdin is read from the descriptor itself: reopening it fails for a socket (ENXIO)
   const stdin = file === STDIN || file === '/dev/stdin';
@@ -67,8 +67,8 @@ export function readBounded(file: string): BoundedRead {
         return {
           tooLarge: {
             code: 'input-too-large', severity: 'error', file: netlistName(file), line: 1, column: 1, path: [],
-            message: st.isFile() ? `the netlist is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
-            hint: 'split the network or generate a smaller netlist',
+            message: st.isFile() ? `${what} is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
+            hint: what === 'the netlist' ? 'split the network or generate a smaller netlist' : `plenum reads inputs up to ${limit}`,
           },
         };
       }
@@ -78,4 +78,15 @@ export function readBounded(file: string): BoundedRead {
   } finally {
     if (!stdin) closeSync(fd);
   }
+}
+
+/**
+ * The text of an input file other than a netlist (bench data, a trace, a shard), read with the
+ * same limit; anything that cannot be read, or is too large, is a usage error naming it.
+ */
+export function readInputFile(file: string, what: string): string {
+  const r = readBounded(file, what);
+  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
+  if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; nothing was read`);
+  return r.text;
 }

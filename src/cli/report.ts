@@ -4,12 +4,11 @@
  * Nothing is written when the netlist is invalid (exit 2); a run that stops early still gets
  * its report, saying so (exit 3).
  */
-import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { findEquilibria, formatDiagnostic, measuredOverlays, openDuringRun, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
 import { readText } from './study-io.js';
 import { loadWithWarnings } from './load.js';
-import { checkOutputPaths, checkPlotsDir, emit, toStdout, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, checkPlotsDir, makePlotsDir, samePath, toStdout, UsageError, writeOutputs, type OutputFile } from './io.js';
 import { progressLine, simulationProgress } from './progress.js';
 
 export { checkPlotsDir };
@@ -26,19 +25,25 @@ export interface ReportOptions {
   data?: string[];
 }
 
-/** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */
-export function writePlots(dir: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): string[] {
-  try {
-    mkdirSync(dir, { recursive: true });
-  } catch (e) {
-    throw new UsageError(`cannot create --plots ${dir} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
-  }
+/**
+ * The SVG files of the figures for `--plots DIR`, one a figure (none is written yet). The
+ * netlist is never among them: a figure that would land on it is refused (exit 2).
+ */
+export function plotFiles(dir: string, netlist: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): OutputFile[] {
   const figures = reportFigures(reportInput(model, result, { measured }), { standalone: true });
   return figures.map((f) => {
     const path = join(dir, `${f.id}.svg`);
-    writeOutput(path, f.svg, '--plots');
-    return path;
+    if (samePath(path, netlist)) throw new UsageError(`refusing to overwrite the netlist ${netlist} with the figure ${path} (--plots ${dir}); choose another directory`);
+    return { path, text: f.svg, what: '--plots' };
   });
+}
+
+/** Writes `files` and the figures of `--plots DIR` together (DIR is created if needed). */
+export function writeWithPlots(files: OutputFile[], plots: string | undefined, netlist: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): number {
+  const figures = plots ? plotFiles(plots, netlist, model, result, measured) : [];
+  if (plots) makePlotsDir(plots);
+  writeOutputs([...files, ...figures]);
+  return figures.length;
 }
 
 /**
@@ -93,9 +98,11 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
     const result = await simulateInterruptibly(model, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
     line.clear();
     if (!opts.quiet) log.write(summaryText(result));
-    emit(opts.out, reportHtml(reportInput(model, result, { version: opts.version, measured, netlistWarnings: netlistWarnings.map(formatDiagnostic), ...restStates(model, result) })), '--out');
-    const plots = opts.plots ? writePlots(opts.plots, model, result, measured) : [];
-    if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
+    const html = reportHtml(reportInput(model, result, { version: opts.version, measured, netlistWarnings: netlistWarnings.map(formatDiagnostic), ...restStates(model, result) }));
+    // `--out -`: the HTML goes to standard output (the summary went to stderr)
+    if (opts.out === '-') process.stdout.write(html);
+    const plots = writeWithPlots(opts.out === '-' ? [] : [{ path: opts.out, text: html, what: '--out' }], opts.plots, file, model, result, measured);
+    if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots ? `; ${plots} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
       return 3;

@@ -1,9 +1,9 @@
 /** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
 import { formatDiagnostic } from '../diag/diagnostic.js';
 import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
-import { emit, samePath, toStdout, UsageError } from './io.js';
+import { checkOutputPaths, emitOutputs, toStdout, UsageError } from './io.js';
 import { progressLine } from './progress.js';
-import { readBounded } from './netlist-file.js';
+import { readInputFile } from './netlist-file.js';
 
 export interface SweepCliOptions {
   vary: string[];
@@ -34,24 +34,14 @@ function parseShard(text: string | undefined): Shard | undefined {
   return { index, count };
 }
 
-/** A netlist or study file, read with the netlist size limit (a huge file or a device is refused). */
-function readText(file: string, what: string): string {
-  const r = readBounded(file);
-  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
-  if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; ${r.tooLarge.hint}`);
-  return r.text;
-}
-
 export async function sweepCommand(file: string, opts: SweepCliOptions): Promise<number> {
-  for (const out of [opts.csv, opts.json]) {
-    if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
-  }
+  checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json });
   const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json });
   const samples = wholeNumber(opts.samples, '--samples', 1);
   const seed = wholeNumber(opts.seed, '--seed', 0);
   const jobs = wholeNumber(opts.jobs, '--jobs', 1);
   const shard = parseShard(opts.shard);
-  const source = readText(file, 'the netlist');
+  const source = readInputFile(file, 'the netlist');
 
   const line = progressLine(opts.quiet);
   const r = await runSweep({
@@ -71,7 +61,9 @@ export async function sweepCommand(file: string, opts: SweepCliOptions): Promise
     process.stderr.write(`plenum: ${bad.length} of ${result.cases.length} cases did not complete (they count as outcomes); the first, case ${first.index} (${first.params.map((p) => `${p.path} = ${p.text}`).join(', ')}): ${first.status}: ${first.message.split('\n')[0]}\n`);
   }
   if (!opts.quiet) (stdoutTaken ? process.stderr : process.stdout).write(sweepSummaryText(result));
-  if (opts.json) emit(opts.json, sweepJson(result), '--json');
-  if (opts.csv) emit(opts.csv, sweepCsv(result), '--csv');
+  emitOutputs([
+    { path: opts.json, text: () => sweepJson(result), what: '--json' },
+    { path: opts.csv, text: () => sweepCsv(result), what: '--csv' },
+  ]);
   return 0;
 }
