@@ -64,9 +64,11 @@ export class ChamberElement extends ChamberState implements Element {
 
   evaluate(_t: number, y: Float64Array): void {
     const T = this.T >= 0 ? y[this.T] : this.c.T0;
-    const h = this.h >= 0 ? y[this.h] : 1;
+    this.inM = y[this.m];
+    this.inT = T;
+    this.inH = this.h >= 0 ? y[this.h] : 1;
     const s = this.solved;
-    this.solve(y[this.m], T, h, s);
+    this.solveInputs(s);
     const nodes = this.nodes, i = this.node;
     nodes.p[i] = s.p;
     nodes.V[i] = s.V;

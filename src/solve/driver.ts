@@ -169,7 +169,16 @@ function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Floa
     dense(tc, yTmp);
     p.eventValues(tc, yTmp, gTmp);
     const crossed = set.filter((k) => crosses(p, k, gA[k], gTmp[k]));
-    if (crossed.length === 0) break; // round-off at the root: keep hi
+    if (crossed.length === 0) {
+      // `locate` saw kBest on its crossed side at tc, but the value there is of the order of
+      // round-off and a re-evaluation can come out on the other side (a chamber's volume solve
+      // is warm-started from the last one, so the same point can differ in the last bits).
+      // The crossing is at tc: keeping hi fired it at the step's end instead, up to a whole
+      // step late (a relief valve set at 150 kPa gauge opened at 174 kPa, found by calibration).
+      hi = tc;
+      gAt.set(gTmp);
+      return { t: hi, crossed: [kBest] };
+    }
     hi = tc;
     gAt.set(gTmp);
     if (crossed.length === 1) return { t: hi, crossed };
