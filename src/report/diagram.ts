@@ -7,6 +7,10 @@
  * References: Sugiyama, Tagawa & Toda, "Methods for visual understanding of hierarchical system
  * structures", IEEE Trans. SMC 11(2) (1981) 109–125 (layers, barycentre ordering to reduce
  * crossings).
+ *
+ * Why one file above 500 lines: layout, symbol drawing and labelling share one coordinate
+ * frame; a split into layout and symbols (with cylinders, check and relief valves) is the next
+ * step when another symbol is added.
  */
 import type { ReportInput } from '../transient/report-input.js';
 import { cylinderSummary } from '../transient/results.js';

@@ -19,6 +19,10 @@
  * step, state and dense value. Entries the package leaves `undefined` until written start as
  * NaN here, which behaves the same in arithmetic and comparisons.
  *
+ * Why one file above 500 lines: it is the package's loop kept statement for statement so that the
+ * bit-identity test can hold; splitting it would separate code that must be read against its
+ * original side by side.
+ *
  * References: Hairer, Nørsett & Wanner, Solving Ordinary Differential Equations I, 2nd ed.,
  * Springer 1993, §II.9 (ODEX and its dense output); odex 2.0.4 (BSD 2-clause), whose notice
  * follows.
