@@ -13,7 +13,7 @@ const ori: ValveRating = { kind: 'orifice', diameter: 1e-3, dischargeCoefficient
 describe('valve flow from a rating (ISO 6358-1:2013; Anderson ch. 5)', () => {
   it('forward flow equals the rated law, scaled by the opening; choked flag', () => {
     const a = valveFlow(iso, 600e3, 400e3, 293.15, 300, air, 1);
-    expect(rel(a.mdot, 6.05655e-3)).toBeLessThan(2e-7); // references.md, ISO 6358 worked value
+    expect(rel(a.mdot, 6.05655e-3)).toBeLessThan(2e-7); // docs/references.md, ISO 6358 worked value
     expect(a.choked).toBe(false);
     expect(rel(valveFlow(iso, 600e3, 400e3, 293.15, 300, air, 0.25).mdot, 0.25 * a.mdot)).toBeLessThan(1e-14);
     expect(valveFlow(iso, 600e3, 100e3, 293.15, 300, air, 1).choked).toBe(true);

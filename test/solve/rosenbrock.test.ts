@@ -2,7 +2,7 @@
 // Sources: Hairer & Wanner, Solving ODEs II, 2nd ed. 1996, §VI.4 (RODAS: order 4, L-stable,
 // stiffly accurate, dense output of order 3) and §IV.3 (stability function R(z) of a
 // one-step method applied to y' = λy, z = hλ); the tank closed form from
-// /work/shared/references.md ("Rigid tank through a laminar capillary").
+// docs/references.md ("Rigid tank through a laminar capillary").
 import { describe, expect, it } from 'vitest';
 import { rosenbrockFixedSteps } from '../../src/solve/rosenbrock.js';
 import type { OdeProblem } from '../../src/solve/types.js';
@@ -24,7 +24,7 @@ function stabilityFunction(z: number): number {
 // Rigid 1 L tank discharging through a 0.3 mm × 1 m laminar capillary, isothermal air at
 // 293.15 K: dp/dt = −k(p² − pa²), k = πD⁴/(256 μ L V) (Hagen–Poiseuille at the mean density;
 // Bird, Stewart & Lightfoot, Transport Phenomena, 2nd ed., §2.3). μ from Sutherland's law as
-// in references.md.
+// in docs/references.md.
 const D = 0.3e-3; // m
 const Lc = 1; // m
 const V = 1e-3; // m³
@@ -67,7 +67,7 @@ describe('RODAS stability function (Hairer & Wanner II, §VI.4 and §IV.3)', () 
 });
 
 describe('RODAS convergence with fixed steps (Hairer & Wanner II, §VI.4: order 4)', () => {
-  it('closed form of the tank blowdown matches the worked numbers in references.md', () => {
+  it('closed form of the tank blowdown matches the worked numbers in docs/references.md', () => {
     // The worked numbers are printed to 0.01 Pa and 0.001 s: agree to within that rounding.
     expect(Math.abs(pExact(100) - 262498.02)).toBeLessThanOrEqual(0.005 + 1e-9);
     expect(Math.abs(pExact(600) - 170397.16)).toBeLessThanOrEqual(0.005 + 1e-9);
