@@ -141,7 +141,13 @@ function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Floa
     dense(tc, yTmp);
     p.eventValues(tc, yTmp, gTmp);
     const crossed = set.filter((k) => crosses(p, k, gA[k], gTmp[k]));
-    if (crossed.length === 0) break; // round-off at the root: keep hi
+    if (crossed.length === 0) {
+      // round-off at the root: re-evaluated there, kBest's function is back on its old side
+      // by a few ulps (a state solve warm-started from elsewhere). It crosses at tc all the
+      // same; firing the whole set at hi instead would fire it late by up to a step.
+      gAt.set(gTmp);
+      return { t: tc, crossed: [kBest] };
+    }
     hi = tc;
     gAt.set(gTmp);
     if (crossed.length === 1) return { t: hi, crossed };
