@@ -18,7 +18,7 @@ import type { Gas } from '../physics/gas.js';
 import type { EventfulProblem } from '../solve/driver.js';
 import type { Model, NodeRef } from '../model/types.js';
 import { ChamberState } from '../elements/chamber.js';
-import { BranchState, type BranchFlow } from '../elements/branch.js';
+import { BranchState, emptyBranchFlow, type BranchFlow } from '../elements/branch.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import type { SparsePattern } from '../linalg/sparse-pattern.js';
 import { NetworkJacobian } from './jacobian.js';
@@ -128,7 +128,7 @@ export class NetworkSystem implements EventfulProblem {
     this.mIn = new Float64Array(nc);
     this.mOut = new Float64Array(nc);
     this.hIn = new Float64Array(nc);
-    this.flows = model.branches.map(() => ({ mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const }));
+    this.flows = model.branches.map(() => emptyBranchFlow());
     this.feedFlow = new Float64Array(model.feeds.length);
     this.energyRows = !this.isothermal || model.chambers.some((c) => c.deflation !== undefined);
     this.memoY = new Float64Array(this.n);

@@ -53,6 +53,7 @@
  */
 import type { Model, HeatMode, ChamberModel, BranchModel, NodeRef } from '../model/types.js';
 import { NetworkSystem } from '../assemble/system.js';
+import { emptyBranchFlow } from '../elements/branch.js';
 import type { WallLaw, WallPoint } from '../physics/wall.js';
 import { brent } from '../physics/roots.js';
 import { solveVolume, vacuumVolume } from '../model/volume.js';
@@ -783,7 +784,7 @@ export function steadyPressures(setup: RestSetup, g: RestGroup): { p: Float64Arr
   const pos = new Map(g.chambers.map((c, i) => [c, i] as const));
   const resP = g.reservoirs.map((r) => model.reservoirs[r].pressure.at(t));
   const p = new Float64Array(n).fill(resP.reduce((a, x) => a + x, 0) / resP.length);
-  const flow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const } as { mdot: number; reynolds: number; choked: boolean; regime: 'laminar' | 'transitional' | 'turbulent' | 'orifice' };
+  const flow = emptyBranchFlow();
   const scale = new Float64Array(n);
   const residual = (x: Float64Array, out: Float64Array): void => {
     out.fill(0);

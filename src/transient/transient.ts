@@ -31,6 +31,20 @@ const DEFAULT_SAMPLES = 1000;
 /** Relative mass drift above which a run warns (the integrators conserve mass to round-off). */
 const DRIFT_WARN = 1e-9;
 
+/**
+ * Laminar lines neglect the gas's acceleration (physics/line-flow.ts); a run warns when the
+ * neglected term exceeds this fraction of the friction term (the flow is then high by about half
+ * of it).
+ */
+const ACCEL_WARN = 0.05;
+
+/** The system's event log and the lines' choking changes, in time order (stable). */
+function mergeEvents(log: readonly { t: number; what: string }[], more: readonly { t: number; what: string }[]): { t: number; what: string }[] {
+  const all = log.map((e) => ({ t: e.t, what: e.what }));
+  if (more.length === 0) return all;
+  return all.concat(more).map((e, k) => ({ e, k })).sort((a, b) => a.e.t - b.e.t || a.k - b.k).map((x) => x.e);
+}
+
 function regimeOf(re: number): LineSummary['regime'] {
   return re < 2300 ? 'laminar' : re > 4000 ? 'turbulent' : 'transitional';
 }
@@ -64,7 +78,12 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const nc = model.chambers.length;
   const nb = model.branches.length;
   const peak = model.chambers.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
-  const bPeak = model.branches.map(() => ({ flow: 0, re: 0, choked: false }));
+  const bPeak = model.branches.map(() => ({ flow: 0, re: 0, choked: false, lineChoked: false, mach: 0, accel: 0, tAccel: 0 }));
+  // lines choking: detected at step ends and samples (the time is that of the first step end or
+  // sample at which the new state is seen, so within one step of the change)
+  const lineChokedNow = new Uint8Array(nb);
+  const chokeLog: { t: number; what: string }[] = [];
+  const lineNames = model.branches.map((b) => (b.kind === 'line' ? b.name : b.hostLine));
   const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
   let lastProgress = 0;
 
@@ -87,6 +106,14 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
       if (Math.abs(f.mdot) > Math.abs(bp.flow)) bp.flow = f.mdot;
       if (f.reynolds > bp.re) bp.re = f.reynolds;
       if (f.choked) bp.choked = true;
+      if (f.lineChoked) bp.lineChoked = true;
+      if (f.mach > bp.mach) bp.mach = f.mach;
+      if (f.regime === 'laminar' && f.accel > bp.accel) { bp.accel = f.accel; bp.tAccel = t; }
+      const ln = lineNames[b];
+      if (ln && (f.lineChoked ? 1 : 0) !== lineChokedNow[b]) {
+        lineChokedNow[b] = f.lineChoked ? 1 : 0;
+        chokeLog.push({ t, what: `line ${ln} ${f.lineChoked ? 'starts' : 'stops'} choking` });
+      }
     }
     if (options.progress && Date.now() - lastProgress > 100) {
       lastProgress = Date.now();
@@ -134,7 +161,12 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const valves: Record<string, ValveSummary> = {};
   model.branches.forEach((b, i) => {
     const lineName = b.kind === 'line' ? b.name : b.hostLine;
-    if (lineName) lines[lineName] = { peak_flow: bPeak[i].flow, peak_reynolds: bPeak[i].re, regime: regimeOf(bPeak[i].re) };
+    if (lineName) {
+      lines[lineName] = {
+        peak_flow: bPeak[i].flow, peak_reynolds: bPeak[i].re, regime: regimeOf(bPeak[i].re),
+        choked: bPeak[i].lineChoked, peak_mach: bPeak[i].mach,
+      };
+    }
     if (b.kind === 'valve') valves[b.name] = { peak_flow: bPeak[i].flow, choked: bPeak[i].choked };
   });
   const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
@@ -151,6 +183,12 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     }
   }
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
+  model.branches.forEach((b, i) => {
+    const a = bPeak[i].accel;
+    if (lineNames[i] && a > ACCEL_WARN) {
+      warnings.push(`line ${lineNames[i]}: laminar flow, where the gas's acceleration is neglected (compressible Hagen–Poiseuille law); the neglected term reached ${(100 * a).toPrecision(2)} % of the friction term at t = ${display(bPeak[i].tAccel, 'time')}, so the flow there is high by about ${(50 * a).toPrecision(2)} %`);
+    }
+  });
   model.chambers.forEach((c, i) => {
     if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${c.name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
   });
@@ -169,7 +207,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     stats: { method, steps: r.work.steps, rejected: r.work.rejected, rhs: r.work.rhs, jacobians: r.work.jacobians, lu: r.work.lu, wall_ms: Date.now() - started },
     chambers, lines, valves,
     mass: { initial, final, through_boundaries: through, drift },
-    events: sys.log.map((e) => ({ t: e.t, what: e.what })),
+    events: mergeEvents(sys.log, chokeLog),
     warnings,
     expectations,
     ...(fault ? { fault } : {}),

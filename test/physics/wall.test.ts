@@ -42,7 +42,7 @@ describe('sphere walls (Treloar 1975; Ogden 1984; Gent 1996)', () => {
     expect(rel(e.p, 9915.703)).toBeLessThan(1e-7);
   });
 
-  it('Mooney–Rivlin: max then min for C2/C1 = 0.1, none for 0.3; threshold ≈ 0.214 (docs/docs/references.md, from memory)', () => {
+  it('Mooney–Rivlin: max then min for C2/C1 = 0.1, none for 0.3; threshold ≈ 0.214 (docs/references.md, from memory)', () => {
     const k1 = makeWall(mrSpec(0.1), P).extrema;
     expect(k1.map((e) => e.kind)).toEqual(['max', 'min']);
     expect(k1[0].V).toBeLessThan(k1[1].V);

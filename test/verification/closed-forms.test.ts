@@ -1,5 +1,5 @@
 /**
- * Transients against closed-form solutions (docs/docs/references.md, computed independently).
+ * Transients against closed-form solutions (docs/references.md, computed independently).
  */
 import { describe, expect, it } from 'vitest';
 import { at, channel, modelFromText, runChecked } from '../helpers.js';
