@@ -24,7 +24,7 @@ import type { SparsePattern } from '../linalg/sparse-pattern.js';
 import { NetworkJacobian } from './jacobian.js';
 
 export interface SystemEvent {
-  kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch';
+  kind: 'relief' | 'lift' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch';
   element: string;
   index: number;        // chamber or branch index
   direction: number;    // +1, −1, 0
@@ -32,6 +32,8 @@ export interface SystemEvent {
   extremum?: { V: number; p: number; kind: 'max' | 'min' };
   /** For check events: +1 after the valve last opened, −1 after it last closed (see CHECK_DEADBAND). */
   side?: number;
+  /** For lift events (proportional relief): the upstream gauge pressure of the kink, and which one. */
+  lift?: { at: number; end: 'start' | 'full' };
 }
 
 /**
@@ -153,7 +155,11 @@ export class NetworkSystem implements EventfulProblem {
     this.events = [];
     model.branches.forEach((b, i) => {
       const op = b.valve?.operation;
-      if (op?.kind === 'relief') this.events.push({ kind: 'relief', element: b.name, index: i, direction: 0 });
+      if (op?.kind === 'relief' && op.fullLiftAt !== undefined) {
+        // proportional lift: continuous flow, the events only restart the integrator at the kinks
+        this.events.push({ kind: 'lift', element: b.name, index: i, direction: 0, lift: { at: op.opensAbove, end: 'start' } });
+        this.events.push({ kind: 'lift', element: b.name, index: i, direction: 0, lift: { at: op.fullLiftAt, end: 'full' } });
+      } else if (op?.kind === 'relief') this.events.push({ kind: 'relief', element: b.name, index: i, direction: 0 });
       if (op?.kind === 'check') this.events.push({ kind: 'check', element: b.name, index: i, direction: 0, side: -1 });
     });
     model.chambers.forEach((c, i) => {
@@ -344,6 +350,11 @@ export class NetworkSystem implements EventfulProblem {
           out[k] = this.branches[e.index].open ? g - op.reseatsBelow : g - op.opensAbove;
           break;
         }
+        case 'lift': {
+          const bm = this.model.branches[e.index];
+          out[k] = this.p[this.nodeIndex(bm.from)] - this.pa - e.lift!.at;
+          break;
+        }
         case 'check': {
           const bm = this.model.branches[e.index];
           const g = this.checkMargin(e.index);
@@ -381,6 +392,11 @@ export class NetworkSystem implements EventfulProblem {
         note(`relief valve ${e.element} ${b.open ? 'opens' : 'reseats'}`);
         return true;
       }
+      case 'lift':
+        note(e.lift!.end === 'start'
+          ? `relief valve ${e.element} ${rising ? 'starts lifting' : 'reseats'}`
+          : `relief valve ${e.element} ${rising ? 'reaches full lift' : 'leaves full lift'}`);
+        return true;
       case 'check':
         e.side = rising ? 1 : -1;
         note(`check valve ${e.element} ${rising ? 'opens' : 'closes'}`);

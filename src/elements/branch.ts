@@ -7,9 +7,14 @@
  * - check: one-way; the spring holds the cracking pressure pc, so the valve passes flow driven
  *   by (p_from − pc) → p_to while p_from − pc > p_to and none otherwise. The flow is continuous
  *   at the switch (zero on both sides), so opening and closing are logged events, not jumps;
- * - relief: a discrete state, closed → open when the upstream gauge pressure rises through
- *   `opens-above`, open → closed when it falls through `reseats-below` (hysteresis); it
- *   discharges from → to only (never backwards).
+ * - relief, pop action: a discrete state, closed → open when the upstream gauge pressure rises
+ *   through `opens-above`, open → closed when it falls through `reseats-below` (hysteresis);
+ * - relief, proportional lift: the opening follows the upstream gauge pressure, 0 at
+ *   `opens-above`, rising linearly to 1 at `full-lift-at`, the same curve on the way down (no
+ *   hysteresis), so the flow is continuous in the pressure; its events only mark the two kinks.
+ * Both relief kinds discharge from → to only: with the downstream side at the higher pressure
+ * the valve is seated and passes nothing (its rating says nothing about reverse flow, and a
+ * relief valve's disc is pressed onto its seat by back pressure).
  */
 import { ANR, GASES, ISO6358_RHO0, R_UNIVERSAL, type Gas } from '../physics/gas.js';
 
@@ -116,6 +121,13 @@ export class BranchState {
     return 1;
   }
 
+  /** Opening of a proportional relief valve at upstream pressure pFrom (Pa abs): 0..1. */
+  private lift(pFrom: number): number {
+    const op = this.b.valve!.operation as { opensAbove: number; fullLiftAt: number };
+    const x = (pFrom - this.pa - op.opensAbove) / (op.fullLiftAt - op.opensAbove);
+    return x <= 0 ? 0 : x >= 1 ? 1 : x;
+  }
+
   /** Flow from → to for the valve alone, given end pressures and temperatures (into the valve scratch). */
   private valveOnly(p1: number, p2: number, T1: number, T2: number, opening: number): ValveFlow {
     const v = this.b.valve!;
@@ -141,7 +153,8 @@ export class BranchState {
       lineExtras(out, f);
       return;
     }
-    const opening = this.opening(t);
+    const op = b.valve.operation;
+    const opening = op.kind === 'relief' && op.fullLiftAt !== undefined ? this.lift(p1) : this.opening(t);
     if (!b.line) {
       const r = this.valveOnly(p1, p2, T1, T2, opening);
       out.mdot = r.mdot; out.choked = r.choked; out.regime = 'orifice';

@@ -124,7 +124,27 @@ function readOperation(ck: Checker, map: YMap, what: string): ValveOperation | u
       const v = ck.params(m, RELIEF.params);
       const opens = v['opens-above'] as number | undefined;
       const reseats = v['reseats-below'] as number | undefined;
-      if (opens === undefined || reseats === undefined) return undefined;
+      const full = v['full-lift-at'] as number | undefined;
+      const reseatsNode = ck.get(m, 'reseats-below');
+      const fullNode = ck.get(m, 'full-lift-at');
+      if (reseatsNode && fullNode) {
+        ck.error(fullNode, 'conflicting-keys', '`relief` has `reseats-below` and `full-lift-at`; a relief valve acts in one way', 'keep `reseats-below` for pop action or `full-lift-at` for proportional lift');
+        return undefined;
+      }
+      if (!reseatsNode && !fullNode) {
+        ck.error(m, 'missing-key', '`relief` needs `reseats-below` (pop action) or `full-lift-at` (proportional lift)', 'write e.g. `relief: { opens-above: 50 kPa gauge, reseats-below: 45 kPa gauge }` or `relief: { opens-above: 50 kPa gauge, full-lift-at: 55 kPa gauge }`');
+        return undefined;
+      }
+      if (opens === undefined) return undefined;
+      if (fullNode) {
+        if (full === undefined) return undefined;
+        if (!(full > opens)) {
+          ck.error(fullNode, 'out-of-range', '`full-lift-at` must be higher than `opens-above`', 'a proportional relief valve starts lifting at `opens-above` and is fully open at `full-lift-at` (about 10 % above the set pressure is common practice)');
+          return undefined;
+        }
+        return { kind: 'relief', opensAbove: opens, reseatsBelow: opens, fullLiftAt: full };
+      }
+      if (reseats === undefined) return undefined;
       if (!(reseats < opens)) {
         ck.error(ck.get(m, 'reseats-below') ?? m, 'out-of-range', '`reseats-below` must be lower than `opens-above`', 'a relief valve recloses below the pressure at which it opens');
         return undefined;

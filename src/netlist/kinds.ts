@@ -267,8 +267,8 @@ export const VALVE_OPERATIONS: KindTable[] = [
   {
     kind: 'relief',
     section: 'valve-operation',
-    doc: 'relief valve: opens when the upstream gauge pressure rises above opens-above, recloses below reseats-below',
-    params: [p('relief', 'structure', '{ opens-above, reseats-below } (gauge or abs)', { shape: 'relief' })],
+    doc: 'relief valve: pop action (opens above opens-above, recloses below reseats-below) or proportional lift (opens in proportion from opens-above to full-lift-at, recloses on the same curve); discharges from → to only',
+    params: [p('relief', 'structure', '{ opens-above, reseats-below } (pop action) or { opens-above, full-lift-at } (proportional lift), gauge or abs', { shape: 'relief' })],
   },
 ];
 
@@ -284,8 +284,9 @@ export const RELIEF: KindTable = {
   section: 'valve-operation',
   doc: 'relief valve settings (upstream gauge pressure)',
   params: [
-    p('opens-above', 'gauge-pressure', 'opens when the upstream pressure rises above this'),
-    p('reseats-below', 'gauge-pressure', 'closes again when the upstream pressure falls below this (< opens-above)'),
+    p('opens-above', 'gauge-pressure', 'set pressure: opens when the upstream pressure rises above this'),
+    opt('reseats-below', 'gauge-pressure', 'pop action: closes again when the upstream pressure falls below this (< opens-above)'),
+    opt('full-lift-at', 'gauge-pressure', 'proportional lift: fully open at this upstream pressure (> opens-above; about 10 % above the set pressure is common practice)'),
   ],
 };
 

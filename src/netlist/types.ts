@@ -83,7 +83,12 @@ export interface ScheduleStep { at: number; open: number; over: number }
 export type ValveOperation =
   | { kind: 'schedule'; initially: number /* 0..1 */; steps: ScheduleStep[] }
   | { kind: 'check'; cracking: number /* Pa */ }
-  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */ };
+  /**
+   * Pop action (`fullLiftAt` absent): discrete, opens above `opensAbove`, reseats below
+   * `reseatsBelow`. Proportional lift: opening (p_gauge − opensAbove)/(fullLiftAt − opensAbove)
+   * clamped to 0..1, the same curve both ways; `reseatsBelow` then equals `opensAbove`.
+   */
+  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */; fullLiftAt?: number /* Pa gauge */ };
 
 export interface ValveSpec {
   name: string;
