@@ -85,13 +85,13 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
     }
   } else {
     const entry = cx.names.get(element);
-    if (!entry || entry.kind === 'reservoir' || entry.kind === 'feed') {
-      const candidates = [...cx.names.values()].filter((n) => n.kind === 'chamber' || n.kind === 'line' || n.kind === 'valve').map((n) => n.name);
+    if (!entry || !(entry.kind in PROBE_QUANTITIES)) {
+      const candidates = [...cx.names.values()].filter((n) => n.kind in PROBE_QUANTITIES).map((n) => n.name);
       const why = entry ? `\`${element}\` is a ${entry.kind}, which has no probes` : `the probe names \`${element}\`, which is not defined`;
       ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? 'probe a chamber, a line, a valve, or `total.mass`');
       return undefined;
     }
-    kind = entry.kind;
+    kind = entry.kind as keyof typeof PROBE_QUANTITIES;
   }
   const allowed: readonly string[] = PROBE_QUANTITIES[kind];
   const law = kind === 'chamber' ? cx.chambers.get(element)?.wall.law : undefined;

@@ -10,7 +10,7 @@ import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
 import { ExpectationMonitor } from './expectations.js';
 import { diagnoseFault } from './fault.js';
-import type { ChamberSummary, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
+import type { ChamberSummary, ElementSections, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
 import { classifyOutcomes } from './outcome.js';
 
@@ -31,22 +31,11 @@ const DEFAULT_SAMPLES = 1000;
 /** Relative mass drift above which a run warns (the integrators conserve mass to round-off). */
 const DRIFT_WARN = 1e-9;
 
-/**
- * Laminar lines neglect the gas's acceleration (physics/line-flow.ts); a run warns when the
- * neglected term exceeds this fraction of the friction term (the flow is then high by about half
- * of it).
- */
-const ACCEL_WARN = 0.05;
-
-/** The system's event log and the lines' choking changes, in time order (stable). */
-function mergeEvents(log: readonly { t: number; what: string }[], more: readonly { t: number; what: string }[]): { t: number; what: string }[] {
+/** The run log and the changes summaries saw, in time order (stable: the log first at equal times). */
+function mergeSeen(log: readonly { t: number; what: string }[], seen: { t: number; what: string }[]): { t: number; what: string }[] {
   const all = log.map((e) => ({ t: e.t, what: e.what }));
-  if (more.length === 0) return all;
-  return all.concat(more).map((e, k) => ({ e, k })).sort((a, b) => a.e.t - b.e.t || a.k - b.k).map((x) => x.e);
-}
-
-function regimeOf(re: number): LineSummary['regime'] {
-  return re < 2300 ? 'laminar' : re > 4000 ? 'turbulent' : 'transitional';
+  if (seen.length === 0) return all;
+  return all.concat(seen).map((e, k) => ({ e, k })).sort((a, b) => a.e.t - b.e.t || a.k - b.k).map((x) => x.e);
 }
 
 export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array): { integrator: Integrator; name: string; why: string } {
@@ -75,16 +64,8 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   // expectations are judged on the dense output inside every step, not on samples
   const monitor = new ExpectationMonitor(model.expect, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) },
     model.chambers.map((c) => c.name), model.pa);
-  const nc = model.chambers.length;
-  const nb = model.branches.length;
-  const peak = model.chambers.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
-  const bPeak = model.branches.map(() => ({ flow: 0, re: 0, choked: false, lineChoked: false, mach: 0, accel: 0, tAccel: 0 }));
-  // lines choking: detected at step ends and samples (the time is that of the first step end or
-  // sample at which the new state is seen, so within one step of the change)
-  const lineChokedNow = new Uint8Array(nb);
-  const chokeLog: { t: number; what: string }[] = [];
-  const lineNames = model.branches.map((b) => (b.kind === 'line' ? b.name : b.hostLine));
-  const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
+  // every element's summaries (peaks, finals), tracked at samples and step ends
+  const summaries = sys.elements.flatMap((e) => e.summaries?.((key) => keys.get(key)!) ?? []);
   let lastProgress = 0;
 
   const row = new Float64Array(nch);
@@ -94,27 +75,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
       trace.times.push(t);
       for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
     }
-    for (let i = 0; i < nc; i++) {
-      const g = row[gaugeCol[i]];
-      const pk = peak[i];
-      if (g > pk.max) { pk.max = g; pk.tMax = t; }
-      if (g < pk.min) { pk.min = g; pk.tMin = t; }
-    }
-    for (let b = 0; b < nb; b++) {
-      const f = sys.flows[b];
-      const bp = bPeak[b];
-      if (Math.abs(f.mdot) > Math.abs(bp.flow)) bp.flow = f.mdot;
-      if (f.reynolds > bp.re) bp.re = f.reynolds;
-      if (f.choked) bp.choked = true;
-      if (f.lineChoked) bp.lineChoked = true;
-      if (f.mach > bp.mach) bp.mach = f.mach;
-      if (f.regime === 'laminar' && f.accel > bp.accel) { bp.accel = f.accel; bp.tAccel = t; }
-      const ln = lineNames[b];
-      if (ln && (f.lineChoked ? 1 : 0) !== lineChokedNow[b]) {
-        lineChokedNow[b] = f.lineChoked ? 1 : 0;
-        chokeLog.push({ t, what: `line ${ln} ${f.lineChoked ? 'starts' : 'stops'} choking` });
-      }
-    }
+    for (let s = 0; s < summaries.length; s++) summaries[s].track(t, row);
     if (options.progress && Date.now() - lastProgress > 100) {
       lastProgress = Date.now();
       options.progress(t, duration);
@@ -148,27 +109,9 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const yEnd = r.y;
   const rowEnd = new Float64Array(nch);
   sys.observe(r.t, yEnd, rowEnd);
-  const chambers: Record<string, ChamberSummary> = {};
-  model.chambers.forEach((c, i) => {
-    const g = (q: string): number => rowEnd[keys.get(`${c.name}.${q}`)!];
-    const fin: ChamberSummary['final'] = {
-      pressure: g('pressure'), gauge: g('gauge'), volume: g('volume'), mass: g('mass'), temperature: g('temperature'),
-    };
-    if (c.wall.sphere) fin.stretch = g('stretch');
-    chambers[c.name] = { final: fin, peak: { gauge: peak[i].max, at: peak[i].tMax }, least: { gauge: peak[i].min, at: peak[i].tMin } };
-  });
-  const lines: Record<string, LineSummary> = {};
-  const valves: Record<string, ValveSummary> = {};
-  model.branches.forEach((b, i) => {
-    const lineName = b.kind === 'line' ? b.name : b.hostLine;
-    if (lineName) {
-      lines[lineName] = {
-        peak_flow: bPeak[i].flow, peak_reynolds: bPeak[i].re, regime: regimeOf(bPeak[i].re),
-        choked: bPeak[i].lineChoked, peak_mach: bPeak[i].mach,
-      };
-    }
-    if (b.kind === 'valve') valves[b.name] = { peak_flow: bPeak[i].flow, choked: bPeak[i].choked };
-  });
+  const sections: ElementSections = {};
+  for (const s of summaries) (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
+  const { chambers = {}, lines = {}, valves = {}, ...more } = sections;
   const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
@@ -177,21 +120,13 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const warnings: string[] = [];
   const seen = new Set<string>();
   for (const e of sys.log) {
-    if ((e.kind === 'limit-pressure' || e.kind === 'limit-stretch') && !seen.has(e.what)) {
+    if (e.warning && !seen.has(e.what)) {
       seen.add(e.what);
       warnings.push(`${e.what} at t = ${display(e.t, 'time')}: it may burst or yield; see the safety notes`);
     }
   }
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
-  model.branches.forEach((b, i) => {
-    const a = bPeak[i].accel;
-    if (lineNames[i] && a > ACCEL_WARN) {
-      warnings.push(`line ${lineNames[i]}: laminar flow, where the gas's acceleration is neglected (compressible Hagen–Poiseuille law); the neglected term reached ${(100 * a).toPrecision(2)} % of the friction term at t = ${display(bPeak[i].tAccel, 'time')}, so the flow there is high by about ${(50 * a).toPrecision(2)} %`);
-    }
-  });
-  model.chambers.forEach((c, i) => {
-    if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${c.name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
-  });
+  for (const s of summaries) if (s.warnings) warnings.push(...s.warnings());
 
   const expectations = r.status === 'completed'
     ? monitor.results(r.t, yEnd)
@@ -205,9 +140,12 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     message,
     end: r.t,
     stats: { method, steps: r.work.steps, rejected: r.work.rejected, rhs: r.work.rhs, jacobians: r.work.jacobians, lu: r.work.lu, wall_ms: Date.now() - started },
-    chambers, lines, valves,
+    chambers: chambers as unknown as Record<string, ChamberSummary>,
+    lines: lines as unknown as Record<string, LineSummary>,
+    valves: valves as unknown as Record<string, ValveSummary>,
+    ...(Object.keys(more).length ? { sections: more } : {}),
     mass: { initial, final, through_boundaries: through, drift },
-    events: mergeEvents(sys.log, chokeLog),
+    events: mergeSeen(sys.log, summaries.flatMap((s) => s.seen?.() ?? [])),
     warnings,
     expectations,
     ...(fault ? { fault } : {}),

@@ -1,0 +1,21 @@
+/**
+ * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
+ * keeps: gas nodes first (chambers, then reservoirs), so that they evaluate before the elements
+ * between them, then lines and valves, then feeds. The one place that names the kinds: a new
+ * kind adds its line here (and its parameter table, netlist reading and model entry).
+ */
+import type { Model, NodeRef } from '../model/types.js';
+import { BranchElement } from './branch-element.js';
+import { ChamberElement } from './chamber-element.js';
+import type { Assembly, Element } from './contract.js';
+import { FeedElement } from './feed.js';
+import { ReservoirElement } from './reservoir.js';
+
+export function createElements(model: Model, asm: Assembly): Element[] {
+  const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
+  const reservoirs = model.reservoirs.map((r) => new ReservoirElement(r, asm));
+  const node = (n: NodeRef): number => (n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node);
+  const branches = model.branches.map((b) => new BranchElement(b, asm, node(b.from), node(b.to)));
+  const feeds = model.feeds.map((f) => new FeedElement(f, asm, chambers[f.into].node));
+  return [...chambers, ...reservoirs, ...branches, ...feeds];
+}
