@@ -200,7 +200,7 @@ export class BranchState {
     if (!this.b.valve && !withT) {
       if (!known) this.flow(t, p1, p2, T1, T2, f);
       const at = known ?? f;
-      if (at.regime === 'laminar' && !at.limited) {
+      if (at.regime === 'laminar' && !at.limited && !at.lineChoked) {
         // the closed form of the compressible Hagen–Poiseuille law (physics/line-flow.ts: laminar)
         out.q = at.mdot;
         this.linePressurePartials(p1, p2, at.reynolds, p1 >= p2 ? T1 : T2, out);

@@ -24,12 +24,15 @@
  * isentropic mass flux at M1 = 1/√γ), Fanno gives 100 %.
  *
  * Laminar and transitional flow. The acceleration terms (k M1² in step 1, 2 ln(p1/p2) in
- * step 2, and so the choking) carry a weight w(Re): 0 up to Re = 2300, 1 from 4000, the C¹
- * smoothstep of tube.ts between. In laminar flow the law is therefore exactly the compressible
- * Hagen–Poiseuille law (tube.ts), acceleration neglected, a documented choice: its size relative
- * to friction, 2 ln(p1/p2)/(f L/D), is reported as `accel` so that runs can warn when it stops
- * being small. The weight depends on G only, and both terms grow with G, so the flow stays
- * a unique, increasing function of the pressure drop.
+ * step 2) carry a weight w(Re): 0 up to Re = 2300, 1 from 4000, the C¹ smoothstep of tube.ts
+ * between. In laminar flow the law is therefore exactly the compressible Hagen–Poiseuille law
+ * (tube.ts), acceleration neglected, a documented choice: its size relative to friction,
+ * 2 ln(p1/p2)/(f L/D), is reported as `accel` so that runs can warn when it stops being small.
+ * The choking limit is kept in laminar flow all the same: when that law would put the exit
+ * above M = 1/√γ (a capillary into near vacuum), the exit stays at p2* = G √(R T) and
+ * p0² − p2*² = 64 μ L R T G/D² gives the choked G in closed form. The weight depends on G only,
+ * and both terms grow with G, so the flow stays a unique, increasing function of the pressure
+ * drop.
  *
  * Bound. The result never exceeds the ideal nozzle of the line's bore at the upstream state
  * (orifice.ts, subsonic or choked, Cd = 1): no passage of that bore passes more. It binds only
@@ -157,7 +160,20 @@ export function lineFlowInto(
     G = Math.abs(out.mdot) / A;
     Te = T;
     pe = pb;
-    out.accel = (2 * Math.log(p0 / pb)) / (out.friction * (L / D));
+    const cs = Math.sqrt(gas.R * T);
+    if (pb < G * cs) {
+      // the exit would pass M = 1/√γ: choked at pe = G·√(R T), so p0² − (G·√(RT))² = k·G with
+      // k = 64 μ L R T/D² (the laminar law with that exit pressure), a quadratic in G
+      const k = (64 * mu * L * gas.R * T) / (D * D);
+      const RT = gas.R * T;
+      G = (2 * p0 * p0) / (k + Math.sqrt(k * k + 4 * RT * p0 * p0)); // the positive root, without cancellation
+      pe = G * cs;
+      out.choked = true;
+      s0.laminar = false; // the flow is no longer the closed form's
+      out.reynolds = (G * D) / mu;
+      out.friction = 64 / out.reynolds;
+    }
+    out.accel = (2 * Math.log(p0 / pe)) / (out.friction * (L / D));
   } else {
     const s = st;
     s.p0 = p0; s.pb = pb; s.T0 = T; s.R = gas.R; s.gamma = gamma; s.D = D; s.LD = L / D; s.mu = mu;

@@ -140,12 +140,29 @@ describe('line flow: the properties a network solver needs', () => {
   });
 
   it('a tiny bore into near vacuum is held at the ideal nozzle (the bound binds)', () => {
-    const D = 0.1e-3;
-    const f = lineFlow(101.325e3, 100, T, air, D, 3e-3, 0);
-    const noz = orificeMassFlow(101.325e3, 100, T, air.R, air.gamma, (Math.PI / 4) * D * D);
+    const D = 0.02e-3;
+    const f = lineFlow(200e3, 100, T, air, D, 0.1e-3, 0);
+    const noz = orificeMassFlow(200e3, 100, T, air.R, air.gamma, (Math.PI / 4) * D * D);
     expect(f.limited).toBe(true);
     expect(f.mdot).toBe(noz);
     expect(f.choked).toBe(true);
-    expect(tubeFlow(101.325e3, 100, T, air, D, 3e-3, 0).mdot).toBeGreaterThan(noz); // what it would have been
+    expect(tubeFlow(200e3, 100, T, air, D, 0.1e-3, 0).mdot).toBeGreaterThan(2 * noz); // what it would have been
+  });
+
+  it('a laminar capillary into near vacuum chokes at M = 1/√γ: p0² − G²RT = 64 μ L R T G/D² (Shapiro 1953, ch. 6)', () => {
+    const D = 0.1e-3;
+    const L = 3e-3;
+    const mu = air.viscosity(T);
+    const f = lineFlow(101.325e3, 100, T, air, D, L, 0);
+    const k = (64 * mu * L * air.R * T) / (D * D);
+    const RT = air.R * T;
+    const G = (-k + Math.sqrt(k * k + 4 * RT * 101.325e3 ** 2)) / (2 * RT);
+    expect(f.choked).toBe(true);
+    expect(f.limited).toBe(false);
+    expect(f.regime).toBe('laminar');
+    expect(rel(f.mdot, G * (Math.PI / 4) * D * D)).toBeLessThan(1e-12);
+    expect(rel(f.mach, 1 / Math.sqrt(1.4))).toBeLessThan(1e-12);
+    expect(lineFlow(101.325e3, 1000, T, air, D, L, 0).mdot).toBe(f.mdot); // flat below the choking exit pressure
+    expect(tubeFlow(101.325e3, 100, T, air, D, L, 0).mdot).toBeGreaterThan(1.5 * f.mdot);
   });
 });

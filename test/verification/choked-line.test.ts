@@ -44,3 +44,30 @@ describe('1 L receiver at 6 bar gauge vented through a 4 mm × 1 m hose (isother
     });
   }
 });
+
+describe('a capillary whose laminar law would pass more than a nozzle: the ideal nozzle of its bore bounds it (Anderson, Modern Compressible Flow, ch. 5)', () => {
+  it('0.02 mm × 0.1 mm from 400 kPa abs into near vacuum: p = p0·exp(−t/τ), τ = V/(A ψ √(γ R T)) (Cd = 1)', () => {
+    // the laminar law (acceleration neglected, choking at the exit kept) passes more than the
+    // nozzle down to about 110 kPa abs, reached at t ≈ 21 s
+    const r = runChecked(modelFromText(`
+format: 1
+ambient: { pressure: 101.325 kPa, temperature: 293.15 K }
+chambers:
+  cell: { wall: rigid, volume: 1 mL, start: { pressure: 400 kPa abs } }
+reservoirs:
+  vacuum: { pressure: 0.1 kPa abs }
+lines:
+  pinhole: { from: cell, to: vacuum, diameter: 0.02 mm, length: 0.1 mm }
+simulate: { duration: 18 s, sample: 10 ms, tolerance: 1e-10, method: implicit }
+`));
+    const R = 8.314462618 / 0.0289647;
+    const D = 0.02e-3;
+    const A = (Math.PI / 4) * D * D;
+    const psi = Math.pow(2 / 2.4, 2.4 / 0.8);
+    const V = 1e-6 + (A * 0.1e-3) / 2;
+    const tau = V / (A * psi * Math.sqrt(1.4 * R * 293.15));
+    for (const t of [5, 15]) expect(Math.abs(at(r, 'cell.pressure', t) / (400e3 * Math.exp(-t / tau)) - 1)).toBeLessThan(1e-6);
+    expect(r.lines.pinhole.choked).toBe(true);
+    expect(r.lines.pinhole.peak_mach).toBe(1);
+  });
+});
