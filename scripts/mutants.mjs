@@ -46,6 +46,8 @@ export const MUTANTS = [
   ['line-entrance-temperature', 'src/physics/line-flow.ts', 'const T1 = s.T0 / e;', 'const T1 = s.T0;', 'entrance temperature drop dropped'],
   ['line-choke-1pc', 'src/physics/line-flow.ts', 'const pe = Math.max(s.pb, Math.sqrt(w) * ps);', 'const pe = Math.max(s.pb, 1.01 * Math.sqrt(w) * ps);', 'choking exit pressure +1 %'],
   ['line-friction-1pc', 'src/physics/line-flow.ts', 'const f = frictionFactor(Re, s.rel);', 'const f = 1.01 * frictionFactor(Re, s.rel);', 'friction in the compressible law +1 %'],
+  ['line-laminar-choke-dropped', 'src/physics/line-flow.ts', '    if (pb < G * cs) {', '    if (pb < G * cs && false) {', 'choking of laminar lines dropped'],
+  ['line-laminar-choke-1pc', 'src/physics/line-flow.ts', 'const k = (64 * mu * L * gas.R * T) / (D * D);', 'const k = (64.64 * mu * L * gas.R * T) / (D * D);', 'laminar choked law constant +1 %'],
   ['line-nozzle-bound-dropped', 'src/physics/line-flow.ts', '  if (m > nozzle) {', '  if (m > nozzle && false) {', 'nozzle bound dropped'],
   // valve operation
   ['check-cracking-sign', 'src/elements/branch.ts', 'const pEff = p1 - op.cracking;', 'const pEff = p1 + op.cracking;', 'cracking pressure sign swapped'],

@@ -71,3 +71,40 @@ simulate: { duration: 18 s, sample: 10 ms, tolerance: 1e-10, method: implicit }
     expect(r.lines.pinhole.peak_mach).toBe(1);
   });
 });
+
+describe('a laminar capillary into near vacuum chokes at its exit (isothermal flow, Shapiro 1953, ch. 6)', () => {
+  it('0.1 mm × 3 mm from 1 atm: the time to each pressure matches the closed form of dm/dt = −A·G(p)', () => {
+    // exit at M = 1/√γ: p² − G²RT = k G, k = 64 μ L R T/D², so G = 2p²/(k + √(k² + 4RT p²)), and
+    // t(p) = V/(2 R T A)·[F(p0) − F(p)], F(p) = −k/p − √(k² + c p²)/p + √c·asinh(√c p/k), c = 4 R T
+    const r = runChecked(modelFromText(`
+format: 1
+ambient: { pressure: 101.325 kPa, temperature: 293.15 K }
+chambers:
+  cell: { wall: rigid, volume: 10 mL, start: { pressure: 101.325 kPa abs } }
+reservoirs:
+  vacuum: { pressure: 0.1 kPa abs }
+lines:
+  capillary: { from: cell, to: vacuum, diameter: 0.1 mm, length: 3 mm }
+simulate: { duration: 20 s, sample: 5 ms, tolerance: 1e-10, method: implicit }
+`));
+    const R = 8.314462618 / 0.0289647;
+    const T = 293.15;
+    const D = 0.1e-3;
+    const L = 3e-3;
+    const A = (Math.PI / 4) * D * D;
+    const mu = 1.716e-5 * Math.pow(T / 273.15, 1.5) * (273.15 + 110.4) / (T + 110.4);
+    const k = (64 * mu * L * R * T) / (D * D);
+    const c = 4 * R * T;
+    const V = 10e-6 + (A * L) / 2;
+    const F = (p: number): number => -k / p - Math.sqrt(k * k + c * p * p) / p + Math.sqrt(c) * Math.asinh((Math.sqrt(c) * p) / k);
+    const tOf = (p: number): number => (V / (2 * R * T * A)) * (F(101325) - F(p));
+    for (const p of [80e3, 50e3, 30e3]) {
+      const t = tOf(p);
+      expect(t).toBeLessThan(20);
+      expect(Math.abs(at(r, 'cell.pressure', t) / p - 1)).toBeLessThan(1e-6);
+    }
+    expect(r.lines.capillary.regime).toBe('laminar');
+    expect(r.lines.capillary.choked).toBe(true);
+    expect(Math.abs(r.lines.capillary.peak_mach - 1 / Math.sqrt(1.4))).toBeLessThan(1e-9);
+  });
+});
