@@ -17,7 +17,7 @@ import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } 
 import { readPressureSeries } from './time-series.js';
 import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
 import { parseYamlTree } from './yaml-tree.js';
-import type { YMap, YNode } from './yaml-types.js';
+import type { YamlTree, YMap, YNode } from './yaml-types.js';
 
 const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
 
@@ -139,7 +139,11 @@ function defined<T>(xs: (T | undefined)[]): T[] {
 
 /** Reads and validates a netlist. `file` is used in diagnostics and as the default title. */
 export function readNetlist(source: string, file: string): Result<NetlistDoc> {
-  const tree = parseYamlTree(source, file);
+  return readNetlistTree(parseYamlTree(source, file), source, file);
+}
+
+/** readNetlist on a tree already parsed from `source` (or edited from one: see override.ts). */
+export function readNetlistTree(tree: YamlTree, source: string, file: string): Result<NetlistDoc> {
   if (!tree.root) return { ok: false, diagnostics: tree.diagnostics };
   const ck = new Checker(file);
   ck.diagnostics.push(...tree.diagnostics);
