@@ -23,6 +23,7 @@ import type { Assembly, Channel, Element, ElementEvent, LoggedEvent, StateSlot }
 import { K, Nodes } from '../elements/nodes.js';
 import { createElements } from '../elements/registry.js';
 import { BranchElement } from '../elements/branch-element.js';
+import { WaveLineElement } from '../elements/wave-line.js';
 import type { BranchFlow, BranchState } from '../elements/branch.js';
 import { NetworkJacobian } from './jacobian.js';
 
@@ -127,6 +128,8 @@ export class NetworkSystem implements EventfulProblem {
     for (const e of made) e.breakpoints?.().forEach((t) => bps.add(t));
     this.breakpoints = [...bps].sort((a, b) => a - b);
     this.events = made.flatMap((e) => e.events?.() ?? []);
+    // an element without analytic entries: the integrators difference the reserved pattern
+    if (made.some((e) => e.numericJacobian)) Object.defineProperty(this, 'jacobianSparse', { value: undefined });
   }
 
   get nEvents(): number { return this.events.length; }
@@ -151,9 +154,10 @@ export class NetworkSystem implements EventfulProblem {
     return this.branchElements().map((e) => e.flow);
   }
 
-  private branchList: BranchElement[] | null = null;
+  private branchList: (BranchElement | WaveLineElement)[] | null = null;
+  /** In model branch order (a wave line has a flow but no BranchState: the equilibria refuse it). */
   private branchElements(): BranchElement[] {
-    return (this.branchList ??= this.elements.filter((e): e is BranchElement => e instanceof BranchElement));
+    return (this.branchList ??= this.elements.filter((e): e is BranchElement | WaveLineElement => e instanceof BranchElement || e instanceof WaveLineElement)) as BranchElement[];
   }
 
   initialState(): Float64Array {

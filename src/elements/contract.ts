@@ -142,4 +142,9 @@ export interface Element {
   /** Writes its channels' values at the evaluated point from out[k]; returns the next k. */
   observe?(y: Float64Array, out: Float64Array, k: number): number;
   summaries?(column: (key: string) => number): ElementSummary[];
+  /**
+   * True for an element that reserves its jacobian pattern but loads no values (a wave line):
+   * the system then takes the whole jacobian by coloured differences over the pattern.
+   */
+  readonly numericJacobian?: boolean;
 }

@@ -10,12 +10,15 @@ import { ChamberElement } from './chamber-element.js';
 import type { Assembly, Element } from './contract.js';
 import { FeedElement } from './feed.js';
 import { ReservoirElement } from './reservoir.js';
+import { WaveLineElement } from './wave-line.js';
 
 export function createElements(model: Model, asm: Assembly): Element[] {
   const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
   const reservoirs = model.reservoirs.map((r) => new ReservoirElement(r, asm));
   const node = (n: NodeRef): number => (n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node);
-  const branches = model.branches.map((b) => new BranchElement(b, asm, node(b.from), node(b.to)));
+  const branches = model.branches.map((b) => (b.line?.wave
+    ? new WaveLineElement(b, asm, node(b.from), node(b.to))
+    : new BranchElement(b, asm, node(b.from), node(b.to))));
   const feeds = model.feeds.map((f) => new FeedElement(f, asm, chambers[f.into].node));
   return [...chambers, ...reservoirs, ...branches, ...feeds];
 }

@@ -5,6 +5,7 @@
  * relation) are diagnostics with the chamber's position.
  */
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
+import { defaultSegments, fastestValveRamp, soundSpeed } from './wave.js';
 import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
 import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
 import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
@@ -154,14 +155,25 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   const dead = new Float64Array(doc.chambers.length);
   const hostedBy = new Map(doc.valves.filter((v) => v.inLine).map((v) => [v.inLine as string, v] as const));
   const branches: BranchModel[] = [];
+  const tRamp = fastestValveRamp(doc);
+  const c = soundSpeed(gas, Ta);
   for (const l of doc.lines) {
     const half = (Math.PI * l.diameter * l.diameter * l.length) / 8;
     const from = node(l.from);
     const to = node(l.to);
-    if (from.kind === 'chamber') dead[from.index] += half;
-    if (to.kind === 'chamber') dead[to.index] += half;
-    const line = { diameter: l.diameter, length: l.length, roughness: l.roughness };
     const v = hostedBy.get(l.name);
+    const line: BranchModel['line'] = { diameter: l.diameter, length: l.length, roughness: l.roughness };
+    if (l.model === 'wave') {
+      // a wave line holds its own gas in its segments (model/wave.ts, elements/wave-line.ts)
+      line.wave = { segments: l.segments ?? defaultSegments(l.length, c, tRamp), given: l.segments !== undefined };
+      if (v) errs.push(diag(v.pos, 'unsupported', `valve ${v.name} sits in wave line ${l.name}: a valve inside a wave line is not supported`, 'put the valve between the line and a small chamber, or make the line `model: lumped`'));
+    } else {
+      if (from.kind === 'chamber') dead[from.index] += half;
+      if (to.kind === 'chamber') dead[to.index] += half;
+      if (l.length / c > 0.1 * tRamp) {
+        warnings.push({ ...diag(l.pos, 'wave-travel', `line ${l.name}: a pressure wave needs ${+(1000 * l.length / c).toPrecision(3)} ms to travel it (L/c), more than a tenth of the fastest valve ramp (${+(1000 * tRamp).toPrecision(3)} ms); the lumped line passes pressure changes at once`, 'add `model: wave` to the line to see the delay and the reflections'), severity: 'warning' });
+      }
+    }
     branches.push(v
       ? { name: v.name, kind: 'valve', from, to, line, hostLine: l.name, valve: { rating: v.rating, operation: v.operation } }
       : { name: l.name, kind: 'line', from, to, line });

@@ -36,7 +36,13 @@ export interface ReservoirModel {
   T: number;
 }
 
-export interface LineGeometry { diameter: number; length: number; roughness: number }
+export interface LineGeometry {
+  diameter: number;
+  length: number;
+  roughness: number;
+  /** A wave line (elements/wave-line.ts): its segment count, and whether the netlist gave it. */
+  wave?: { segments: number; given: boolean };
+}
 
 export interface BranchModel {
   name: string;

@@ -58,8 +58,18 @@ export function readLine(ck: Checker, entry: NameEntry, names: Names): LineSpec 
     diameter: v.diameter as number,
     length: v.length as number,
     roughness: v.roughness as number,
+    model: (v.model as 'lumped' | 'wave' | undefined) ?? 'lumped',
     pos: ck.sourcePos(entry.where),
   };
+  const segNode = ck.get(map, 'segments');
+  if (segNode) {
+    if (v.segments === undefined) return undefined;
+    if (spec.model !== 'wave') {
+      ck.error(segNode, 'conflicting-keys', `${what} has \`segments\` but is a lumped line`, 'add `model: wave`, or remove `segments`');
+      return undefined;
+    }
+    spec.segments = v.segments as number;
+  }
   if (spec.roughness >= spec.diameter / 2) {
     ck.error(ck.get(map, 'roughness') ?? map, 'out-of-range', '`roughness` must be much smaller than the diameter', 'typical roughness is 0 to a few µm');
     return undefined;

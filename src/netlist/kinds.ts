@@ -85,6 +85,7 @@ function opt(name: string, dimension: ParamDimension, doc: string, extra: Partia
 
 export const GAS_NAMES = ['air', 'nitrogen', 'helium', 'carbon-dioxide'] as const;
 export const HEAT_MODES = ['isothermal', 'adiabatic', 'exchange'] as const;
+export const LINE_MODELS = ['lumped', 'wave'] as const;
 export const METHODS = ['auto', 'explicit', 'implicit'] as const;
 export const STATS = ['max', 'min', 'mean'] as const;
 export const SPHERE_LAWS = ['neo-hookean', 'mooney-rivlin', 'gent'] as const;
@@ -212,6 +213,8 @@ export const LINE: KindTable = {
       default: 0,
       bounds: NON_NEGATIVE,
     }),
+    opt('model', 'enum', 'lumped: one resistance, the line volume split between its ends; wave: segments of gas mass, momentum and energy, so pressure waves travel at the speed of sound', { values: LINE_MODELS, default: 'lumped' }),
+    opt('segments', 'integer', 'segments of a wave line (default from its length and the fastest valve ramp: docs/wave-lines.md)', { bounds: { ge: 1, le: 2000 } }),
   ],
 };
 

@@ -70,6 +70,10 @@ export interface LineSpec {
   diameter: number;   // m
   length: number;     // m
   roughness: number;  // m
+  /** `lumped` (one resistance) or `wave` (segments; elements/wave-line.ts). */
+  model: 'lumped' | 'wave';
+  /** Segments of a wave line when given (else the default of model/wave.ts). */
+  segments?: number;
   pos: SourcePos;
 }
 

@@ -14,6 +14,8 @@ export interface LineSummary {
   choked: boolean;
   /** Largest exit Mach number (isothermal lines choke at 1/√γ; physics/line-flow.ts). */
   peak_mach: number;
+  /** Segments of a wave line (elements/wave-line.ts). */
+  segments?: number;
 }
 export interface ValveSummary { peak_flow: number; choked: boolean }
 

@@ -53,6 +53,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const started = Date.now();
   const sys = new NetworkSystem(model);
   const y0 = sys.initialState();
+  const initialMass = sys.totalMass(y0); // the chambers' gas, and any held by wave lines
   sys.settleInitialModes(0, y0);
   const { integrator, name: chosen } = chooseMethod(model, sys, y0);
   const duration = model.simulate.duration;
@@ -112,7 +113,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const sections: ElementSections = {};
   for (const s of summaries) (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
   const { chambers = {}, lines = {}, valves = {}, ...more } = sections;
-  const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
+  const initial = initialMass;
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
   const drift = (final - initial - through) / initial;
