@@ -87,7 +87,7 @@ describe('plenum check', () => {
     expect(all.code).toBe(2);
     expect(all.out).toMatch(/^ERROR .*typo\.yaml {2}invalid netlist/m);
     expect(all.out).toMatch(/typo\.yaml:\d+:\d+: error \[unknown-key\]/);
-    expect(all.out).toMatch(/^ERROR .*budget\.yaml {2}the simulation stopped before the end \(6 s\): step budget/m);
+    expect(all.out).toMatch(/^ERROR .*budget\.yaml {2}the simulation stopped before the end \(8 s\): step budget/m);
     expect(all.out).toMatch(/^skip {2}.*budget\.yaml:\d+:5 {2}/m);
     // the report is written whatever the exit code; errors are <error> testcases
     const root = junit(report);
