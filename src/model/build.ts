@@ -171,7 +171,9 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
       if (from.kind === 'chamber') dead[from.index] += half;
       if (to.kind === 'chamber') dead[to.index] += half;
       if (l.length / c > 0.1 * tRamp) {
-        warnings.push({ ...diag(l.pos, 'wave-travel', `line ${l.name}: a pressure wave needs ${+(1000 * l.length / c).toPrecision(3)} ms to travel it (L/c), more than a tenth of the fastest valve ramp (${+(1000 * tRamp).toPrecision(3)} ms); the lumped line passes pressure changes at once`, 'add `model: wave` to the line to see the delay and the reflections'), severity: 'warning' });
+        warnings.push({ ...diag(l.pos, 'wave-travel', `line ${l.name}: a pressure wave needs ${+(1000 * l.length / c).toPrecision(3)} ms to travel it (L/c), more than a tenth of the fastest valve ramp (${+(1000 * tRamp).toPrecision(3)} ms); the lumped line passes pressure changes at once`, v
+          ? `to see the delay and the reflections, give the valve ${v.name} its own small chamber and make the line \`model: wave\` (a valve inside a wave line is not supported)`
+          : 'add `model: wave` to the line to see the delay and the reflections'), severity: 'warning' });
       }
     }
     branches.push(v
