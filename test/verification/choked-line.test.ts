@@ -45,21 +45,24 @@ describe('1 L receiver at 6 bar gauge vented through a 4 mm × 1 m hose (isother
   }
 });
 
+/** A rigid cell vented through one line into a reservoir at 0.1 kPa abs. */
+const toVacuum = (V: string, p0: string, line: string, duration: string): ReturnType<typeof runChecked> => runChecked(modelFromText(`
+format: 1
+ambient: { pressure: 101.325 kPa, temperature: 293.15 K }
+chambers:
+  cell: { wall: rigid, volume: ${V}, start: { pressure: ${p0} } }
+reservoirs:
+  vacuum: { pressure: 0.1 kPa abs }
+lines:
+  ${line}
+simulate: { duration: ${duration}, sample: 5 ms, tolerance: 1e-10, method: implicit }
+`));
+
 describe('a capillary whose laminar law would pass more than a nozzle: the ideal nozzle of its bore bounds it (Anderson, Modern Compressible Flow, ch. 5)', () => {
   it('0.02 mm × 0.1 mm from 400 kPa abs into near vacuum: p = p0·exp(−t/τ), τ = V/(A ψ √(γ R T)) (Cd = 1)', () => {
     // the laminar law (acceleration neglected, choking at the exit kept) passes more than the
     // nozzle down to about 110 kPa abs, reached at t ≈ 21 s
-    const r = runChecked(modelFromText(`
-format: 1
-ambient: { pressure: 101.325 kPa, temperature: 293.15 K }
-chambers:
-  cell: { wall: rigid, volume: 1 mL, start: { pressure: 400 kPa abs } }
-reservoirs:
-  vacuum: { pressure: 0.1 kPa abs }
-lines:
-  pinhole: { from: cell, to: vacuum, diameter: 0.02 mm, length: 0.1 mm }
-simulate: { duration: 18 s, sample: 10 ms, tolerance: 1e-10, method: implicit }
-`));
+    const r = toVacuum('1 mL', '400 kPa abs', 'pinhole: { from: cell, to: vacuum, diameter: 0.02 mm, length: 0.1 mm }', '18 s');
     const R = 8.314462618 / 0.0289647;
     const D = 0.02e-3;
     const A = (Math.PI / 4) * D * D;
@@ -76,17 +79,7 @@ describe('a laminar capillary into near vacuum chokes at its exit (isothermal fl
   it('0.1 mm × 3 mm from 1 atm: the time to each pressure matches the closed form of dm/dt = −A·G(p)', () => {
     // exit at M = 1/√γ: p² − G²RT = k G, k = 64 μ L R T/D², so G = 2p²/(k + √(k² + 4RT p²)), and
     // t(p) = V/(2 R T A)·[F(p0) − F(p)], F(p) = −k/p − √(k² + c p²)/p + √c·asinh(√c p/k), c = 4 R T
-    const r = runChecked(modelFromText(`
-format: 1
-ambient: { pressure: 101.325 kPa, temperature: 293.15 K }
-chambers:
-  cell: { wall: rigid, volume: 10 mL, start: { pressure: 101.325 kPa abs } }
-reservoirs:
-  vacuum: { pressure: 0.1 kPa abs }
-lines:
-  capillary: { from: cell, to: vacuum, diameter: 0.1 mm, length: 3 mm }
-simulate: { duration: 20 s, sample: 5 ms, tolerance: 1e-10, method: implicit }
-`));
+    const r = toVacuum('10 mL', '101.325 kPa abs', 'capillary: { from: cell, to: vacuum, diameter: 0.1 mm, length: 3 mm }', '20 s');
     const R = 8.314462618 / 0.0289647;
     const T = 293.15;
     const D = 0.1e-3;

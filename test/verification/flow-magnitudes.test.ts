@@ -206,18 +206,15 @@ describe('an air-rated valve passing helium: choked flow 0.394 of air’s (equiv
 });
 
 describe('relief valves (common practice; ISO 4126-1 terms: set pressure, overpressure, from memory)', () => {
+  /** A 0.5 L chamber fed at 0.5 g/s, relieved to ambient by a valve rated 0.3 L/(s·bar), set at 300 kPa gauge. */
+  const fedRelief = (action: string): ReturnType<typeof runChecked> => runChecked(modelFromText(receiver('isothermal', '0.5 L', '0 kPa gauge', `feeds:
+  fill: { into: receiver, rate: 0.5 g/s }
+valves:
+  relief: { from: receiver, to: ambient, conductance: 0.3 L/(s*bar), critical-ratio: 0.3, relief: { opens-above: 300 kPa gauge, ${action} } }`, '20 s')));
   // A chamber fed at q through a proportional relief valve rated C (ISO 6358, choked into ambient):
   // at rest q = x·C ρ0 p (T = T0), x = (p − pa − ps)/(pf − ps), a quadratic in p.
   it('proportional lift holds a fed chamber where the relief passes the feed (the closed form of q = K(p)·x)', () => {
-    const r = runChecked(modelFromText(receiver('isothermal', '0.5 L', '0 kPa gauge', `feeds:
-  fill: { into: receiver, rate: 0.5 g/s }
-valves:
-  relief:
-    from: receiver
-    to: ambient
-    conductance: 0.3 L/(s*bar)
-    critical-ratio: 0.3
-    relief: { opens-above: 300 kPa gauge, full-lift-at: 330 kPa gauge }`, '20 s')));
+    const r = fedRelief('full-lift-at: 330 kPa gauge');
     const q = 0.5e-3;
     const K = 3e-9 * 1.185; // C ρ0, kg/(s·Pa)
     const ps = 300e3;
@@ -234,15 +231,7 @@ valves:
   });
 
   it('pop action with the same feed cycles between its set and reseat pressures', () => {
-    const r = runChecked(modelFromText(receiver('isothermal', '0.5 L', '0 kPa gauge', `feeds:
-  fill: { into: receiver, rate: 0.5 g/s }
-valves:
-  relief:
-    from: receiver
-    to: ambient
-    conductance: 0.3 L/(s*bar)
-    critical-ratio: 0.3
-    relief: { opens-above: 300 kPa gauge, reseats-below: 280 kPa gauge }`, '20 s')));
+    const r = fedRelief('reseats-below: 280 kPa gauge');
     expect(r.chambers.receiver.peak.gauge).toBeLessThan(300e3 * (1 + 1e-6));
     expect(r.events.filter((e) => e.what === 'relief valve relief opens').length).toBeGreaterThan(3);
   });
