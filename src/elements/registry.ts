@@ -1,12 +1,13 @@
 /**
  * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
- * keeps: gas nodes first (chambers, then reservoirs), so that they evaluate before the elements
+ * keeps: gas nodes first (chambers, then reservoirs, then cylinders, whose two sides are nodes), so that they evaluate before the elements
  * between them, then lines and valves, then feeds. The one place that names the kinds: a new
  * kind adds its line here (and its parameter table, netlist reading and model entry).
  */
 import type { Model, NodeRef } from '../model/types.js';
 import { BranchElement } from './branch-element.js';
 import { ChamberElement } from './chamber-element.js';
+import { CylinderElement } from './cylinder-element.js';
 import type { Assembly, Element } from './contract.js';
 import { FeedElement } from './feed.js';
 import { ReservoirElement } from './reservoir.js';
@@ -15,10 +16,14 @@ import { WaveLineElement } from './wave-line.js';
 export function createElements(model: Model, asm: Assembly): Element[] {
   const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
   const reservoirs = model.reservoirs.map((r) => new ReservoirElement(r, asm));
-  const node = (n: NodeRef): number => (n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node);
+  const cylinders = model.cylinders.map((c) => new CylinderElement(c, asm));
+  const node = (n: NodeRef): number => {
+    if (n.kind === 'port') return n.side === 'cap' ? cylinders[n.index].capNode : cylinders[n.index].rodNode;
+    return n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node;
+  };
   const branches = model.branches.map((b) => (b.line?.wave
     ? new WaveLineElement(b, asm, node(b.from), node(b.to))
     : new BranchElement(b, asm, node(b.from), node(b.to))));
-  const feeds = model.feeds.map((f) => new FeedElement(f, asm, chambers[f.into].node));
-  return [...chambers, ...reservoirs, ...branches, ...feeds];
+  const feeds = model.feeds.map((f) => new FeedElement(f, asm, f.port ? node({ kind: 'port', ...f.port }) : chambers[f.into].node));
+  return [...chambers, ...reservoirs, ...cylinders, ...branches, ...feeds];
 }

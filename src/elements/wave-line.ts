@@ -42,6 +42,7 @@ const MACH_WARN = 0.3;
 /** Pressure (Pa abs) of a node at the start, from the model (chambers: ideal gas over their volume). */
 function startPressure(model: Model, ref: BranchModel['from']): number {
   if (ref.kind === 'reservoir') return model.reservoirs[ref.index].pressure.at(0);
+  if (ref.kind === 'port') throw new Error('a wave line at a cylinder port: model/build.ts refuses it');
   const c = model.chambers[ref.index];
   return (c.m0 * model.gas.R * c.T0) / (c.V0 + c.deadVolume);
 }

@@ -12,6 +12,8 @@ import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/ty
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import type { BranchModel, ChamberModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
+import { buildCylinder, type CylinderModel } from './cylinder.js';
+import { PORT_NAME } from '../netlist/names.js';
 
 const AMBIENT = 'ambient';
 
@@ -138,9 +140,12 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   const chamberIndex = new Map(doc.chambers.map((c, i) => [c.name, i] as const));
   const reservoirs: ReservoirModel[] = doc.reservoirs.map((r) => ({ name: r.name, pressure: r.pressure, T: r.temperature ?? Ta }));
   const reservoirIndex = new Map(reservoirs.map((r, i) => [r.name, i] as const));
+  const cylinderIndex = new Map(doc.cylinders.map((c, i) => [c.name, i] as const));
   const node = (name: string): NodeRef => {
     const c = chamberIndex.get(name);
     if (c !== undefined) return { kind: 'chamber', index: c };
+    const port = PORT_NAME.exec(name);
+    if (port && cylinderIndex.has(port[1])) return { kind: 'port', index: cylinderIndex.get(port[1]) as number, side: port[2] as 'cap' | 'rod' };
     let r = reservoirIndex.get(name);
     if (r === undefined && name === AMBIENT) {
       r = reservoirs.length;
@@ -153,6 +158,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
 
   // Lines: half of each line's volume is lumped into the node at each end.
   const dead = new Float64Array(doc.chambers.length);
+  const deadPort = doc.cylinders.map(() => ({ cap: 0, rod: 0 }));
   const hostedBy = new Map(doc.valves.filter((v) => v.inLine).map((v) => [v.inLine as string, v] as const));
   const branches: BranchModel[] = [];
   const tRamp = fastestValveRamp(doc);
@@ -167,9 +173,12 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
       // a wave line holds its own gas in its segments (model/wave.ts, elements/wave-line.ts)
       line.wave = { segments: l.segments ?? defaultSegments(l.length, c, tRamp), given: l.segments !== undefined };
       if (v) errs.push(diag(v.pos, 'unsupported', `valve ${v.name} sits in wave line ${l.name}: a valve inside a wave line is not supported`, 'put the valve between the line and a small chamber, or make the line `model: lumped`'));
+      if (from.kind === 'port' || to.kind === 'port') errs.push(diag(l.pos, 'unsupported', `wave line ${l.name} ends at a cylinder port: not supported yet`, 'put a small chamber between the line and the cylinder, or make the line `model: lumped`'));
     } else {
-      if (from.kind === 'chamber') dead[from.index] += half;
-      if (to.kind === 'chamber') dead[to.index] += half;
+      for (const end of [from, to]) {
+        if (end.kind === 'chamber') dead[end.index] += half;
+        if (end.kind === 'port') deadPort[end.index][end.side] += half;
+      }
       if (l.length / c > 0.1 * tRamp) {
         warnings.push({ ...diag(l.pos, 'wave-travel', `line ${l.name}: a pressure wave needs ${+(1000 * l.length / c).toPrecision(3)} ms to travel it (L/c), more than a tenth of the fastest valve ramp (${+(1000 * tRamp).toPrecision(3)} ms); the lumped line passes pressure changes at once`, v
           ? `to see the delay and the reflections, give the valve ${v.name} its own small chamber and make the line \`model: wave\` (a valve inside a wave line is not supported)`
@@ -265,9 +274,16 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   });
 
   const rhoAnr = anrDensity(gas);
+  const cylinders: CylinderModel[] = [];
+  doc.cylinders.forEach((c, i) => {
+    const m = buildCylinder(c, deadPort[i], gas, pa, Ta, doc.heat, errs);
+    if (m) cylinders.push(m);
+  });
+
   const feeds: FeedModel[] = doc.feeds.map((f) => ({
     name: f.name,
-    into: chamberIndex.get(f.into) as number,
+    into: chamberIndex.get(f.into) ?? -1,
+    ...(chamberIndex.has(f.into) ? {} : { port: node(f.into) as { index: number; side: 'cap' | 'rod' } }),
     rate: f.rate.kind === 'mass' ? f.rate.value : f.rate.value * rhoAnr,
     T: f.temperature ?? Ta,
     initially: f.initially,
@@ -284,7 +300,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
 
   if (errs.length) return { ok: false, diagnostics: errs };
   const model: Model = {
-    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds,
+    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders,
     simulate: doc.simulate, expect: doc.expect,
   };
   return { ok: true, value: model, warnings };

@@ -31,6 +31,11 @@ const QUANTITY_DIMENSION: Record<ProbeQuantity, Dimension> = {
   stretch: 'dimensionless',
   flow: 'mass-flow',
   reynolds: 'dimensionless',
+  position: 'length',
+  velocity: 'velocity',
+  'stroke-time': 'time',
+  'impact-velocity': 'velocity',
+  dissipated: 'energy',
 };
 
 export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): SimulateSpec | undefined {
@@ -71,7 +76,8 @@ interface ExpectContext {
 function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefined {
   const text = ck.text(node, '`probe`', PROBE_HINT);
   if (text === undefined) return undefined;
-  const m = /^\s*([A-Za-z][A-Za-z0-9_]*)\.([A-Za-z_-]+)\s*$/.exec(text);
+  // the element may be a cylinder's side: `clamp.cap.gauge`
+  const m = /^\s*([A-Za-z][A-Za-z0-9_]*(?:\.(?:cap|rod))?)\.([A-Za-z_-]+)\s*$/.exec(text);
   if (!m) {
     ck.error(node, 'bad-probe', `cannot read the probe \`${text}\``, PROBE_HINT);
     return undefined;
@@ -88,7 +94,7 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
     if (!entry || !(entry.kind in PROBE_QUANTITIES)) {
       const candidates = [...cx.names.values()].filter((n) => n.kind in PROBE_QUANTITIES).map((n) => n.name);
       const why = entry ? `\`${element}\` is a ${entry.kind}, which has no probes` : `the probe names \`${element}\`, which is not defined`;
-      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? 'probe a chamber, a line, a valve, or `total.mass`');
+      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? 'probe a chamber, a line, a valve, a cylinder (or its side `<cylinder>.cap`), or `total.mass`');
       return undefined;
     }
     kind = entry.kind as keyof typeof PROBE_QUANTITIES;
@@ -98,7 +104,7 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
   const sphere = law === undefined || (SPHERE_LAWS as readonly string[]).includes(law);
   if (!allowed.includes(quantity) || (quantity === 'stretch' && !sphere)) {
     const own = allowed.filter((q) => q !== 'stretch' || sphere);
-    const which = kind === 'total' ? '`total`' : `${kind} \`${element}\``;
+    const which = kind === 'total' ? '`total`' : `${kind === 'port' ? 'cylinder side' : kind} \`${element}\``;
     const has = `${which} has ${listChoices(own).replace(/ or (?=[^ ]*$)/, ' and ')}`;
     const close = didYouMean(quantity, own);
     ck.error(node, 'unknown-quantity', `${which} has no quantity \`${quantity}\``, close ? `${close} (${has})` : has);

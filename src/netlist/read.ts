@@ -9,11 +9,12 @@
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { readFeed, readLine, readValve } from './branches.js';
 import { readChamber } from './chambers.js';
+import { readCylinder } from './cylinders.js';
 import { Checker } from './checker.js';
 import { readExpect, readSimulate } from './expect.js';
 import { namedGas } from './gases.js';
 import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
-import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
+import { collectNames, registerPorts, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
 import { readPressureSeries } from './time-series.js';
 import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
 import { parseYamlTree } from './yaml-tree.js';
@@ -86,6 +87,7 @@ function collectSections(ck: Checker, root: YMap, names: Names): Record<ElementK
     const map = node ? ck.map(node, `\`${key}\``, `\`${key}\` maps names to definitions, e.g. \`${key}:\\n  name_1: {...}\``, true) : undefined;
     out[kind] = map ? collectNames(ck, names, kind, map) : [];
   }
+  registerPorts(names, out.cylinder);
   return out;
 }
 
@@ -165,10 +167,9 @@ export function readNetlistTree(tree: YamlTree, source: string, file: string): R
 
   const names: Names = new Map();
   const sections = collectSections(ck, root, names);
-  const chambersNode = ck.get(root, 'chambers');
-  const noChambers = !chambersNode || (chambersNode.kind === 'map' && chambersNode.entries.length === 0) || (chambersNode.kind === 'scalar' && chambersNode.value === null);
-  if (noChambers) {
-    ck.error(ck.missingAt(root, 'chambers'), 'missing-key', 'the netlist has no chambers', 'add `chambers:` with at least one chamber; there is nothing to simulate otherwise');
+  const empty = (node: YNode | undefined): boolean => !node || (node.kind === 'map' && node.entries.length === 0) || (node.kind === 'scalar' && node.value === null);
+  if (empty(ck.get(root, 'chambers')) && empty(ck.get(root, 'cylinders'))) {
+    ck.error(ck.missingAt(root, 'chambers'), 'missing-key', 'the netlist has no chambers', 'add `chambers:` with at least one chamber (or `cylinders:`); there is nothing to simulate otherwise');
   }
   const chambers = defined(sections.chamber.map((e) => readChamber(ck, e, { heat: heat as NetlistDoc['heat'] })));
   const reservoirs = defined(sections.reservoir.map((e) => readReservoir(ck, e, simulate?.duration)));
@@ -177,10 +178,11 @@ export function readNetlistTree(tree: YamlTree, source: string, file: string): R
   const taken = new Map<string, string>();
   const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
+  const cylinders = defined(sections.cylinder.map((e) => readCylinder(ck, e, heat as NetlistDoc['heat'])));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {
-    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds };
+    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, cylinder: cylinders };
     for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
       const got = new Set(read[kind].map((x) => x.name)); // a set: ten thousand chambers are read
       for (const e of sections[kind]) {
@@ -208,6 +210,7 @@ export function readNetlistTree(tree: YamlTree, source: string, file: string): R
     lines,
     valves,
     feeds,
+    cylinders,
     simulate,
     expect,
     defaulted: ck.defaulted.slice(),

@@ -116,6 +116,31 @@ export interface FeedSpec {
   pos: SourcePos;
 }
 
+/** Initial gas of one side of a cylinder. */
+export type PortStartSpec = { by: 'pressure'; value: number /* Pa absolute */; temperature?: number } | { by: 'mass'; value: number /* kg */; temperature?: number };
+
+export interface CylinderSpec {
+  name: string;
+  bore: number;            // m
+  /** Rod diameter, m; undefined for a single-acting cylinder (rod side open to ambient). */
+  rod?: number;
+  stroke: number;          // m
+  deadVolume: { cap: number; rod: number }; // m³ (rod 0 for a single-acting cylinder)
+  movingMass: number;      // kg
+  spring: { rate: number /* N/m */; preload: number /* N */ };
+  /** External load opposing extension, N, as a function of time; undefined: none. */
+  force?: TimeSeries;
+  friction: { static: number; sliding: number; viscous: number }; // N, N, N·s/m
+  /** Angle of the extending direction above the horizontal, rad. */
+  angle: number;
+  start: { position: number /* m */; cap: PortStartSpec; rod?: PortStartSpec };
+  /** h·A of each side in W/K, for heat: exchange. */
+  heatTransfer?: number;
+  pos: SourcePos;
+  /** Positions of individual keys, e.g. fieldPos['start.position']. */
+  fieldPos: Record<string, SourcePos>;
+}
+
 export interface SimulateSpec {
   duration: number;        // s
   sample?: number;         // s
@@ -127,10 +152,11 @@ export interface SimulateSpec {
 
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
-  | 'flow' | 'reynolds';
+  | 'flow' | 'reynolds'
+  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated';
 
 export interface Probe {
-  /** Element name, or 'total' with quantity 'mass'. */
+  /** Element name (a cylinder's side: `clamp.cap`), or 'total' with quantity 'mass'. */
   element: string;
   quantity: ProbeQuantity;
   text: string;
@@ -170,6 +196,7 @@ export interface NetlistDoc {
   lines: LineSpec[];
   valves: ValveSpec[];
   feeds: FeedSpec[];
+  cylinders: CylinderSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
   /** Dotted netlist paths of optional parameters that took their default (e.g. `lines.supply.roughness`). */

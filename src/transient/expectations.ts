@@ -85,6 +85,9 @@ function unitFor(kind: DisplayKind, magnitude: number): Shown {
     case 'temperature': return { scale: 1, offset: -273.15, unit: ' °C' };
     case 'flow': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g/s' } : { scale: 1, offset: 0, unit: ' kg/s' };
     case 'time': return magnitude < 1 && magnitude > 0 ? { scale: 1e3, offset: 0, unit: ' ms' } : { scale: 1, offset: 0, unit: ' s' };
+    case 'position': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' mm' } : { scale: 1, offset: 0, unit: ' m' };
+    case 'velocity': return { scale: 1, offset: 0, unit: ' m/s' };
+    case 'energy': return { scale: 1, offset: 0, unit: ' J' };
     case 'stretch':
     case 'reynolds': return { scale: 1, offset: 0, unit: '' };
   }
@@ -387,7 +390,7 @@ export class ExpectationMonitor {
     }
     const stat = 'over' in s.when ? `${s.when.stat} of ` : '';
     const gauge = q === 'gauge';
-    const kind: DisplayKind = q;
+    const kind: DisplayKind = q === 'stroke-time' ? 'time' : q === 'impact-velocity' ? 'velocity' : q === 'dissipated' ? 'energy' : q;
     // pressures are compared absolute and shown (and reported) in the probe's reference
     const ref = (x: number): number => (gauge ? x - this.pa : x);
     const actual = ref(v);

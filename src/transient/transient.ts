@@ -111,7 +111,11 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const rowEnd = new Float64Array(nch);
   sys.observe(r.t, yEnd, rowEnd);
   const sections: ElementSections = {};
-  for (const s of summaries) (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
+  const rows: NonNullable<RunResult['rows']> = {};
+  for (const s of summaries) {
+    const res = (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
+    if (s.row) (rows[s.section] ??= {})[s.name] = s.row(res);
+  }
   const { chambers = {}, lines = {}, valves = {}, ...more } = sections;
   const initial = initialMass;
   const final = sys.totalMass(yEnd);
@@ -145,6 +149,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     lines: lines as unknown as Record<string, LineSummary>,
     valves: valves as unknown as Record<string, ValveSummary>,
     ...(Object.keys(more).length ? { sections: more } : {}),
+    ...(Object.keys(rows).length ? { rows } : {}),
     mass: { initial, final, through_boundaries: through, drift },
     events: mergeSeen(sys.log, summaries.flatMap((s) => s.seen?.() ?? [])),
     warnings,
