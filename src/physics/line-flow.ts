@@ -69,12 +69,10 @@ export interface LineFlow extends TubeFlow {
   accel: number;
   /** The ideal-nozzle bound set the flow. */
   limited: boolean;
-  /** Mass flux G (kg/(s·m²)) of the last compressible solve: the next one starts near it. */
-  G: number;
 }
 
 export function emptyLineFlow(): LineFlow {
-  return { mdot: 0, reynolds: 0, regime: 'laminar', friction: Infinity, choked: false, mach: 0, accel: 0, limited: false, G: 0 };
+  return { mdot: 0, reynolds: 0, regime: 'laminar', friction: Infinity, choked: false, mach: 0, accel: 0, limited: false };
 }
 
 /** Weight of the acceleration terms: 0 laminar, 1 turbulent, C¹ smoothstep between. */
@@ -84,9 +82,6 @@ export function accelWeight(Re: number): number {
   const s = (Re - RE_LAMINAR) / (RE_TURBULENT - RE_LAMINAR);
   return s * s * (3 - 2 * s);
 }
-
-/** Half-width of the warm-start bracket, relative to the last solution. */
-const WARM = 1e-3;
 
 /** Whether the current evaluation took the laminar closed form. */
 const s0 = { laminar: false };
@@ -183,26 +178,11 @@ export function lineFlowInto(
     const s = st;
     s.p0 = p0; s.pb = pb; s.T0 = T; s.R = gas.R; s.gamma = gamma; s.D = D; s.LD = L / D; s.mu = mu;
     s.rel = roughness / D; s.flux0 = p0 * Math.sqrt(gamma / (gas.R * T));
-    // Bracket: first a narrow one about the last solution (successive evaluations inside an
-    // integration step are close), else Ψ(0) > 0 and the friction-only flow, an upper bound in
-    // practice, doubled if not.
-    G = Number.NaN;
-    const Gw = out.G;
-    if (Gw > 0) {
-      const lo = Gw * (1 - WARM), hi = Gw * (1 + WARM);
-      const flo = psi(lo);
-      if (flo > 0) {
-        const fhi = psi(hi);
-        if (fhi < 0) G = brent(psi, lo, hi, flo, fhi);
-      }
-    }
-    if (Number.isNaN(G)) {
-      let hi = Math.abs(out.mdot) / A;
-      let fhi = psi(hi);
-      for (let i = 0; i < 60 && fhi >= 0; i++) { hi *= 2; fhi = psi(hi); }
-      G = brent(psi, 0, hi, psi(0), fhi);
-    }
-    out.G = G;
+    // Bracket: Ψ(0) > 0; the friction-only flow is an upper bound in practice, doubled if not.
+    let hi = Math.abs(out.mdot) / A;
+    let fhi = psi(hi);
+    for (let i = 0; i < 60 && fhi >= 0; i++) { hi *= 2; fhi = psi(hi); }
+    G = brent(psi, 0, hi, psi(0), fhi);
     psi(G); // leave the scratch at the solution
     const Re = (G * D) / mu;
     out.reynolds = Re;
