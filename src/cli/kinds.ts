@@ -1,6 +1,6 @@
 /** `plenum kinds`: element kinds and wall laws with their parameters, from the parameter tables. */
 import {
-  CHAMBER, CYLINDER, CYLINDER_START, DEAD_VOLUME, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
+  CHAMBER, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
   VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
 } from '../netlist/kinds.js';
 
@@ -16,6 +16,7 @@ const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => str
     tables: [CYLINDER, DEAD_VOLUME, SPRING, FRICTION, MOUNTING, CYLINDER_START, PORT_START],
     label: (t) => (t.kind === 'cylinder' ? 'cylinder' : t.kind === 'port-start' ? 'cylinder start: cap / rod' : `cylinder ${t.kind.replace('cylinder-', '')}`),
   },
+  ...ELEMENT_TABLES.map((k) => ({ title: k.key, tables: [k], label: () => k.kind })),
 ];
 
 function dim(p: ParamSpec): string {

@@ -1,17 +1,26 @@
 /**
  * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
- * keeps: gas nodes first (chambers, then reservoirs, then cylinders, whose two sides are nodes), so that they evaluate before the elements
- * between them, then lines and valves, then feeds. The one place that names the kinds: a new
- * kind adds its line here (and its parameter table, netlist reading and model entry).
+ * keeps: gas nodes first (chambers, then reservoirs, then cylinders, whose two sides are nodes),
+ * so that they evaluate before the elements between them, then lines and valves, then feeds,
+ * then the kinds read from their table alone (netlist/kinds.ts: ELEMENT_TABLES), each made by
+ * its line in MAKERS. The one place that names the kinds: a new kind adds its line here (and its
+ * parameter table; kinds with reading code of their own also their netlist reading and model
+ * entry).
  */
-import type { Model, NodeRef } from '../model/types.js';
+import type { ElementModel, Model, NodeRef } from '../model/types.js';
 import { BranchElement } from './branch-element.js';
 import { ChamberElement } from './chamber-element.js';
 import { CylinderElement } from './cylinder-element.js';
 import type { Assembly, Element } from './contract.js';
 import { FeedElement } from './feed.js';
+import { LeakElement } from './leak.js';
 import { ReservoirElement } from './reservoir.js';
 import { WaveLineElement } from './wave-line.js';
+
+/** Kinds read from their table alone (netlist/kinds.ts: ELEMENT_TABLES): how each makes its element. */
+const MAKERS: Record<string, (m: ElementModel, asm: Assembly, node: (n: NodeRef) => number) => Element> = {
+  leak: (m, asm, node) => new LeakElement(m, asm, node(m.nodes.from)),
+};
 
 export function createElements(model: Model, asm: Assembly): Element[] {
   const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
@@ -25,5 +34,10 @@ export function createElements(model: Model, asm: Assembly): Element[] {
     ? new WaveLineElement(b, asm, node(b.from), node(b.to))
     : new BranchElement(b, asm, node(b.from), node(b.to))));
   const feeds = model.feeds.map((f) => new FeedElement(f, asm, f.port ? node({ kind: 'port', ...f.port }) : chambers[f.into].node));
-  return [...chambers, ...reservoirs, ...cylinders, ...branches, ...feeds];
+  const more = (model.elements ?? []).map((m) => {
+    const make = MAKERS[m.kind];
+    if (!make) throw new Error(`element kind ${m.kind} has a table but no element (elements/registry.ts)`);
+    return make(m, asm, node);
+  });
+  return [...chambers, ...reservoirs, ...cylinders, ...branches, ...feeds, ...more];
 }

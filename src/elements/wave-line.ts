@@ -67,7 +67,7 @@ export class WaveLineElement implements Element {
   private readonly rho: Float64Array;
   private readonly q: Float64Array;
   /** The flow at the from end, for the system's per-branch views (fault diagnosis). */
-  readonly flow: BranchFlow = emptyBranchFlow();
+  readonly current: BranchFlow = emptyBranchFlow();
 
   constructor(readonly b: BranchModel, private readonly asm: Assembly, readonly from: number, readonly to: number) {
     const l = b.line!;
@@ -122,7 +122,7 @@ export class WaveLineElement implements Element {
       if (!(this.p[j] > 0) && this.nodes.fault === null) this.nodes.fault = this.name;
     }
     for (let k = 0; k <= N; k++) this.q[k] = y[this.q0 + k];
-    this.flow.mdot = this.q[0];
+    this.current.mdot = this.q[0];
   }
 
   /** Pressure, temperature and density on the left (k) or right (k + 1) of face k. */

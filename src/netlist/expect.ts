@@ -12,7 +12,7 @@ import { didYouMean, listChoices } from '../diag/did-you-mean.js';
 import type { Dimension } from '../units/dimensions.js';
 import { parseFraction } from '../units/quantity.js';
 import type { Checker } from './checker.js';
-import { EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
+import { ELEMENT_TABLES, EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
 import type { Names } from './names.js';
 import type { ChamberSpec, Comparison, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
 import type { YMap, YNode, YScalar } from './yaml-types.js';
@@ -22,7 +22,7 @@ const COMPARISONS = ['below', 'above', 'near'] as const;
 /** Most output samples a run may record (a million rows; every row is kept in memory). */
 export const MAX_SAMPLES = 1_000_000;
 
-const QUANTITY_DIMENSION: Record<ProbeQuantity, Dimension> = {
+const QUANTITY_DIMENSION: Record<string, Dimension> = {
   pressure: 'pressure',
   gauge: 'pressure',
   volume: 'volume',
@@ -37,6 +37,11 @@ const QUANTITY_DIMENSION: Record<ProbeQuantity, Dimension> = {
   'impact-velocity': 'velocity',
   dissipated: 'energy',
 };
+
+/** The dimension of a probe quantity (built in, or declared by a kind's table). */
+function probeDimension(q: ProbeQuantity): Dimension {
+  return QUANTITY_DIMENSION[q] ?? ELEMENT_TABLES.find((k) => q in k.probes)!.probes[q];
+}
 
 export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): SimulateSpec | undefined {
   if (!node) {
@@ -83,7 +88,7 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
     return undefined;
   }
   const [, element, quantity] = m;
-  let kind: keyof typeof PROBE_QUANTITIES;
+  let kind: string;
   if (element === 'total') {
     kind = 'total';
     if (cx.names.has('total')) {
@@ -97,7 +102,7 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
       ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? 'probe a chamber, a line, a valve, a cylinder (or its side `<cylinder>.cap`), or `total.mass`');
       return undefined;
     }
-    kind = entry.kind as keyof typeof PROBE_QUANTITIES;
+    kind = entry.kind;
   }
   const allowed: readonly string[] = PROBE_QUANTITIES[kind];
   const law = kind === 'chamber' ? cx.chambers.get(element)?.wall.law : undefined;
@@ -125,7 +130,7 @@ function readTime(ck: Checker, node: YNode, what: string, duration?: number): nu
 
 /** A comparison value in the probe's dimension (pressures say gauge or abs → Pa absolute). */
 function readProbeValue(ck: Checker, node: YNode, q: ProbeQuantity, what: string): number | undefined {
-  const dim = QUANTITY_DIMENSION[q];
+  const dim = probeDimension(q);
   if (dim === 'pressure') return ck.absolutePressure(node, what);
   return ck.quantity(node, dim, what);
 }
@@ -135,7 +140,7 @@ function readWithin(ck: Checker, node: YNode, q: ProbeQuantity): { abs: number }
     const r = ck.checked(node, parseFraction(node.value), '`within`', { gt: 0 });
     return r === undefined ? undefined : { rel: r };
   }
-  const dim = QUANTITY_DIMENSION[q];
+  const dim = probeDimension(q);
   const bounds = { gt: 0 };
   const abs =
     dim === 'pressure'

@@ -5,18 +5,21 @@
  */
 import { didYouMean } from '../diag/did-you-mean.js';
 import { IDENTIFIER, type Checker, type Where } from './checker.js';
+import { ELEMENT_TABLES } from './kinds.js';
 import type { YMap, YNode } from './yaml-types.js';
 
-export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'cylinder';
+/** Built-in kinds, and kinds read from their table alone (kinds.ts: ELEMENT_TABLES). */
+export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'cylinder' | (string & {});
 /** What a name can stand for: an element, or one side of a cylinder (`clamp.cap`, `clamp.rod`). */
 export type NameKind = ElementKind | 'port';
-export const SECTIONS: Record<ElementKind, string> = {
+export const SECTIONS: Readonly<Record<string, string>> = {
   chamber: 'chambers',
   reservoir: 'reservoirs',
   line: 'lines',
   valve: 'valves',
   feed: 'feeds',
   cylinder: 'cylinders',
+  ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, k.key])),
 };
 export const AMBIENT = 'ambient';
 /** A cylinder's side as a node: `<cylinder>.cap` or `<cylinder>.rod`. */

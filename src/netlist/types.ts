@@ -150,10 +150,11 @@ export interface SimulateSpec {
   maxWall?: number;        // s
 }
 
+/** Quantities of the built-in kinds; kinds read from their table bring their own (kinds.ts). */
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
   | 'flow' | 'reynolds'
-  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated';
+  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated' | (string & {});
 
 export interface Probe {
   /** Element name (a cylinder's side: `clamp.cap`), or 'total' with quantity 'mass'. */
@@ -182,6 +183,17 @@ export type ExpectSpec =
     }
   | { kind: 'settles'; name: string; within: number; band: number; pos: SourcePos };
 
+/**
+ * An element of a kind read from its table alone (kinds.ts: ELEMENT_TABLES): its parameters as
+ * the table reads them (SI numbers, names as text), by parameter name.
+ */
+export interface ElementSpec {
+  kind: string;
+  name: string;
+  values: Record<string, unknown>;
+  pos: SourcePos;
+}
+
 export interface NetlistDoc {
   file: string;
   /** The source text, kept for reports. */
@@ -197,6 +209,8 @@ export interface NetlistDoc {
   valves: ValveSpec[];
   feeds: FeedSpec[];
   cylinders: CylinderSpec[];
+  /** Elements of kinds read from their table alone. */
+  elements?: ElementSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
   /** Dotted netlist paths of optional parameters that took their default (e.g. `lines.supply.roughness`). */

@@ -28,6 +28,7 @@
  * Numerical Recipes, 3rd ed. (2007), §10.2; vertex of the interpolating parabola, ibid. §10.3,
  * eq. 10.3.1.
  */
+import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import type { ExpectSpec } from '../netlist/types.js';
 import type { DenseOutput } from '../solve/types.js';
 import type { DisplayKind } from '../units/display.js';
@@ -174,6 +175,14 @@ class NodeSet {
   constructor(width: number) {
     this.rows = Array.from({ length: NODES }, () => new Float64Array(width));
   }
+}
+
+/** How a probe quantity is shown: built-in quantities by name, a kind's own by its dimension (kinds.ts). */
+function displayKindOf(q: string): DisplayKind {
+  const named: readonly string[] = ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch', 'flow', 'reynolds', 'time', 'position', 'velocity', 'energy'];
+  if (named.includes(q)) return q as DisplayKind;
+  const dim = ELEMENT_TABLES.find((k) => q in k.probes)?.probes[q];
+  return dim === 'mass-flow' ? 'flow' : dim === 'mass' || dim === 'volume' || dim === 'temperature' || dim === 'time' ? dim : dim === 'pressure' ? 'pressure' : 'reynolds';
 }
 
 export class ExpectationMonitor {
@@ -390,7 +399,7 @@ export class ExpectationMonitor {
     }
     const stat = 'over' in s.when ? `${s.when.stat} of ` : '';
     const gauge = q === 'gauge';
-    const kind: DisplayKind = q === 'stroke-time' ? 'time' : q === 'impact-velocity' ? 'velocity' : q === 'dissipated' ? 'energy' : q;
+    const kind: DisplayKind = q === 'stroke-time' ? 'time' : q === 'impact-velocity' ? 'velocity' : q === 'dissipated' ? 'energy' : displayKindOf(q);
     // pressures are compared absolute and shown (and reported) in the probe's reference
     const ref = (x: number): number => (gauge ? x - this.pa : x);
     const actual = ref(v);
