@@ -6,7 +6,7 @@
 import type { FeedModel } from '../model/types.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import { describeSchedule, scheduleStill } from './branch-element.js';
-import type { Assembly, Element, LoggedEvent } from './contract.js';
+import type { Assembly, Element, EventSink } from './contract.js';
 import { K, type Nodes } from './nodes.js';
 
 export class FeedElement implements Element {
@@ -37,7 +37,7 @@ export class FeedElement implements Element {
     return this.schedule.breakpoints;
   }
 
-  atBreakpoint(t: number, log: LoggedEvent[]): void {
+  atBreakpoint(t: number, log: EventSink): void {
     describeSchedule(t, 'feed', this.name, this.schedule, log);
   }
 
