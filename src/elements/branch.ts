@@ -122,7 +122,7 @@ export class BranchState {
   }
 
   /** Opening of a proportional relief valve at upstream pressure pFrom (Pa abs): 0..1. */
-  private lift(pFrom: number): number {
+  lift(pFrom: number): number {
     const op = this.b.valve!.operation as { opensAbove: number; fullLiftAt: number };
     const x = (pFrom - this.pa - op.opensAbove) / (op.fullLiftAt - op.opensAbove);
     return x <= 0 ? 0 : x >= 1 ? 1 : x;

@@ -235,7 +235,16 @@ function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): E
     return undefined;
   }
   if (within === undefined || v.band === undefined) return undefined;
-  return { kind: 'settles', name, within, band: v.band as number, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  if (ck.get(s, 'relative-to') && v['relative-to'] === undefined) return undefined;
+  const relativeTo = (v['relative-to'] ?? 'excursion') as 'excursion' | 'final-value';
+  return { kind: 'settles', name, within, band: v.band as number, relativeTo, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+}
+
+/** The quantity a probe's text names (`x.gauge` → gauge), whatever its element; or undefined. */
+function probeQuantity(node: YNode): ProbeQuantity | undefined {
+  if (node.kind !== 'scalar' || typeof node.value !== 'string') return undefined;
+  const q = /\.([A-Za-z_-]+)\s*$/.exec(node.value)?.[1];
+  return q !== undefined && q in QUANTITY_DIMENSION ? (q as ProbeQuantity) : undefined;
 }
 
 function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | undefined {
@@ -255,7 +264,10 @@ function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | unde
   const probe = readProbe(ck, probeNode, cx);
   const what = `the expectation \`${name}\``;
   const when = readWhen(ck, map, cx, what);
-  const compare = probe ? readComparison(ck, map, probe.quantity, what) : undefined;
+  // a probe that cannot be resolved (a misspelt element) still names its quantity: the values
+  // are checked in that dimension too, so that every problem shows in one pass
+  const quantity = probe?.quantity ?? probeQuantity(probeNode);
+  const compare = quantity ? readComparison(ck, map, quantity, what) : undefined;
   if (!probe || !when || !compare) return undefined;
   return { kind: 'probe', name, probe, when, compare, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
 }

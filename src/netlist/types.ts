@@ -183,7 +183,14 @@ export type ExpectSpec =
       compare: Comparison;
       pos: SourcePos;
     }
-  | { kind: 'settles'; name: string; within: number; band: number; pos: SourcePos };
+  | {
+    kind: 'settles'; name: string; within: number;
+    /** Fraction of each quantity's excursion over the run (or of its final value, below). */
+    band: number;
+    /** `excursion` (default): |q − q_end| ≤ band·max(E, 0.1 %·|q_end|); `final-value`: ≤ band·|q_end|. */
+    relativeTo?: 'excursion' | 'final-value';
+    pos: SourcePos;
+  };
 
 /**
  * An element of a kind read from its table alone (kinds.ts: ELEMENT_TABLES): its parameters as
@@ -202,6 +209,8 @@ export interface NetlistDoc {
   source: string;
   format: 1;
   title: string;
+  /** Free text about the rig and the run (top-level `description:`), shown in reports. */
+  description?: string;
   gas: GasSpec;
   ambient: { pressure: number; temperature: number };
   heat: 'isothermal' | 'adiabatic' | 'exchange';
