@@ -74,6 +74,10 @@ export class NetworkJacobian {
   private readonly rc = new Float64Array(B);
   private readonly cd = new Float64Array(B);
   private readonly aside = { p: 0, V: 0, kappa: 0 };
+  /** Feeds with a delivery curve, and the value positions of rows (store, T of the chamber, m of the chamber) × columns (m, T, h). */
+  private readonly curveFeeds: Int32Array;
+  private readonly feedPos: Int32Array;
+  private readonly slope = new Float64Array(1);
 
   constructor(private readonly sys: NetworkSystem) {
     const { model, nc, mIdx, TIdx, hIdx, resIdx } = sys;
@@ -109,9 +113,25 @@ export class NetworkJacobian {
       for (let r = 0; r < B; r++) { if (rows[b * B + r] >= 0) nr++; if (cols[b * B + r] >= 0) nk++; }
       count += nr * nk;
     }
+    // a feed with a delivery curve: its flow depends on the state of the chamber it fills
+    const curveFeeds = model.feeds.map((fd, k) => (fd.curve ? k : -1)).filter((k) => k >= 0);
+    this.curveFeeds = Int32Array.from(curveFeeds);
+    count += curveFeeds.length * K * K;
     const ri = new Int32Array(count);
     const ci = new Int32Array(count);
     let at = 0;
+    const feedRows = (k: number, r: number): number => (r === 0 ? sys.feedIdx[k] : r === 1 ? TIdx[model.feeds[k].into] : -1);
+    for (const k of curveFeeds) {
+      const i = model.feeds[k].into;
+      for (let r = 0; r < K; r++) {
+        const row = r === 2 ? mIdx[i] : feedRows(k, r);
+        if (row < 0) continue;
+        for (let c = 0; c < K; c++) {
+          const col = states(i, c);
+          if (col >= 0) { ri[at] = row; ci[at] = col; at++; }
+        }
+      }
+    }
     for (let i = 0; i < nc; i++) {
       for (let r = 0; r < K; r++) {
         const row = states(i, r);
@@ -132,7 +152,19 @@ export class NetworkJacobian {
         }
       }
     }
-    const pattern = (this.pattern = patternFromEntries(sys.n, ri, ci));
+    const pattern = (this.pattern = patternFromEntries(sys.n, ri.subarray(0, at), ci.subarray(0, at)));
+    this.feedPos = new Int32Array(curveFeeds.length * K * K).fill(-1);
+    curveFeeds.forEach((k, j) => {
+      const i = model.feeds[k].into;
+      for (let r = 0; r < K; r++) {
+        const row = r === 2 ? mIdx[i] : feedRows(k, r);
+        if (row < 0) continue;
+        for (let c = 0; c < K; c++) {
+          const col = states(i, c);
+          if (col >= 0) this.feedPos[j * K * K + r * K + c] = patternIndex(pattern, row, col);
+        }
+      }
+    });
     const pos = (this.pos = new Int32Array(nb * B * B).fill(-1));
     for (let b = 0; b < nb; b++) {
       for (let r = 0; r < B; r++) {
@@ -201,7 +233,27 @@ export class NetworkJacobian {
       }
     }
     this.branchTerms(t, values);
+    this.feedTerms(t, values);
     for (let i = 0; i < nc; i++) if (TIdx[i] >= 0) this.temperatureOwn(i, y, values);
+  }
+
+  /** A curve feed's q(p_i): −∂q/∂y in its store row, +∂q/∂y in the chamber's mass row, and its inflow in the energy row. */
+  private feedTerms(t: number, values: Float64Array): void {
+    const sys = this.sys;
+    for (let j = 0; j < this.curveFeeds.length; j++) {
+      const k = this.curveFeeds[j];
+      const fd = sys.feeds[k];
+      sys.feedSlope(k, t, this.slope);
+      const i = fd.into;
+      const dq = [this.slope[0] * this.dpdm[i], this.slope[0] * this.dpdT[i], this.slope[0] * this.dpdh[i]];
+      const w = [-1, sys.TIdx[i] >= 0 ? this.cIn[i] + this.cH[i] * fd.T : 0, 1];
+      for (let r = 0; r < K; r++) {
+        for (let c = 0; c < K; c++) {
+          const at = this.feedPos[j * K * K + r * K + c];
+          if (at >= 0) values[at] += w[r] * dq[c];
+        }
+      }
+    }
   }
 
   /** Σ_b (∂rows/∂q_b)(∂q_b/∂columns), plus the upstream temperature carried into Hin. */

@@ -20,6 +20,7 @@ import type { Model, NodeRef } from '../model/types.js';
 import { ChamberState } from '../elements/chamber.js';
 import { BranchState, type BranchFlow } from '../elements/branch.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
+import { curveFlow } from '../physics/regulator.js';
 import type { SparsePattern } from '../linalg/sparse-pattern.js';
 import { NetworkJacobian } from './jacobian.js';
 
@@ -62,7 +63,7 @@ export class NetworkSystem implements EventfulProblem {
   readonly nc: number;
   readonly chambers: ChamberState[];
   readonly branches: BranchState[];
-  readonly feeds: { schedule: Schedule; rate: number; T: number; into: number; name: string }[];
+  readonly feeds: { schedule: Schedule; rate: number; T: number; into: number; name: string; curve?: { p: Float64Array; q: Float64Array } }[];
   // layout
   readonly mIdx: Int32Array;
   readonly TIdx: Int32Array;
@@ -105,7 +106,8 @@ export class NetworkSystem implements EventfulProblem {
     this.isothermal = model.heat === 'isothermal';
     this.chambers = model.chambers.map((c) => new ChamberState(c, model.gas, model.pa));
     this.branches = model.branches.map((b) => new BranchState(b, model.gas, model.pa));
-    this.feeds = model.feeds.map((f) => ({ schedule: makeSchedule(f.initially, f.steps), rate: f.rate, T: f.T, into: f.into, name: f.name }));
+    this.feeds = model.feeds.map((f) => ({ schedule: makeSchedule(f.initially, f.steps), rate: f.rate, T: f.T, into: f.into, name: f.name, curve: f.curve }));
+    for (const c of model.controllers) this.branches[c.valve].command = c.spec.initially;
     let k = 0;
     this.mIdx = new Int32Array(nc);
     this.TIdx = new Int32Array(nc).fill(-1);
@@ -214,7 +216,9 @@ export class NetworkSystem implements EventfulProblem {
       this.branches[b].flow(t, this.p[i], this.p[j], this.T[i], this.T[j], this.flows[b]);
     }
     for (let f = 0; f < this.feeds.length; f++) {
-      this.feedFlow[f] = this.feeds[f].rate * this.feeds[f].schedule.at(t);
+      const fd = this.feeds[f];
+      const base = fd.curve ? curveFlow(this.p[fd.into], fd.curve.p, fd.curve.q) : fd.rate;
+      this.feedFlow[f] = base * fd.schedule.at(t);
     }
     this.memoT = t;
     this.memoY.set(y);
@@ -294,6 +298,14 @@ export class NetworkSystem implements EventfulProblem {
     const c = this.model.chambers[i];
     const A = cp * this.hIn[i] - cv * T * this.mIn[i] - R * T * this.mOut[i] + c.heatTransfer * (this.Ta - T);
     return (A - p * kap * R * T * mdot) / (m * cv + p * kap * m * R);
+  }
+
+  /** ∂q/∂p (kg/(s·Pa)) of feed f at the last evaluation, into out[0] (0 without a curve). */
+  feedSlope(f: number, t: number, out: Float64Array): void {
+    const fd = this.feeds[f];
+    if (!fd.curve) { out[0] = 0; return; }
+    curveFlow(this.p[fd.into], fd.curve.p, fd.curve.q, out);
+    out[0] *= fd.schedule.at(t);
   }
 
   // ---- jacobian -----------------------------------------------------------------------

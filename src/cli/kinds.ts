@@ -1,6 +1,6 @@
 /** `plenum kinds`: element kinds and wall laws with their parameters, from the parameter tables. */
 import {
-  CHAMBER, FEED, LINE, RESERVOIR, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
+  CHAMBER, CONTROLLER, FEED, LINE, RESERVOIR, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
 } from '../netlist/kinds.js';
 
 const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => string }[] = [
@@ -10,6 +10,7 @@ const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => str
   { title: 'lines', tables: [LINE], label: () => 'line' },
   { title: 'valves', tables: [VALVE, ...VALVE_RATINGS, ...VALVE_OPERATIONS], label: (t) => (t.kind === 'valve' ? 'valve' : `valve ${t.section === 'valve-rating' ? 'rating' : 'opening'}: ${t.kind}`) },
   { title: 'feeds', tables: [FEED], label: () => 'feed' },
+  { title: 'controllers', tables: [CONTROLLER], label: () => 'controller' },
 ];
 
 function dim(p: ParamSpec): string {

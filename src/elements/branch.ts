@@ -10,11 +10,17 @@
  * - relief: a discrete state, closed → open when the upstream gauge pressure rises through
  *   `opens-above`, open → closed when it falls through `reseats-below` (hysteresis); it
  *   discharges from → to only (never backwards).
+ * - regulator: the opening follows the downstream (`to`) gauge pressure (physics/regulator.ts);
+ *   a relieving regulator's vent is a branch of its own (`<name>.vent`, `to` → ambient) whose
+ *   opening follows the same pressure, its upstream end. Neither passes gas backwards (a
+ *   regulator's seat is a check against reverse flow; common practice).
+ * - driven: the opening is `command`, set by the controller that drives the valve.
  */
 import type { Gas } from '../physics/gas.js';
 import { frictionSlope, RE_LAMINAR, tubeFlowInto, type TubeFlow } from '../physics/tube.js';
 import { valveFlowInto, type ValveFlow } from '../physics/valve-flow.js';
 import { brent } from '../physics/roots.js';
+import { regulatorOpening, ventOpening } from '../physics/regulator.js';
 import type { BranchModel } from '../model/types.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import type { ValveRating } from '../netlist/types.js';
@@ -51,6 +57,8 @@ export class BranchState {
   readonly schedule: Schedule | null;
   /** Relief valve state. */
   open = false;
+  /** Opening commanded by a controller (driven valves), 0..1. */
+  command = 0;
   readonly dEq: number;
   // Scratch, so that evaluating a flow never allocates (it runs inside the rhs).
   private readonly tube: TubeFlow = { mdot: 0, reynolds: 0, regime: 'laminar', friction: 0 };
@@ -77,13 +85,20 @@ export class BranchState {
     return tubeFlowInto(this.tube, p1, p2, Tup, this.gas, l.diameter, l.length, l.roughness);
   }
 
-  /** Opening fraction 0..1 at time t (schedules and relief state; check valves are 1). */
-  opening(t: number): number {
+  /**
+   * Opening fraction 0..1 at time t and end pressures p1, p2 (Pa absolute): schedules, relief
+   * state, regulators (downstream pressure), a controller's command; check valves are 1.
+   */
+  opening(t: number, p1: number, p2: number): number {
     const op = this.b.valve?.operation;
     if (!op) return 1;
-    if (op.kind === 'schedule') return (this.schedule as Schedule).at(t);
-    if (op.kind === 'relief') return this.open ? 1 : 0;
-    return 1;
+    switch (op.kind) {
+      case 'schedule': return (this.schedule as Schedule).at(t);
+      case 'relief': return this.open ? 1 : 0;
+      case 'regulator': return this.b.vent ? ventOpening(p1 - this.pa, op.set, op.band) : regulatorOpening(p2 - this.pa, op.set, op.band);
+      case 'driven': return this.command;
+      default: return 1;
+    }
   }
 
   /** Flow from → to for the valve alone, given end pressures and temperatures (into the valve scratch). */
@@ -98,7 +113,7 @@ export class BranchState {
       return valveFlowInto(out, v.rating, pEff, p2, T1, T2, this.gas, opening);
     }
     valveFlowInto(out, v.rating, p1, p2, T1, T2, this.gas, opening);
-    if (op.kind === 'relief' && out.mdot < 0) { out.mdot = 0; out.choked = false; }
+    if ((op.kind === 'relief' || op.kind === 'regulator') && out.mdot < 0) { out.mdot = 0; out.choked = false; }
     return out;
   }
 
@@ -110,7 +125,7 @@ export class BranchState {
       out.mdot = f.mdot; out.reynolds = f.reynolds; out.choked = false; out.regime = f.regime;
       return;
     }
-    const opening = this.opening(t);
+    const opening = this.opening(t, p1, p2);
     if (!b.line) {
       const r = this.valveOnly(p1, p2, T1, T2, opening);
       out.mdot = r.mdot; out.choked = r.choked; out.regime = 'orifice';

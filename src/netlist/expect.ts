@@ -14,7 +14,7 @@ import { parseFraction } from '../units/quantity.js';
 import type { Checker } from './checker.js';
 import { EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
 import type { Names } from './names.js';
-import type { ChamberSpec, Comparison, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
+import type { ChamberSpec, Comparison, ControllerSpec, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
 import type { YMap, YNode, YScalar } from './yaml-tree.js';
 
 const PROBE_HINT = 'write `<element>.<quantity>`, e.g. `cell_a.gauge`, `supply.flow` or `total.mass`';
@@ -22,7 +22,8 @@ const COMPARISONS = ['below', 'above', 'near'] as const;
 /** Most output samples a run may record (a million rows; every row is kept in memory). */
 export const MAX_SAMPLES = 1_000_000;
 
-const QUANTITY_DIMENSION: Record<ProbeQuantity, Dimension> = {
+/** Dimension of each quantity; a controller's `error` takes its measure's (see probeValueKind). */
+export const QUANTITY_DIMENSION: Record<Exclude<ProbeQuantity, 'output' | 'error'>, Dimension> = {
   pressure: 'pressure',
   gauge: 'pressure',
   volume: 'volume',
@@ -62,13 +63,35 @@ export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): 
   return spec;
 }
 
-interface ExpectContext {
+export interface ExpectContext {
   names: Names;
   chambers: Map<string, ChamberSpec>;
+  /** Controllers read so far (their `error` probe has the dimension of what they measure). */
+  controllers?: Map<string, ControllerSpec>;
   duration?: number;
 }
 
-function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefined {
+/**
+ * How a value compared with a probe is read: an absolute pressure (`pressure`, `gauge`), a
+ * pressure difference (a controller's error on a pressure), a fraction (a controller's output),
+ * or a quantity of a dimension.
+ */
+export type ProbeValueKind = 'absolute-pressure' | 'pressure-difference' | 'fraction' | Dimension;
+
+export function probeValueKind(probe: Probe, controllers?: Map<string, ControllerSpec>): ProbeValueKind {
+  if (probe.quantity === 'output') return 'fraction';
+  if (probe.quantity === 'error') {
+    const m = controllers?.get(probe.element)?.measure;
+    if (!m || m.quantity === 'output' || m.quantity === 'error') return 'dimensionless';
+    const d = QUANTITY_DIMENSION[m.quantity];
+    return d === 'pressure' ? 'pressure-difference' : d === 'temperature' ? 'temperature-difference' : d;
+  }
+  const d = QUANTITY_DIMENSION[probe.quantity];
+  return d === 'pressure' ? 'absolute-pressure' : d;
+}
+
+/** Reads `<element>.<quantity>`; `forControl` refuses controller probes (a controller measures the network). */
+export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forControl = false): Probe | undefined {
   const text = ck.text(node, '`probe`', PROBE_HINT);
   if (text === undefined) return undefined;
   const m = /^\s*([A-Za-z][A-Za-z0-9_]*)\.([A-Za-z_-]+)\s*$/.exec(text);
@@ -85,13 +108,16 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
     }
   } else {
     const entry = cx.names.get(element);
-    if (!entry || entry.kind === 'reservoir' || entry.kind === 'feed') {
-      const candidates = [...cx.names.values()].filter((n) => n.kind === 'chamber' || n.kind === 'line' || n.kind === 'valve').map((n) => n.name);
-      const why = entry ? `\`${element}\` is a ${entry.kind}, which has no probes` : `the probe names \`${element}\`, which is not defined`;
-      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? 'probe a chamber, a line, a valve, or `total.mass`');
+    const probed = (k: string): boolean => k === 'chamber' || k === 'line' || k === 'valve' || (k === 'controller' && !forControl);
+    if (!entry || !probed(entry.kind)) {
+      const candidates = [...cx.names.values()].filter((n) => probed(n.kind)).map((n) => n.name);
+      const why = entry
+        ? `\`${element}\` is a ${entry.kind}, which has no probes${forControl && entry.kind === 'controller' ? ' a controller can measure' : ''}`
+        : `the probe names \`${element}\`, which is not defined`;
+      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? (forControl ? 'measure a chamber, a line or a valve' : 'probe a chamber, a line, a valve, a controller, or `total.mass`'));
       return undefined;
     }
-    kind = entry.kind;
+    kind = entry.kind as keyof typeof PROBE_QUANTITIES;
   }
   const allowed: readonly string[] = PROBE_QUANTITIES[kind];
   const law = kind === 'chamber' ? cx.chambers.get(element)?.wall.law : undefined;
@@ -118,27 +144,29 @@ function readTime(ck: Checker, node: YNode, what: string, duration?: number): nu
 }
 
 /** A comparison value in the probe's dimension (pressures say gauge or abs → Pa absolute). */
-function readProbeValue(ck: Checker, node: YNode, q: ProbeQuantity, what: string): number | undefined {
-  const dim = QUANTITY_DIMENSION[q];
-  if (dim === 'pressure') return ck.absolutePressure(node, what);
-  return ck.quantity(node, dim, what);
+export function readProbeValue(ck: Checker, node: YNode, kind: ProbeValueKind, what: string): number | undefined {
+  if (kind === 'absolute-pressure') return ck.absolutePressure(node, what);
+  if (kind === 'pressure-difference') return ck.pressureDifference(node, what);
+  if (kind === 'fraction') return ck.fraction(node, what);
+  return ck.quantity(node, kind, what);
 }
 
-function readWithin(ck: Checker, node: YNode, q: ProbeQuantity): { abs: number } | { rel: number } | undefined {
-  if (node.kind === 'scalar' && typeof node.value === 'string' && node.value.trim().endsWith('%')) {
+function readWithin(ck: Checker, node: YNode, kind: ProbeValueKind): { abs: number } | { rel: number } | undefined {
+  if (kind !== 'fraction' && node.kind === 'scalar' && typeof node.value === 'string' && node.value.trim().endsWith('%')) {
     const r = ck.checked(node, parseFraction(node.value), '`within`', { gt: 0 });
     return r === undefined ? undefined : { rel: r };
   }
-  const dim = QUANTITY_DIMENSION[q];
   const bounds = { gt: 0 };
   const abs =
-    dim === 'pressure'
+    kind === 'absolute-pressure' || kind === 'pressure-difference'
       ? ck.pressureDifference(node, '`within`', bounds)
-      : ck.quantity(node, dim === 'temperature' ? 'temperature-difference' : dim, '`within`', bounds);
+      : kind === 'fraction'
+        ? ck.fraction(node, '`within`', bounds)
+        : ck.quantity(node, kind === 'temperature' ? 'temperature-difference' : kind, '`within`', bounds);
   return abs === undefined ? undefined : { abs };
 }
 
-function readComparison(ck: Checker, map: YMap, q: ProbeQuantity, what: string): Comparison | undefined {
+function readComparison(ck: Checker, map: YMap, q: ProbeValueKind, what: string): Comparison | undefined {
   const given = COMPARISONS.filter((k) => ck.get(map, k) !== undefined);
   if (given.length !== 1) {
     const where = given.length ? ck.keyWhere(map, given[1]) : ck.missingAt(map, 'below');
@@ -243,7 +271,7 @@ function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | unde
   const probe = readProbe(ck, probeNode, cx);
   const what = `the expectation \`${name}\``;
   const when = readWhen(ck, map, cx, what);
-  const compare = probe ? readComparison(ck, map, probe.quantity, what) : undefined;
+  const compare = probe ? readComparison(ck, map, probeValueKind(probe, cx.controllers), what) : undefined;
   if (!probe || !when || !compare) return undefined;
   return { kind: 'probe', name, probe, when, compare, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
 }

@@ -63,6 +63,7 @@ export type Section =
   | 'valve-operation'
   | 'schedule-step'
   | 'feed'
+  | 'controller'
   | 'simulate'
   | 'expect';
 
@@ -88,6 +89,8 @@ export const HEAT_MODES = ['isothermal', 'adiabatic', 'exchange'] as const;
 export const METHODS = ['auto', 'explicit', 'implicit'] as const;
 export const STATS = ['max', 'min', 'mean'] as const;
 export const SPHERE_LAWS = ['neo-hookean', 'mooney-rivlin', 'gent'] as const;
+export const CONTROLLER_KINDS = ['pid'] as const;
+export const ANTI_WINDUP = ['clamping', 'back-calculation'] as const;
 
 // ---- walls ---------------------------------------------------------------------------------
 
@@ -270,7 +273,27 @@ export const VALVE_OPERATIONS: KindTable[] = [
     doc: 'relief valve: opens when the upstream gauge pressure rises above opens-above, recloses below reseats-below',
     params: [p('relief', 'structure', '{ opens-above, reseats-below } (gauge or abs)', { shape: 'relief' })],
   },
+  {
+    kind: 'regulator',
+    section: 'valve-operation',
+    doc: 'pressure-reducing valve: opening follows the downstream gauge pressure, fully open at set − band, shut at set (proportional, with droop)',
+    params: [
+      p('regulates', 'structure', '{ set, band }: set pressure (gauge or abs) and proportional band (a pressure difference)', { shape: 'regulates' }),
+      opt('relieving', 'structure', '`true`: above the set pressure it vents downstream gas to ambient through its own rating', { shape: 'boolean', default: 'false' }),
+      opt('time-constant', 'time', 'first-order lag of the opening behind the downstream pressure (0: none)', { default: 0, bounds: NON_NEGATIVE }),
+    ],
+  },
 ];
+
+export const REGULATES: KindTable = {
+  kind: 'regulates',
+  section: 'valve-operation',
+  doc: 'regulator settings (downstream gauge pressure)',
+  params: [
+    p('set', 'gauge-pressure', 'downstream pressure at which it shuts (lock-up)'),
+    p('band', 'pressure-difference', 'proportional band: fully open at set − band', { bounds: { gt: 0 } }),
+  ],
+};
 
 export const CHECK: KindTable = {
   kind: 'check-settings',
@@ -306,10 +329,45 @@ export const FEED: KindTable = {
   doc: 'a mass source into a chamber',
   params: [
     p('into', 'name', 'the chamber fed'),
-    p('rate', 'structure', 'mass flow (`0.5 g/s`) or standard volume flow at ISO 8778 (`10 L/min ANR`)', { shape: 'rate' }),
+    opt('rate', 'structure', 'mass flow (`0.5 g/s`) or standard volume flow at ISO 8778 (`10 L/min ANR`); required unless `curve` is given', { shape: 'rate' }),
+    opt('curve', 'structure', 'delivered flow against the fed chamber’s pressure: [[pressure, flow], ...] (a compressor or pump); pressures gauge or abs, increasing; flows as `rate`', { shape: 'feed-curve' }),
+    opt('shut-off', 'absolute-pressure', 'pressure at which delivery has stopped (dead-head): the curve falls linearly from its last point to zero here; needs `curve`'),
     opt('temperature', 'temperature', 'temperature of the entering gas (default ambient)', { bounds: POSITIVE }),
     opt('initially', 'structure', 'initial fraction of the rate (default 100%)', { shape: 'opening', default: '100%' }),
     opt('schedule', 'structure', 'list of { at, open, over } scaling the rate', { shape: 'schedule' }),
+  ],
+};
+
+// ---- control ------------------------------------------------------------------------------
+
+export const CONTROLLER: KindTable = {
+  kind: 'controller',
+  section: 'controller',
+  doc: 'a PI/PID controller: measures a probe, drives a valve’s opening (u = kp·e + ∫ki·e dt + D, e = target − measure)',
+  params: [
+    p('kind', 'enum', 'control law', { values: CONTROLLER_KINDS }),
+    p('measure', 'text', 'the probe it measures, `<element>.<quantity>` (e.g. `cell.gauge`)'),
+    p('target', 'structure', 'set point in the probe’s dimension: a constant, a time table [[t, value], ...] or an expression in t (pressures say gauge or abs)', { shape: 'target' }),
+    p('drives', 'name', 'the valve whose opening it sets (that valve has no schedule, check, relief or regulator of its own)'),
+    p('kp', 'structure', 'proportional gain: opening per unit of the measure, e.g. `2 %/kPa` (a bare number is SI: 1/Pa for a pressure)', { shape: 'gain' }),
+    opt('ki', 'structure', 'integral gain: opening per unit of the measure and second, e.g. `5 %/(kPa*s)`', { shape: 'gain', default: 0 }),
+    opt('kd', 'structure', 'derivative gain (on the measure, filtered): opening·s per unit of the measure, e.g. `0.1 %*s/kPa`', { shape: 'gain', default: 0 }),
+    opt('derivative-filter', 'time', 'time constant of the derivative filter (default kd/(10·kp), or 1 ms without kp)', { bounds: POSITIVE }),
+    opt('limits', 'structure', '{ min, max }: output (opening) limits, default 0 % and 100 %', { shape: 'output-limits' }),
+    opt('anti-windup', 'enum', 'clamping (integration stops while the output is held at a limit and the error drives it further) or back-calculation', { values: ANTI_WINDUP, default: 'clamping' }),
+    opt('tracking-time', 'time', 'back-calculation tracking time Tt (default √(Ti·Td), or Ti = kp/ki without kd)', { bounds: POSITIVE }),
+    opt('sample', 'time', 'sample period of a discrete controller (output held between samples); absent: continuous', { bounds: POSITIVE }),
+    opt('initially', 'structure', 'output at t = 0 (the integral starts there: a bumpless start); default the lower limit', { shape: 'opening' }),
+  ],
+};
+
+export const OUTPUT_LIMITS: KindTable = {
+  kind: 'output-limits',
+  section: 'controller',
+  doc: 'controller output limits',
+  params: [
+    opt('min', 'fraction', 'lowest opening', { default: '0%' }),
+    opt('max', 'fraction', 'highest opening', { default: '100%' }),
   ],
 };
 
@@ -414,6 +472,7 @@ export const TOP: KindTable = {
     opt('lines', 'structure', 'lines by name', { shape: 'lines' }),
     opt('valves', 'structure', 'valves by name', { shape: 'valves' }),
     opt('feeds', 'structure', 'feeds by name', { shape: 'feeds' }),
+    opt('controllers', 'structure', 'controllers by name', { shape: 'controllers' }),
     p('simulate', 'structure', 'duration and solver settings', { shape: 'simulate' }),
     opt('expect', 'structure', 'checks for CI', { shape: 'expect' }),
   ],
@@ -422,7 +481,7 @@ export const TOP: KindTable = {
 /** Every table, for `plenum kinds` and the README. */
 export const ALL_TABLES: KindTable[] = [
   TOP, AMBIENT, CUSTOM_GAS, VISCOSITY, CHAMBER, ...WALL_LAWS, START, LIMITS, RESERVOIR, LINE, VALVE,
-  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, SCHEDULE_STEP, FEED, SIMULATE, EXPECT, NEAR, SETTLES,
+  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, REGULATES, SCHEDULE_STEP, FEED, CONTROLLER, OUTPUT_LIMITS, SIMULATE, EXPECT, NEAR, SETTLES,
 ];
 
 /** The table of a wall law, or undefined. */
@@ -435,5 +494,6 @@ export const PROBE_QUANTITIES = {
   chamber: ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch'],
   line: ['flow', 'reynolds'],
   valve: ['flow', 'reynolds'],
+  controller: ['output', 'error'],
   total: ['mass'],
 } as const;

@@ -7,13 +7,14 @@ import { didYouMean } from '../diag/did-you-mean.js';
 import { IDENTIFIER, type Checker, type Where } from './checker.js';
 import type { YMap, YNode } from './yaml-tree.js';
 
-export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed';
+export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'controller';
 export const SECTIONS: Record<ElementKind, string> = {
   chamber: 'chambers',
   reservoir: 'reservoirs',
   line: 'lines',
   valve: 'valves',
   feed: 'feeds',
+  controller: 'controllers',
 };
 export const AMBIENT = 'ambient';
 

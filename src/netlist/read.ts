@@ -10,12 +10,13 @@ import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { readFeed, readLine, readValve } from './branches.js';
 import { readChamber } from './chambers.js';
 import { Checker } from './checker.js';
+import { drivenValves, readController } from './controllers.js';
 import { readExpect, readSimulate } from './expect.js';
 import { namedGas } from './gases.js';
 import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
 import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
 import { readPressureSeries } from './time-series.js';
-import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
+import type { ChamberSpec, ControllerSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
 import { parseYamlTree, type YMap, type YNode } from './yaml-tree.js';
 
 const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
@@ -170,12 +171,15 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   const lines = defined(sections.line.map((e) => readLine(ck, e, names)));
   const lineMap = new Map<string, LineSpec>(lines.map((l) => [l.name, l]));
   const taken = new Map<string, string>();
-  const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
+  const driven = drivenValves(ck, root);
+  const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken, driven.get(e.name))));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
+  const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
+  const controllers = defined(sections.controller.map((e) => readController(ck, e, names, driven, { names, chambers: chamberMap, duration: simulate?.duration })));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {
-    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds };
+    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, controller: controllers };
     for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
       const got = new Set(read[kind].map((x) => x.name)); // a set: ten thousand chambers are read
       for (const e of sections[kind]) {
@@ -184,9 +188,9 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
     }
   }
 
-  const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
+  const controllerMap = new Map<string, ControllerSpec>(controllers.map((c) => [c.name, c]));
   const expectNode = ck.get(root, 'expect');
-  const expect = expectNode ? readExpect(ck, expectNode, { names, chambers: chamberMap, duration: simulate?.duration }) : [];
+  const expect = expectNode ? readExpect(ck, expectNode, { names, chambers: chamberMap, controllers: controllerMap, duration: simulate?.duration }) : [];
 
   const diagnostics = ck.diagnostics.slice().sort(byPosition);
   if (ck.hasErrors || !simulate) return { ok: false, diagnostics };
@@ -203,6 +207,7 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
     lines,
     valves,
     feeds,
+    controllers,
     simulate,
     expect,
     defaulted: ck.defaulted.slice(),

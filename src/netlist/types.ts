@@ -83,7 +83,15 @@ export interface ScheduleStep { at: number; open: number; over: number }
 export type ValveOperation =
   | { kind: 'schedule'; initially: number /* 0..1 */; steps: ScheduleStep[] }
   | { kind: 'check'; cracking: number /* Pa */ }
-  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */ };
+  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */ }
+  /**
+   * Pressure-reducing valve: opening = clamp((set − p_to,gauge)/band, 0, 1); with `relieving`,
+   * a vent from `to` to ambient at opening clamp((p_to,gauge − set)/band, 0, 1); the opening
+   * lags the law by `timeConstant` (s, 0 = none).
+   */
+  | { kind: 'regulator'; set: number /* Pa gauge */; band: number /* Pa */; relieving: boolean; timeConstant: number }
+  /** Opening set by a controller (controllers.<controller>). */
+  | { kind: 'driven'; controller: string };
 
 export interface ValveSpec {
   name: string;
@@ -96,14 +104,50 @@ export interface ValveSpec {
   pos: SourcePos;
 }
 
+export type FlowValue = { kind: 'mass'; value: number /* kg/s */ } | { kind: 'anr'; value: number /* m³/s at ISO 8778 */ };
+
+/** Delivered flow against the fed chamber's pressure (Pa absolute, strictly increasing). */
+export interface FeedCurve {
+  pressure: number[];
+  flow: FlowValue[];
+  /** Pa absolute where delivery has fallen to zero (the last point's pressure when it ends at zero flow). */
+  shutOff: number;
+}
+
 export interface FeedSpec {
   name: string;
   into: string;
-  rate: { kind: 'mass'; value: number /* kg/s */ } | { kind: 'anr'; value: number /* m³/s at ISO 8778 */ };
+  /** For a feed with a curve: the flow at the curve's first point (for reports). */
+  rate: FlowValue;
+  curve?: FeedCurve;
   /** Temperature of the entering gas, K; undefined means ambient. */
   temperature?: number;
   initially: number;       // 0..1
   steps: ScheduleStep[];   // same semantics as a valve schedule, scaling the rate
+  pos: SourcePos;
+}
+
+/** A controller's set point: SI in the measured quantity's dimension (pressures absolute Pa). */
+export interface ControllerSpec {
+  name: string;
+  kind: 'pid';
+  measure: Probe;
+  target: TimeSeries;
+  drives: string;
+  /** Gains in SI: 1/[measure], 1/([measure]·s), s/[measure]. */
+  kp: number;
+  ki: number;
+  kd: number;
+  /** Derivative filter time constant (s). */
+  filter: number;
+  limits: { min: number; max: number };
+  antiWindup: 'clamping' | 'back-calculation';
+  /** Back-calculation tracking time (s). */
+  tracking: number;
+  /** Sample period (s) of a discrete controller; undefined: continuous. */
+  sample?: number;
+  /** Output at t = 0. */
+  initially: number;
   pos: SourcePos;
 }
 
@@ -118,7 +162,8 @@ export interface SimulateSpec {
 
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
-  | 'flow' | 'reynolds';
+  | 'flow' | 'reynolds'
+  | 'output' | 'error';
 
 export interface Probe {
   /** Element name, or 'total' with quantity 'mass'. */
@@ -161,6 +206,7 @@ export interface NetlistDoc {
   lines: LineSpec[];
   valves: ValveSpec[];
   feeds: FeedSpec[];
+  controllers: ControllerSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
   /** Dotted netlist paths of optional parameters that took their default (e.g. `lines.supply.roughness`). */

@@ -85,6 +85,7 @@ function unitFor(kind: DisplayKind, magnitude: number): Shown {
     case 'temperature': return { scale: 1, offset: -273.15, unit: ' °C' };
     case 'flow': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g/s' } : { scale: 1, offset: 0, unit: ' kg/s' };
     case 'time': return magnitude < 1 && magnitude > 0 ? { scale: 1e3, offset: 0, unit: ' ms' } : { scale: 1, offset: 0, unit: ' s' };
+    case 'opening': return { scale: 100, offset: 0, unit: ' %' };
     case 'stretch':
     case 'reynolds': return { scale: 1, offset: 0, unit: '' };
   }
@@ -387,7 +388,8 @@ export class ExpectationMonitor {
     }
     const stat = 'over' in s.when ? `${s.when.stat} of ` : '';
     const gauge = q === 'gauge';
-    const kind: DisplayKind = q;
+    // a controller's error is shown in SI (its dimension is that of what it measures)
+    const kind: DisplayKind = q === 'output' ? 'opening' : q === 'error' ? 'reynolds' : q;
     // pressures are compared absolute and shown (and reported) in the probe's reference
     const ref = (x: number): number => (gauge ? x - this.pa : x);
     const actual = ref(v);

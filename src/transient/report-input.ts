@@ -144,6 +144,8 @@ function describeOperation(op: ValveOperation): string {
     }
     case 'check': return `check valve, cracks at ${significant(op.cracking / 1000, 3)} kPa`;
     case 'relief': return `relief, opens above ${display(op.opensAbove, 'gauge')}, reseats below ${display(op.reseatsBelow, 'gauge')}`;
+    case 'regulator': return `regulator, shuts at ${display(op.set, 'gauge')}, band ${significant(op.band / 1000, 3)} kPa${op.relieving ? ', relieving' : ''}${op.timeConstant > 0 ? `, lag ${display(op.timeConstant, 'time')}` : ''}`;
+    case 'driven': return `driven by controller ${op.controller}`;
   }
 }
 
