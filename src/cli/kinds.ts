@@ -18,7 +18,12 @@ function dim(p: ParamSpec): string {
     case 'absolute-pressure': return 'pressure (gauge or abs)';
     case 'gauge-pressure': return 'pressure (gauge or abs)';
     case 'enum': return (p.values ?? []).join(' | ');
-    case 'structure': return p.shape === 'points' || p.shape === 'schedule' ? 'list' : 'map';
+    case 'structure':
+      if (p.shape === 'gain') return 'gain (with units)';
+      if (p.shape === 'target') return 'value, table or expression';
+      if (p.shape === 'boolean') return 'true | false';
+      if (p.shape === 'opening') return 'opening';
+      return p.shape === 'points' || p.shape === 'schedule' || p.shape === 'feed-curve' ? 'list' : 'map';
     default: return p.dimension;
   }
 }
