@@ -20,12 +20,16 @@ import type { Model, NodeRef } from '../model/types.js';
 import { ChamberState } from '../elements/chamber.js';
 import { BranchState, type BranchFlow } from '../elements/branch.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
-import { curveFlow } from '../physics/regulator.js';
+import { curveFlow, regulatorPosition } from '../physics/regulator.js';
+import { ControllerState } from '../elements/controller.js';
+import { patternFromEntries } from '../linalg/sparse-pattern.js';
 import type { SparsePattern } from '../linalg/sparse-pattern.js';
 import { NetworkJacobian } from './jacobian.js';
 
 export interface SystemEvent {
-  kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch';
+  kind: 'relief' | 'check' | 'extremum' | 'limit-pressure' | 'limit-stretch' | 'saturation' | 'regulator';
+  /** For saturation events: which limit; for regulator events: lock-up (`low`: shut at set) or full opening (`high`). */
+  limit?: 'high' | 'low';
   element: string;
   index: number;        // chamber or branch index
   direction: number;    // +1, −1, 0
@@ -70,6 +74,13 @@ export class NetworkSystem implements EventfulProblem {
   readonly hIdx: Int32Array;
   readonly resIdx: Int32Array;
   readonly feedIdx: Int32Array;
+  /** Controllers (their I and yf slots inside), and each lagged regulator's position slot by branch (−1: none). */
+  readonly controllers: ControllerState[];
+  readonly zIdx: Int32Array;
+  /** Branches a controller drives (evaluated after the controllers). */
+  private readonly driven: Uint8Array;
+  /** True when controllers or regulator lags hold states (the element jacobian does not cover them yet). */
+  readonly controlStates: boolean;
   // per-node scratch (chambers first, then reservoirs)
   readonly p: Float64Array;
   readonly T: Float64Array;
@@ -121,6 +132,21 @@ export class NetworkSystem implements EventfulProblem {
     for (let r = 0; r < model.reservoirs.length; r++) this.resIdx[r] = k++;
     this.feedIdx = new Int32Array(model.feeds.length);
     for (let f = 0; f < model.feeds.length; f++) this.feedIdx[f] = k++;
+    const plain = k;
+    this.controllers = model.controllers.map((c) => new ControllerState(c));
+    for (const c of this.controllers) {
+      if (c.slots >= 1) c.iIdx = k++;
+      if (c.slots >= 2) c.fIdx = k++;
+    }
+    this.zIdx = new Int32Array(model.branches.length).fill(-1);
+    model.branches.forEach((b, i) => {
+      const op = b.valve?.operation;
+      if (op?.kind === 'regulator' && op.timeConstant > 0 && !b.vent) this.zIdx[i] = k++;
+    });
+    model.branches.forEach((b, i) => { if (b.vent && this.zIdx[b.vent.of] >= 0) this.zIdx[i] = this.zIdx[b.vent.of]; });
+    this.driven = new Uint8Array(model.branches.length);
+    for (const c of model.controllers) this.driven[c.valve] = 1;
+    this.controlStates = k > plain;
     this.n = k;
     const nn = nc + model.reservoirs.length;
     this.p = new Float64Array(nn);
@@ -145,11 +171,26 @@ export class NetworkSystem implements EventfulProblem {
       if (this.TIdx[i] >= 0) this.atol[this.TIdx[i]] = this.rtol * 300;
       if (this.hIdx[i] >= 0) this.atol[this.hIdx[i]] = this.rtol;
     }
+    // openings (I, z) are fractions; a filtered measure is on the scale of its target
+    for (const c of this.controllers) {
+      if (c.iIdx >= 0) this.atol[c.iIdx] = this.rtol * 1e-3;
+      if (c.fIdx >= 0) this.atol[c.fIdx] = this.rtol * 1e-3 * Math.max(Math.abs(c.c.spec.target.at(0)), 1e-12);
+    }
+    for (const z of this.zIdx) if (z >= 0) this.atol[z] = this.rtol * 1e-3;
+    if (this.controlStates) {
+      // the element-wise jacobian covers masses and temperatures; with control states the
+      // solver differences the whole rhs (these networks are small)
+      Object.defineProperty(this, 'jacobianSparse', { value: undefined });
+    }
 
     const bps = new Set<number>();
     for (const b of this.branches) b.schedule?.breakpoints.forEach((t) => bps.add(t));
     for (const f of this.feeds) f.schedule.breakpoints.forEach((t) => bps.add(t));
     for (const r of model.reservoirs) r.pressure.breakpoints.forEach((t) => bps.add(t));
+    for (const c of this.controllers) {
+      c.c.spec.target.breakpoints.forEach((t) => bps.add(t));
+      c.sampleTimes(model.simulate.duration).forEach((t) => bps.add(t));
+    }
     this.breakpoints = [...bps].sort((a, b) => a - b);
 
     this.events = [];
@@ -163,6 +204,14 @@ export class NetworkSystem implements EventfulProblem {
       if (c.limits.pressure !== undefined) this.events.push({ kind: 'limit-pressure', element: c.name, index: i, direction: 1 });
       if (c.limits.stretch !== undefined && c.wall.sphere) this.events.push({ kind: 'limit-stretch', element: c.name, index: i, direction: 1 });
     });
+    this.controllers.forEach((c, i) => {
+      if (!c.continuous) return;
+      this.events.push({ kind: 'saturation', element: c.c.name, index: i, direction: 0, limit: 'high' }, { kind: 'saturation', element: c.c.name, index: i, direction: 0, limit: 'low' });
+    });
+    model.branches.forEach((b, i) => {
+      if (b.valve?.operation.kind !== 'regulator' || b.vent) return;
+      this.events.push({ kind: 'regulator', element: b.name, index: i, direction: 0, limit: 'low' }, { kind: 'regulator', element: b.name, index: i, direction: 0, limit: 'high' });
+    });
   }
 
   get nEvents(): number { return this.events.length; }
@@ -174,7 +223,35 @@ export class NetworkSystem implements EventfulProblem {
       if (this.TIdx[i] >= 0) y[this.TIdx[i]] = c.T0;
       if (this.hIdx[i] >= 0) y[this.hIdx[i]] = 1;
     });
+    if (this.controllers.length || this.zIdx.some((z) => z >= 0)) {
+      // start states that depend on the network's start: a regulator's position follows its
+      // law, a controller starts bumpless
+      this.model.branches.forEach((b, i) => {
+        const op = b.valve?.operation;
+        if (this.zIdx[i] < 0 || b.vent || op?.kind !== 'regulator') return;
+        this.evaluate(0, y);
+        y[this.zIdx[i]] = regulatorPosition(this.p[this.nodeIndex(b.to)] - this.pa, op.set, op.band, op.relieving);
+      });
+      this.invalidate();
+      this.evaluate(0, y);
+      for (const c of this.controllers) c.start(this.measure(c, y), y);
+      this.invalidate();
+    }
     return y;
+  }
+
+  /** The value a controller measures (SI; pressures absolute), from the last evaluation. */
+  private measure(c: ControllerState, y: Float64Array): number {
+    const m = c.c.measure;
+    if (m.kind === 'branch') return m.quantity === 'reynolds' ? this.flows[m.index].reynolds : this.flows[m.index].mdot;
+    const i = m.index;
+    switch (m.quantity) {
+      case 'volume': return this.V[i];
+      case 'mass': return y[this.mIdx[i]];
+      case 'temperature': return this.T[i];
+      case 'stretch': return this.model.chambers[i].wall.stretch(this.V[i]);
+      default: return this.p[i];
+    }
   }
 
   /** Slot of a node's mass: a chamber's m, or a reservoir's boundary store. */
@@ -210,10 +287,14 @@ export class NetworkSystem implements EventfulProblem {
       this.T[nc + r] = res[r].T;
     }
     for (let b = 0; b < this.branches.length; b++) {
-      const bm = this.model.branches[b];
-      const i = this.nodeIndex(bm.from);
-      const j = this.nodeIndex(bm.to);
-      this.branches[b].flow(t, this.p[i], this.p[j], this.T[i], this.T[j], this.flows[b]);
+      if (this.zIdx[b] >= 0) this.branches[b].position = y[this.zIdx[b]];
+      if (this.driven[b] === 0) this.branchFlow(t, b);
+    }
+    if (this.controllers.length) {
+      // controllers measure chambers and undriven branches (the reader refuses the loop of a
+      // controller measuring a driven valve), then set the openings of their valves
+      for (const c of this.controllers) this.branches[c.c.valve].command = c.output(t, this.measure(c, y), y);
+      for (const c of this.controllers) this.branchFlow(t, c.c.valve);
     }
     for (let f = 0; f < this.feeds.length; f++) {
       const fd = this.feeds[f];
@@ -224,6 +305,13 @@ export class NetworkSystem implements EventfulProblem {
     this.memoY.set(y);
     for (let k = 0; k < this.reliefIdx.length; k++) this.memoOpen[k] = this.branches[this.reliefIdx[k]].open ? 1 : 0;
     this.memoValid = true;
+  }
+
+  private branchFlow(t: number, b: number): void {
+    const bm = this.model.branches[b];
+    const i = this.nodeIndex(bm.from);
+    const j = this.nodeIndex(bm.to);
+    this.branches[b].flow(t, this.p[i], this.p[j], this.T[i], this.T[j], this.flows[b]);
   }
 
   /** Whether the scratch already holds `evaluate(t, y)` (same t, same y, same valve modes). */
@@ -273,6 +361,14 @@ export class NetworkSystem implements EventfulProblem {
       const fd = this.feeds[f];
       this.transfer(dydt, this.feedIdx[f], -1, this.mIdx[fd.into], fd.into, this.feedFlow[f], fd.T);
     }
+    for (const c of this.controllers) c.rates(y, dydt);
+    for (let b = 0; b < this.zIdx.length; b++) {
+      const z = this.zIdx[b];
+      if (z < 0 || this.model.branches[b].vent) continue;
+      const op = this.model.branches[b].valve!.operation as { set: number; band: number; relieving: boolean; timeConstant: number };
+      const target = regulatorPosition(this.p[this.nodeIndex(this.model.branches[b].to)] - this.pa, op.set, op.band, op.relieving);
+      dydt[z] = (target - y[z]) / op.timeConstant;
+    }
     if (this.energyRows) {
       for (let i = 0; i < nc; i++) {
         const mdot = dydt[this.mIdx[i]];
@@ -312,9 +408,12 @@ export class NetworkSystem implements EventfulProblem {
 
   /** Where ∂f/∂y may be nonzero (see jacobian.ts); reserved on first use. */
   get jacobianPattern(): SparsePattern {
+    if (this.controlStates) return (this.densePattern ??= denseEntries(this.n));
     this.jac ??= new NetworkJacobian(this);
     return this.jac.pattern;
   }
+
+  private densePattern: SparsePattern | null = null;
 
   /** ∂f/∂y at (t, y) in the order of `jacobianPattern`. */
   jacobianSparse(t: number, y: Float64Array, values: Float64Array): void {
@@ -372,6 +471,16 @@ export class NetworkSystem implements EventfulProblem {
         case 'limit-stretch':
           out[k] = this.chambers[e.index].c.wall.stretch(this.V[e.index]) - (this.model.chambers[e.index].limits.stretch as number);
           break;
+        case 'saturation':
+          out[k] = this.controllers[e.index].saturation(e.limit as 'high' | 'low');
+          break;
+        case 'regulator': {
+          const bm = this.model.branches[e.index];
+          const op = bm.valve!.operation as { set: number; band: number };
+          const pg = this.p[this.nodeIndex(bm.to)] - this.pa;
+          out[k] = e.limit === 'low' ? pg - op.set : pg - (op.set - op.band);
+          break;
+        }
       }
     }
   }
@@ -412,6 +521,17 @@ export class NetworkSystem implements EventfulProblem {
       case 'limit-stretch':
         note(`${e.element} exceeds its stretch limit of ${this.model.chambers[e.index].limits.stretch}`);
         return false;
+      case 'saturation': {
+        const L = this.controllers[e.index].law;
+        const at = e.limit === 'high' ? L.umax : L.umin;
+        note(`controller ${e.element} ${rising === (e.limit === 'high') ? 'saturates at' : 'leaves'} ${pct(at)}${rising === (e.limit === 'high') ? '' : ' (saturation)'}`);
+        return true;
+      }
+      case 'regulator':
+        note(e.limit === 'low'
+          ? `regulator ${e.element} ${rising ? 'locks up (downstream at its set pressure)' : 'opens'}`
+          : `regulator ${e.element} ${rising ? 'throttles' : 'is fully open (downstream below set − band)'}`);
+        return true;
     }
   }
 
@@ -431,6 +551,14 @@ export class NetworkSystem implements EventfulProblem {
     const note = (what: string): void => { this.log.push({ t, what, kind: 'schedule', element: '' }); };
     this.branches.forEach((b) => { if (b.schedule) describe(b.b.name, 'valve', b.schedule); });
     this.feeds.forEach((f) => describe(f.name, 'feed', f.schedule));
+    if (this.controllers.some((c) => !c.continuous)) {
+      this.evaluate(t, _y);
+      for (const c of this.controllers) {
+        const ts = c.c.spec.sample;
+        if (ts !== undefined && Math.abs(t / ts - Math.round(t / ts)) < 1e-9) c.sample(t, this.measure(c, _y));
+      }
+      this.invalidate();
+    }
   }
 
   /** Events that hold at the start (a relief valve already above its set point). */
@@ -473,6 +601,9 @@ export class NetworkSystem implements EventfulProblem {
       ch.push({ key: `${b.name}.flow`, unit: 'kg/s' }, { key: `${b.name}.reynolds`, unit: '-' });
       if (b.hostLine) ch.push({ key: `${b.hostLine}.flow`, unit: 'kg/s' }, { key: `${b.hostLine}.reynolds`, unit: '-' });
     });
+    for (const c of this.model.controllers) {
+      ch.push({ key: `${c.name}.output`, unit: '-' }, { key: `${c.name}.error`, unit: measureUnit(c.spec.measure.quantity) });
+    }
     ch.push({ key: 'total.mass', unit: 'kg' });
     return ch;
   }
@@ -500,6 +631,7 @@ export class NetworkSystem implements EventfulProblem {
       out[k++] = f.reynolds;
       if (branches[i].hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
     }
+    for (const c of this.controllers) { out[k++] = c.u; out[k++] = c.e; }
     out[k++] = total;
   }
 
@@ -516,6 +648,19 @@ export class NetworkSystem implements EventfulProblem {
     for (const k of this.mIdx) s += y[k];
     return s;
   }
+}
+
+/** SI unit of a controller's error: that of what it measures. */
+function measureUnit(q: string): string {
+  return q === 'pressure' || q === 'gauge' ? 'Pa' : q === 'volume' ? 'm^3' : q === 'mass' ? 'kg' : q === 'temperature' ? 'K' : q === 'flow' ? 'kg/s' : '-';
+}
+
+/** Every entry of an n×n matrix, as a sparsity pattern. */
+function denseEntries(n: number): SparsePattern {
+  const ri = new Int32Array(n * n);
+  const ci = new Int32Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) { ri[i * n + j] = i; ci[i * n + j] = j; }
+  return patternFromEntries(n, ri, ci);
 }
 
 function pct(x: number): string {

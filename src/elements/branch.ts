@@ -59,6 +59,8 @@ export class BranchState {
   open = false;
   /** Opening commanded by a controller (driven valves), 0..1. */
   command = 0;
+  /** Lagged position z ∈ [−1, 1] of a regulator with a time constant (its vent reads −z), set from the state. */
+  position = 0;
   readonly dEq: number;
   // Scratch, so that evaluating a flow never allocates (it runs inside the rhs).
   private readonly tube: TubeFlow = { mdot: 0, reynolds: 0, regime: 'laminar', friction: 0 };
@@ -95,7 +97,9 @@ export class BranchState {
     switch (op.kind) {
       case 'schedule': return (this.schedule as Schedule).at(t);
       case 'relief': return this.open ? 1 : 0;
-      case 'regulator': return this.b.vent ? ventOpening(p1 - this.pa, op.set, op.band) : regulatorOpening(p2 - this.pa, op.set, op.band);
+      case 'regulator':
+        if (op.timeConstant > 0) return this.b.vent ? Math.max(-this.position, 0) : Math.max(this.position, 0);
+        return this.b.vent ? ventOpening(p1 - this.pa, op.set, op.band) : regulatorOpening(p2 - this.pa, op.set, op.band);
       case 'driven': return this.command;
       default: return 1;
     }

@@ -189,7 +189,12 @@ function readLimits(ck: Checker, node: YNode | undefined, map: YMap): { min: num
   return { min, max };
 }
 
-export function readController(ck: Checker, entry: NameEntry, names: Names, driven: Map<string, string>, cx: ExpectContext): ControllerSpec | undefined {
+/**
+ * `carriesDriven`: names whose flow is a driven valve's (the valves, and the lines that host
+ * them). Measuring one closes an algebraic loop (the output sets the flow it measures at the
+ * same instant), which is refused.
+ */
+export function readController(ck: Checker, entry: NameEntry, names: Names, driven: Map<string, string>, cx: ExpectContext, carriesDriven: Set<string>): ControllerSpec | undefined {
   const what = `controller \`${entry.name}\``;
   const map = ck.map(entry.node, what, 'write e.g. `hold: { kind: pid, measure: cell.gauge, target: 30 kPa gauge, kp: 2 %/kPa, ki: 5 %/(kPa*s), drives: fill }`');
   if (!map) return undefined;
@@ -198,6 +203,10 @@ export function readController(ck: Checker, entry: NameEntry, names: Names, driv
   const v = ck.params(map, scalars);
   const measureNode = ck.get(map, 'measure');
   const measure = measureNode && v.measure !== undefined ? readProbe(ck, measureNode, cx, true) : undefined;
+  if (measure && carriesDriven.has(measure.element)) {
+    ck.error(measureNode as YNode, 'algebraic-loop', `${what} measures \`${measure.text}\`, the flow of a valve a controller drives: the output would set the very flow it measures`, 'measure a chamber pressure, or the flow in a line before or after the valve');
+    return undefined;
+  }
   const dim = measure ? measureDimension(measure) : undefined;
   const targetNode = ck.get(map, 'target');
   let target: TimeSeries | undefined;

@@ -175,7 +175,9 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken, driven.get(e.name))));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
   const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
-  const controllers = defined(sections.controller.map((e) => readController(ck, e, names, driven, { names, chambers: chamberMap, duration: simulate?.duration })));
+  const carriesDriven = new Set<string>();
+  for (const v of valves) if (driven.has(v.name)) { carriesDriven.add(v.name); if (v.inLine) carriesDriven.add(v.inLine); }
+  const controllers = defined(sections.controller.map((e) => readController(ck, e, names, driven, { names, chambers: chamberMap, duration: simulate?.duration }, carriesDriven)));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {

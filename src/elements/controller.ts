@@ -1,0 +1,106 @@
+/**
+ * A controller in the network: measures a probe, sets the opening of the valve it drives
+ * (physics/pid.ts gives the law).
+ *
+ * Continuous: its states are the integral part I of the output and, with derivative action,
+ * the filtered measure yf; both integrate with the network. The saturation is read from the
+ * state (u = clamp(v)), and conditional integration too, so the right-hand side is correct
+ * whatever the event bookkeeping; the two saturation events (v crossing u_max and u_min)
+ * restart the integrator at the kink and log "saturates" / "leaves saturation".
+ *
+ * Sampled (`sample: Ts`): the output is held between samples (zero-order hold); its states
+ * are discrete (I, D, the previous measure) and change at the sample instants, which are
+ * breakpoints of the run.
+ *
+ * Start: bumpless, I(0) = u0 − kp·e(0) with u0 the controller's `initially`, yf(0) = y(0).
+ */
+import { filterRate, integralRate, pidRaw, pidSample, type PidLaw, type SampledPid } from '../physics/pid.js';
+import type { ControllerModel } from '../model/types.js';
+
+export class ControllerState {
+  readonly law: PidLaw;
+  readonly sampled: SampledPid | null;
+  /** State slots of I and yf (−1 when absent), set by the assembler. */
+  iIdx = -1;
+  fIdx = -1;
+  /** Last evaluation: measure, error, unclamped and clamped output. */
+  y = 0;
+  e = 0;
+  v = 0;
+  u = 0;
+
+  constructor(readonly c: ControllerModel) {
+    const s = c.spec;
+    this.law = { kp: s.kp, ki: s.ki, kd: s.kd, tf: s.filter, umin: s.limits.min, umax: s.limits.max, antiWindup: s.antiWindup, tt: s.tracking };
+    this.sampled = s.sample !== undefined ? { I: 0, D: 0, yPrev: Number.NaN, u: s.initially } : null;
+  }
+
+  get continuous(): boolean {
+    return this.sampled === null;
+  }
+
+  /** Number of state slots it needs. */
+  get slots(): number {
+    return this.continuous ? (this.law.kd !== 0 ? 2 : 1) : 0;
+  }
+
+  /** Sample times in (0, tEnd) of a sampled controller. */
+  sampleTimes(tEnd: number): number[] {
+    const ts = this.c.spec.sample;
+    if (ts === undefined) return [];
+    const out: number[] = [];
+    for (let k = 1; k * ts < tEnd; k++) out.push(k * ts);
+    return out;
+  }
+
+  /** Output at measure y and time t from the state vector (also keeps y, e, v, u). */
+  output(t: number, y: number, state: Float64Array): number {
+    this.y = y;
+    this.e = this.c.spec.target.at(t) - y;
+    if (this.sampled) {
+      this.v = this.sampled.u;
+      this.u = this.sampled.u;
+      return this.u;
+    }
+    const I = state[this.iIdx];
+    const yf = this.fIdx >= 0 ? state[this.fIdx] : y;
+    this.v = pidRaw(this.law, this.e, y, I, yf);
+    const L = this.law;
+    this.u = this.v > L.umax ? L.umax : this.v < L.umin ? L.umin : this.v;
+    return this.u;
+  }
+
+  /** Writes İ and ẏf for the last `output` (continuous only). */
+  rates(state: Float64Array, dydt: Float64Array): void {
+    if (!this.continuous) return;
+    const L = this.law;
+    const mode = this.v > L.umax ? 'high' : this.v < L.umin ? 'low' : 'free';
+    dydt[this.iIdx] = integralRate(L, this.e, this.v, mode);
+    if (this.fIdx >= 0) dydt[this.fIdx] = filterRate(L, this.y, state[this.fIdx]);
+  }
+
+  /** Sets the start states for measure y0 at t = 0 (bumpless start). */
+  start(y0: number, state: Float64Array): void {
+    const e0 = this.c.spec.target.at(0) - y0;
+    if (this.sampled) {
+      this.sampled.I = this.c.spec.initially - this.law.kp * e0;
+      this.sampled.D = 0;
+      this.sampled.yPrev = Number.NaN;
+      this.sample(0, y0); // the first sample: u = initially
+      return;
+    }
+    state[this.iIdx] = this.c.spec.initially - this.law.kp * e0;
+    if (this.fIdx >= 0) state[this.fIdx] = y0;
+  }
+
+  /** A sample of a sampled controller at measure y, time t. */
+  sample(t: number, y: number): void {
+    if (!this.sampled) return;
+    pidSample(this.law, this.sampled, this.c.spec.target.at(t) - y, y, this.c.spec.sample as number);
+  }
+
+  /** Event values: v − u_max and v − u_min (continuous only). */
+  saturation(which: 'high' | 'low'): number {
+    return this.v - (which === 'high' ? this.law.umax : this.law.umin);
+  }
+}
