@@ -26,10 +26,39 @@
  * the jacobian at every step; exploit its structure); Curtis, Powell & Reid, J. Inst. Maths
  * Applics 13 (1974) 117 (the colouring alternative and its limits).
  */
-import type { BranchPartials } from '../elements/branch.js';
-import type { PressurePartials } from '../elements/chamber.js';
+import type { BranchFlow, BranchPartials, BranchState } from '../elements/branch.js';
+import type { ChamberState, PressurePartials } from '../elements/chamber.js';
+import type { Gas } from '../physics/gas.js';
+import type { Model } from '../model/types.js';
 import { patternFromEntries, patternIndex, type SparsePattern } from '../linalg/sparse-pattern.js';
-import type { NetworkSystem } from './system.js';
+
+/** What the jacobian reads of the system (assemble/system.ts implements it). */
+export interface JacobianHost {
+  readonly model: Model;
+  readonly n: number;
+  readonly nc: number;
+  readonly gas: Gas;
+  readonly isothermal: boolean;
+  readonly rtol: number;
+  readonly atol: Float64Array;
+  readonly mIdx: Int32Array;
+  readonly TIdx: Int32Array;
+  readonly hIdx: Int32Array;
+  readonly resIdx: Int32Array;
+  readonly feedIdx: Int32Array;
+  readonly feeds: readonly { into: number; T: number }[];
+  readonly chambers: ChamberState[];
+  readonly branches: BranchState[];
+  readonly p: Float64Array;
+  readonly T: Float64Array;
+  readonly V: Float64Array;
+  readonly kappa: Float64Array;
+  readonly flows: BranchFlow[];
+  rhs(t: number, y: Float64Array, dydt: Float64Array): void;
+  temperatureRate(i: number, m: number, T: number, p: number, kap: number, mdot: number): number;
+  /** ∂q/∂p of feed f (a delivery curve) at the last evaluation, into out[0]. */
+  feedSlope(f: number, t: number, out: Float64Array): void;
+}
 
 const SQRT_EPS = Math.sqrt(2.220446049250313e-16);
 
@@ -79,7 +108,7 @@ export class NetworkJacobian {
   private readonly feedPos: Int32Array;
   private readonly slope = new Float64Array(1);
 
-  constructor(private readonly sys: NetworkSystem) {
+  constructor(private readonly sys: JacobianHost) {
     const { model, nc, mIdx, TIdx, hIdx, resIdx } = sys;
     const nb = model.branches.length;
     // Plain loops over typed arrays: this runs once, before the JIT has warmed up, and must

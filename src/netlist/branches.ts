@@ -15,7 +15,7 @@ import { CHECK, FEED, LINE, REGULATES, RELIEF, VALVE, VALVE_OPERATIONS, VALVE_RA
 import { resolve, type NameEntry, type Names } from './names.js';
 import { readOpening, readSchedule } from './schedule.js';
 import type { FeedCurve, FeedSpec, FlowValue, LineSpec, ValveOperation, ValveRating, ValveSpec } from './types.js';
-import type { YMap, YNode } from './yaml-tree.js';
+import type { YMap, YNode } from './yaml-types.js';
 
 const NODE_KINDS = ['chamber', 'reservoir'] as const;
 const RATE_HINT = 'write a mass flow (`0.5 g/s`) or a standard volume flow at ISO 8778 (`10 L/min ANR`)';

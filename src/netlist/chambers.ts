@@ -12,7 +12,7 @@ import type { Checker, Where } from './checker.js';
 import { CHAMBER, LIMITS, SPHERE_LAWS, START, WALL_LAWS, wallLaw } from './kinds.js';
 import type { NameEntry } from './names.js';
 import type { ChamberSpec, SourcePos, StartSpec, WallSpec } from './types.js';
-import type { YMap, YNode } from './yaml-tree.js';
+import type { YMap, YNode } from './yaml-types.js';
 
 const START_KEYS = ['pressure', 'stretch', 'volume', 'mass'] as const;
 const POINTS_HINT = 'each point is [volume, gauge pressure], e.g. `[0.5 L, 2 kPa]`';

@@ -11,7 +11,7 @@ import { parsePressure, parsePressureDifference, parseAmbientPressure } from '..
 import { parseFraction, parseQuantity, type QuantityResult, type ValueError } from '../units/quantity.js';
 import type { Bounds, ParamSpec } from './kinds.js';
 import type { SourcePos } from './types.js';
-import type { Pos, YMap, YNode, YSeq } from './yaml-tree.js';
+import type { Pos, YMap, YNode, YSeq } from './yaml-types.js';
 
 export const IDENTIFIER = /^[A-Za-z][A-Za-z0-9_]*$/;
 

@@ -19,7 +19,7 @@ import { resolve, SECTIONS, type NameEntry, type Names } from './names.js';
 import { readOpening } from './schedule.js';
 import { readPressureSeries, tableSeries, constantSeries } from './time-series.js';
 import type { ControllerSpec, Probe, TimeSeries } from './types.js';
-import type { YMap, YNode } from './yaml-tree.js';
+import type { YMap, YNode } from './yaml-types.js';
 
 const TIME = 2; // index of the time base dimension (mathjs order: mass, length, time, ...)
 /** Filter time constant of a derivative term as a fraction of kd/kp (N = 10, common practice). */

@@ -15,7 +15,7 @@ import type { Checker } from './checker.js';
 import { EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
 import type { Names } from './names.js';
 import type { ChamberSpec, Comparison, ControllerSpec, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
-import type { YMap, YNode, YScalar } from './yaml-tree.js';
+import type { YMap, YNode, YScalar } from './yaml-types.js';
 
 const PROBE_HINT = 'write `<element>.<quantity>`, e.g. `cell_a.gauge`, `supply.flow` or `total.mass`';
 const COMPARISONS = ['below', 'above', 'near'] as const;

@@ -26,7 +26,7 @@
  * §8.2 (block collections), §10.3 (core schema).
  */
 import type { Diagnostic } from '../diag/diagnostic.js';
-import type { Pos, YamlTree, YEntry, YMap, YNode, YScalar, YSeq } from './yaml-tree.js';
+import type { Pos, YamlTree, YEntry, YMap, YNode, YScalar, YSeq } from './yaml-types.js';
 
 /** Deeper than this goes to the general path (which reports the nesting limit). */
 const MAX_FAST_DEPTH = 24;

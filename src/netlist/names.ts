@@ -5,7 +5,7 @@
  */
 import { didYouMean } from '../diag/did-you-mean.js';
 import { IDENTIFIER, type Checker, type Where } from './checker.js';
-import type { YMap, YNode } from './yaml-tree.js';
+import type { YMap, YNode } from './yaml-types.js';
 
 export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'controller';
 export const SECTIONS: Record<ElementKind, string> = {

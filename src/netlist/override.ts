@@ -13,7 +13,8 @@ import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { closestMatches, listChoices } from '../diag/did-you-mean.js';
 import { readNetlist } from './read.js';
 import type { NetlistDoc } from './types.js';
-import { parseYamlTree, type YNode } from './yaml-tree.js';
+import { parseYamlTree } from './yaml-tree.js';
+import type { YNode } from './yaml-types.js';
 
 export type PathSegment = string | number;
 

@@ -17,7 +17,8 @@ import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY }
 import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
 import { readPressureSeries } from './time-series.js';
 import type { ChamberSpec, ControllerSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
-import { parseYamlTree, type YMap, type YNode } from './yaml-tree.js';
+import { parseYamlTree } from './yaml-tree.js';
+import type { YMap, YNode } from './yaml-types.js';
 
 const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
 

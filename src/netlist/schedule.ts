@@ -9,7 +9,7 @@
 import type { Checker } from './checker.js';
 import { SCHEDULE_STEP } from './kinds.js';
 import type { ScheduleStep } from './types.js';
-import type { YNode } from './yaml-tree.js';
+import type { YNode } from './yaml-types.js';
 
 const OPENING_WORDS: Record<string, number> = { open: 1, closed: 0 };
 const SCHEDULE_HINT = 'write e.g. `schedule: [{ at: 1 s, open: 100%, over: 50 ms }, { at: 3 s, open: closed }]`';

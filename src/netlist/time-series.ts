@@ -15,7 +15,7 @@ import { MAX_GAS_PRESSURE, splitQualifier, type PressureReference } from '../uni
 import { readUnit } from '../units/quantity.js';
 import type { Checker } from './checker.js';
 import type { TimeSeries } from './types.js';
-import type { YMap, YNode, YScalar } from './yaml-tree.js';
+import type { YMap, YNode, YScalar } from './yaml-types.js';
 
 /** Points at which an expression is sampled to catch negative absolute pressure. */
 const SAMPLES = 1000;

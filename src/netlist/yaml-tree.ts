@@ -8,50 +8,13 @@ import { isAlias, isMap, isPair, isScalar, isSeq, LineCounter, parseDocument } f
 import type { Node as YamlNode, YAMLError } from 'yaml';
 import type { Diagnostic } from '../diag/diagnostic.js';
 import { fastYamlTree } from './fast-yaml.js';
+import type { Pos, YamlTree, YEntry, YNode, YScalar } from './yaml-types.js';
 
 import { MAX_SOURCE_BYTES, MAX_SOURCE_TEXT } from './limits.js';
 
 export { MAX_SOURCE_BYTES };
 /** Deepest nesting of maps and lists accepted (a netlist needs about 6). */
 export const MAX_DEPTH = 32;
-
-export interface Pos {
-  line: number;
-  column: number;
-}
-
-interface Base {
-  path: (string | number)[];
-  /** Where the value starts. */
-  pos: Pos;
-  /** Where the key holding this value starts, if any (better for "missing" and "empty"). */
-  keyPos?: Pos;
-}
-export interface YEntry {
-  key: string;
-  keyPos: Pos;
-  value: YNode;
-}
-export interface YMap extends Base {
-  kind: 'map';
-  entries: YEntry[];
-}
-export interface YSeq extends Base {
-  kind: 'seq';
-  items: YNode[];
-}
-export interface YScalar extends Base {
-  kind: 'scalar';
-  value: unknown;
-  /** True for `key:` with nothing after it. */
-  empty: boolean;
-}
-export type YNode = YMap | YSeq | YScalar;
-
-export interface YamlTree {
-  root?: YNode;
-  diagnostics: Diagnostic[];
-}
 
 const BINARY = /[\x00-\x08\x0B\x0C\x0E-\x1F\x7F\uFFFD]/;
 

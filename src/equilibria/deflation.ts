@@ -1,0 +1,185 @@
+/**
+ * Closed groups too large to enumerate: deflated Newton iteration on Σm = M, p_i = p_1 in mass
+ * coordinates from many starts (Farrell, Birkisson & Funke, SIAM J. Sci. Comput. 37 (2015)
+ * A2026; shifted operator with p = 2, σ = 1). See equilibria.ts for the choice of starts.
+ */
+import { DenseLu } from '../linalg/dense-lu.js';
+import { solveVolume } from '../model/volume.js';
+import type { WallPoint } from '../physics/wall.js';
+import { cappedSegments, endVolume, type Root } from './enumerate.js';
+import { chamberAt, segmentOfVolume, type AtP, type RestChamber } from './rest.js';
+
+// ---- closed groups: deflated Newton ------------------------------------------------------
+
+/** Deterministic pseudo-random numbers in [0, 1) (mulberry32). */
+function random(seed: number): () => number {
+  let a = seed >>> 0;
+  return () => {
+    a = (a + 0x6d2b79f5) >>> 0;
+    let t = a;
+    t = Math.imul(t ^ (t >>> 15), t | 1);
+    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
+  };
+}
+
+/** Pressure (Pa abs), volume and dp/dm of a chamber holding mass m; NaN outside its law. */
+export function pressureOfMass(ch: RestChamber, m: number, pa: number, s: WallPoint, guess: number): { p: number; V: number; dpdm: number } {
+  if (ch.wall.rigid) {
+    const Vt = ch.wall.V0 + ch.Vd;
+    return { p: (m * ch.RT) / Vt, V: ch.wall.V0, dpdm: ch.RT / Vt };
+  }
+  if (!(m > 0)) return { p: Number.NaN, V: Number.NaN, dpdm: Number.NaN };
+  const V = solveVolume(ch.wall, pa, ch.Vd, m * ch.RT, guess, ch.lo, s);
+  if (!Number.isFinite(V)) return { p: Number.NaN, V, dpdm: Number.NaN };
+  ch.wall.eval(V, s);
+  const p = pa + s.p;
+  return { p, V, dpdm: (s.dpdV * ch.RT) / (p + (V + ch.Vd) * s.dpdV) };
+}
+
+export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts: number, hints: Float64Array[]): Root[] {
+  const n = chs.length;
+  const s: WallPoint = { p: 0, dpdV: 0 };
+  const tmp: AtP = { V: 0, m: 0, C: 0 };
+  const lu = new DenseLu(n);
+  const J = new Float64Array(n * n);
+  const F = new Float64Array(n);
+  const d = new Float64Array(n);
+  const guess = chs.map((c) => c.wall.V0);
+  const found: Float64Array[] = [];
+  const rng = random(20250601);
+
+  /** Residual at u (masses / M); false outside the laws. */
+  const residual = (u: Float64Array, withJ: boolean): boolean => {
+    let sum = -1;
+    let p0 = 0, g0 = 0;
+    for (let i = 0; i < n; i++) {
+      const r = pressureOfMass(chs[i], M * u[i], pa, s, guess[i]);
+      if (!Number.isFinite(r.p)) return false;
+      guess[i] = r.V;
+      sum += u[i];
+      if (i === 0) { p0 = r.p; g0 = r.dpdm; F[0] = 0; continue; }
+      F[i] = (r.p - p0) / pa;
+      if (withJ) {
+        for (let j = 0; j < n; j++) J[i * n + j] = 0;
+        J[i * n + i] = (M * r.dpdm) / pa;
+        J[i * n] = (-M * g0) / pa;
+      }
+    }
+    F[0] = sum;
+    if (withJ) for (let j = 0; j < n; j++) J[j] = 1;
+    return true;
+  };
+  const norm = (v: Float64Array): number => v.reduce((a, x) => Math.max(a, Math.abs(x)), 0);
+
+  const newton = (start: Float64Array, deflate: boolean): Float64Array | null => {
+    const u = Float64Array.from(start);
+    for (let it = 0; it < 80; it++) {
+      if (!residual(u, true)) return null;
+      const r = norm(F);
+      for (let i = 0; i < n; i++) d[i] = -F[i];
+      if (!lu.factor(Float64Array.from(J))) return null;
+      lu.solve(d);
+      let tau = 1;
+      if (deflate && found.length) {
+        let gd = 0;
+        for (const z of found) {
+          let r2 = 0;
+          for (let i = 0; i < n; i++) r2 += (u[i] - z[i]) ** 2;
+          if (r2 === 0) return null;
+          const c = -2 / (r2 * (1 + r2));
+          for (let i = 0; i < n; i++) gd += c * (u[i] - z[i]) * d[i];
+        }
+        tau = 1 / (1 - gd);
+      }
+      // keep every mass positive, and stay inside the laws (Gent lock)
+      let step = tau;
+      for (let i = 0; i < n; i++) if (u[i] + step * d[i] <= 0) step = Math.min(step, (0.9 * u[i]) / -d[i]);
+      const trial = new Float64Array(n);
+      let ok = false;
+      for (let h = 0; h < 40; h++) {
+        for (let i = 0; i < n; i++) trial[i] = u[i] + step * d[i];
+        if (residual(trial, false)) { ok = true; break; }
+        step *= 0.5;
+      }
+      if (!ok) return null;
+      let moved = 0;
+      for (let i = 0; i < n; i++) moved = Math.max(moved, Math.abs(trial[i] - u[i]));
+      u.set(trial);
+      if (r < 1e-13 && moved < 1e-12) return u;
+      if (moved < 1e-15) return r < 1e-10 ? u : null;
+    }
+    residual(u, false);
+    return norm(F) < 1e-10 ? u : null;
+  };
+
+  const capped = chs.map((ch) => cappedSegments(ch, M, pa, s));
+  /** Masses (over M) at the pressure in a combination's common range where they come closest to M. */
+  const startAt = (combo: number[]): Float64Array | null => {
+    const segs = combo.map((k, i) => capped[i][k]);
+    const lo = Math.max(...segs.map((c) => c.pLo));
+    const hi = Math.min(...segs.map((c) => c.pHi));
+    if (!(hi > lo)) return null;
+    let best: Float64Array | null = null;
+    let miss = Infinity;
+    for (let j = 1; j < 32; j++) {
+      const p = lo + ((hi - lo) * j) / 32;
+      const u = new Float64Array(n);
+      let total = 0;
+      let ok = true;
+      for (let i = 0; i < n && ok; i++) {
+        ok = chamberAt(chs[i], segs[i].seg, p, pa, s, tmp) || chamberAt(chs[i], segs[i].seg, p, pa, s, tmp, endVolume(segs[i], p));
+        u[i] = tmp.m;
+        total += tmp.m;
+      }
+      if (!ok || !(total > 0)) continue;
+      if (Math.abs(total - M) < miss) {
+        miss = Math.abs(total - M);
+        best = u.map((x) => x / total);
+      }
+    }
+    return best;
+  };
+  // combinations in order of how many chambers sit off their first segment (the states an engineer
+  // meets first: all on the rising branch, one past its maximum, two, ...), then random ones
+  const combos: number[][] = [];
+  const budget = Math.max(0, starts - hints.length);
+  const ordered = (k: number, from: number, acc: number[]): void => {
+    if (combos.length >= budget / 2) return;
+    if (k === 0) { combos.push(acc.slice()); return; }
+    for (let i = from; i < n; i++) {
+      for (let seg = 1; seg < capped[i].length; seg++) {
+        acc[i] = seg;
+        ordered(k - 1, i + 1, acc);
+        acc[i] = 0;
+      }
+    }
+  };
+  for (let k = 0; k <= n && combos.length < budget / 2; k++) ordered(k, 0, new Array<number>(n).fill(0));
+  while (combos.length < budget) combos.push(capped.map((c) => Math.floor(rng() * Math.max(1, c.length))));
+
+  const tries: Float64Array[] = hints.map((h) => {
+    const total = h.reduce((a, x) => a + x, 0);
+    return h.map((x) => x / total);
+  });
+  for (const u0 of [...tries, ...combos.map(startAt)]) {
+    if (!u0) continue;
+    const u = newton(u0, true);
+    if (!u) continue;
+    const polished = newton(u, false) ?? u;
+    if (found.some((z) => z.every((x, i) => Math.abs(x - polished[i]) <= 1e-7))) continue;
+    found.push(polished);
+  }
+  return found.map((u) => {
+    const at: AtP[] = [];
+    const segs: number[] = [];
+    let p = 0;
+    for (let i = 0; i < n; i++) {
+      const r = pressureOfMass(chs[i], M * u[i], pa, s, chs[i].wall.V0);
+      if (i === 0) p = r.p;
+      at.push({ V: r.V, m: M * u[i], C: 1 / r.dpdm });
+      segs.push(chs[i].wall.rigid ? 0 : segmentOfVolume(chs[i], r.V));
+    }
+    return { p, segs, at };
+  }).sort((a, b) => a.p - b.p);
+}

@@ -1,0 +1,114 @@
+/**
+ * Result types and shared constants of the equilibria analysis (equilibria.ts and the files it
+ * is built from: rest.ts, enumerate.ts, deflation.ts, steady.ts, group.ts).
+ */
+import type { HeatMode } from '../model/types.js';
+import type { GroupOutcome } from '../transient/results.js';
+import type { Stability, StabilityVerdict } from './stability.js';
+
+/** Samples per wall segment for bracketing roots (Chebyshev–Lobatto in V or ln V). */
+export const SAMPLES = 128;
+/** Branch combinations per closed group searched exhaustively before switching to deflation. */
+export const DEFAULT_MAX_COMBINATIONS = 4096;
+/** Network equilibria listed at most (the count is always reported). */
+export const DEFAULT_MAX_LISTED = 1000;
+/** Two rest states are the same when every chamber's mass agrees to this fraction of the group's gas. */
+export const SAME = 1e-9;
+/** The transient reached an equilibrium when its end state is this close (fraction of group gas). */
+export const REACHED = 1e-2;
+
+export type ValveState = 'open' | 'closed' | 'end';
+export type GasSource = 'start' | 'end';
+
+export interface EquilibriaOptions {
+  valves?: ValveState;
+  gas?: GasSource;
+  /** Run the transient to see which equilibrium it reaches (default true; needed for gas: end). */
+  transient?: boolean;
+  maxCombinations?: number;
+  maxListed?: number;
+  /** Starts for the deflated Newton search of large groups (default 64 + 16 per chamber). */
+  starts?: number;
+  /** Per-chamber gas masses (kg) to use instead of the start or end state. */
+  masses?: ArrayLike<number>;
+}
+
+export interface ChamberRest {
+  pressure: number;   // Pa abs
+  gauge: number;      // Pa
+  volume: number;     // m³
+  stretch?: number;   // spheres
+  mass: number;       // kg, incl. lumped line volume
+  /** Monotone segment of the wall curve, counted from the smallest volume. */
+  segment: number;
+  branch: 'rising' | 'falling' | 'rigid';
+}
+
+export interface GroupEquilibrium {
+  chambers: ChamberRest[];
+  stability: Stability;
+  /** How a one-way valve stands at this state, when it matters. */
+  note?: string;
+}
+
+export interface GroupResult {
+  chambers: string[];
+  kind: 'closed' | 'open' | 'fed';
+  /** Gas the group holds (closed groups), kg. */
+  mass: number | null;
+  method: 'enumeration' | 'deflation' | 'steady-flow' | 'none';
+  /** Branch combinations examined, or starts of the deflated search. */
+  combinations: number;
+  /** False when the method cannot promise that every equilibrium is listed. */
+  complete: boolean;
+  equilibria: GroupEquilibrium[];
+  /** Check or relief valves passing gas in this group's steady state. */
+  flowing: string[];
+  notes: string[];
+}
+
+export interface NetworkEquilibrium {
+  chambers: Record<string, ChamberRest>;
+  stable: boolean;
+  stability: StabilityVerdict;
+  growth_rate: number | null;
+  time_constant: number | null;
+  eigenvalues: { re: number; im: number }[];
+  /** Index into each group's equilibria. */
+  members: number[];
+  /** False when a check or relief valve would open at this state. */
+  consistent: boolean;
+  warnings: string[];
+  /** How one-way valves stand (cracked, reseated, open) where it matters. */
+  notes: string[];
+}
+
+export interface TransientMatch {
+  status: 'completed' | 'failed';
+  end: number;
+  outcomes: GroupOutcome[];
+  /** Index of the equilibrium the transient settled at, or null. */
+  reached: number | null;
+  /** Nearest listed equilibrium and its distance (largest chamber mass difference / group gas). */
+  nearest: number | null;
+  distance: number | null;
+  message: string;
+}
+
+export interface EquilibriaResult {
+  format: 1;
+  title: string;
+  file: string;
+  status: 'ok' | 'failed';
+  message: string;
+  valves: ValveState;
+  gas: GasSource;
+  heat: HeatMode;
+  ambient: number;
+  groups: GroupResult[];
+  equilibria: NetworkEquilibrium[];
+  /** Number of network equilibria (combinations of the groups'); may exceed the listed ones. */
+  count: number;
+  transient: TransientMatch | null;
+  notes: string[];
+}
