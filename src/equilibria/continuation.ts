@@ -46,6 +46,8 @@ import { makeParameter } from './trace-parameter.js';
 import { GroupProblem } from './trace-problem.js';
 import type { TraceBranch, TraceOptions, TraceOutcome } from './trace-types.js';
 import { Tracer } from './tracer.js';
+import { hasLoopStates } from './closed-loop.js';
+import { traceLoop } from './loop-trace.js';
 
 export type { TraceOptions, TraceResult, TraceBranch, TracePoint, TraceOutcome } from './trace-types.js';
 
@@ -76,6 +78,20 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   const maxStep = options.maxStep ?? 0.05;
   const maxPoints = options.maxPoints ?? 1000;
   const notes: string[] = [];
+  if (hasLoopStates(model)) {
+    // controllers and regulators: the rest state followed over the parameter, stability watched
+    const branches = traceLoop(param, valves, notes);
+    notes.push('controllers or regulators: the rest state followed by Newton at sampled values of the parameter, a change of stability located by bisection');
+    return {
+      ok: true,
+      value: {
+        format: 1, title: model.doc.title, file: model.doc.file,
+        status: 'ok', message: `${branches.length} branch${branches.length === 1 ? '' : 'es'}`,
+        parameter: { vary: param.vary, from: param.from, to: param.to, unit: param.unit },
+        valves, branches, notes,
+      },
+    };
+  }
   const base = restSetup(model, valves);
   const baseMasses = Float64Array.from(model.chambers.map((c) => c.m0));
   const branches: TraceBranch[] = [];
