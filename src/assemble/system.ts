@@ -225,7 +225,7 @@ export class NetworkSystem implements EventfulProblem {
     });
     if (this.controllers.length || this.zIdx.some((z) => z >= 0)) {
       // start states that depend on the network's start: a regulator's position follows its
-      // law, a controller starts bumpless
+      // law, a controller its integral at `initially`
       this.model.branches.forEach((b, i) => {
         const op = b.valve?.operation;
         if (this.zIdx[i] < 0 || b.vent || op?.kind !== 'regulator') return;

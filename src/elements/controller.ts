@@ -12,7 +12,9 @@
  * are discrete (I, D, the previous measure) and change at the sample instants, which are
  * breakpoints of the run.
  *
- * Start: bumpless, I(0) = u0 − kp·e(0) with u0 the controller's `initially`, yf(0) = y(0).
+ * Start: the integral part starts at the controller's `initially` (the output it would give at
+ * zero error, as if it had been holding the plant before the run), yf(0) = y(0); an error at
+ * t = 0 acts through kp at once (the proportional kick of a set-point step).
  */
 import { filterRate, integralRate, pidRaw, pidSample, type PidLaw, type SampledPid } from '../physics/pid.js';
 import type { ControllerModel } from '../model/types.js';
@@ -79,17 +81,16 @@ export class ControllerState {
     if (this.fIdx >= 0) dydt[this.fIdx] = filterRate(L, this.y, state[this.fIdx]);
   }
 
-  /** Sets the start states for measure y0 at t = 0 (bumpless start). */
+  /** Sets the start states for measure y0 at t = 0. */
   start(y0: number, state: Float64Array): void {
-    const e0 = this.c.spec.target.at(0) - y0;
     if (this.sampled) {
-      this.sampled.I = this.c.spec.initially - this.law.kp * e0;
+      this.sampled.I = this.c.spec.initially;
       this.sampled.D = 0;
       this.sampled.yPrev = Number.NaN;
       this.sample(0, y0); // the first sample: u = initially
       return;
     }
-    state[this.iIdx] = this.c.spec.initially - this.law.kp * e0;
+    state[this.iIdx] = this.c.spec.initially;
     if (this.fIdx >= 0) state[this.fIdx] = y0;
   }
 

@@ -7,8 +7,9 @@
  * unknowns are every chamber mass (and the controller and regulator states), the equations
  * f(y) = 0 of the same right-hand side the integrators use (assemble/system.ts), with a closed
  * group's mass balance replaced by the gas it holds. Newton's method with a difference
- * jacobian and a backtracking line search, from the start state (a controller starts
- * bumpless) and from the transient's end state; solutions are told apart by their masses.
+ * jacobian and a backtracking line search (after pseudo-transient continuation when Newton
+ * alone fails: it finds the stable rest states), from the start state (a controller starts
+ * at its `initially`) and from the transient's end state; solutions are told apart by their masses.
  * A controller with integral action rests where its error is zero; one held at an output limit
  * rests anywhere its integral keeps it there (clamping), which the result notes.
  *
@@ -130,6 +131,52 @@ function newton(P: Problem, y: Float64Array): boolean {
   return r < 1e3 * TOL;
 }
 
+/**
+ * Pseudo-transient continuation towards a stable rest state (y modified in place): implicit
+ * Euler steps (I/Δt − J)·Δy = f on the scaled state with Δt growing as the residual falls
+ * (switched evolution relaxation). It follows the dynamics where Newton's method alone is lost
+ * among the kinks of clamps and tables, and conserves a closed group's gas as the dynamics do.
+ * Reference: Kelley & Keyes, SIAM J. Numer. Anal. 35 (1998) 508 (Ψtc; from memory).
+ */
+function pseudoTransient(P: Problem, y: Float64Array): void {
+  const n = P.slots.length;
+  const f = new Float64Array(P.sys.n);
+  const fs = new Float64Array(n);
+  const fp = new Float64Array(n);
+  const A = new Float64Array(n * n);
+  const lu = new DenseLu(n);
+  const scaled = (yy: Float64Array, out: Float64Array): number => {
+    P.sys.rhs(P.t, yy, f);
+    let s = 0;
+    P.slots.forEach((k, i) => { out[i] = f[k] / P.scales[i]; s += out[i] * out[i]; });
+    return Math.sqrt(s);
+  };
+  let r = scaled(y, fs);
+  let dt = 1e-3;
+  for (let it = 0; it < 400 && Number.isFinite(r) && r > 1e-13; it++) {
+    for (let j = 0; j < n; j++) {
+      const k = P.slots[j];
+      const h = FD * P.scales[j] * Math.max(Math.abs(y[k]) / P.scales[j], 1);
+      const y0 = y[k];
+      y[k] = y0 + h;
+      scaled(y, fp);
+      y[k] = y0;
+      for (let i = 0; i < n; i++) A[i * n + j] = -((fp[i] - fs[i]) / h) * P.scales[j];
+    }
+    for (let i = 0; i < n; i++) A[i * n + i] += 1 / dt;
+    if (!lu.factor(A)) return;
+    const dx = Float64Array.from(fs);
+    lu.solve(dx);
+    const keep = Float64Array.from(y);
+    P.slots.forEach((k, i) => { y[k] += P.scales[i] * dx[i]; });
+    if (P.slots.slice(0, P.sys.nc).some((k) => !(y[k] > 0))) { y.set(keep); dt /= 10; r = scaled(y, fs); continue; }
+    const rn = scaled(y, fs);
+    if (!Number.isFinite(rn)) { y.set(keep); dt /= 10; r = scaled(y, fs); continue; }
+    dt = Math.min(dt * Math.max(0.1, Math.min(10, r / rn)), 1e9);
+    r = rn;
+  }
+}
+
 function restChambers(P: Problem, y: Float64Array): Record<string, ChamberRest> {
   const { sys, setup } = P;
   sys.evaluate(P.t, y);
@@ -174,7 +221,12 @@ export function loopEquilibria(model: Model, valves: ValveState, masses: ArrayLi
   const found: Float64Array[] = [];
   for (const s of starts) {
     const y = Float64Array.from(s);
-    if (!newton(P, y)) continue;
+    if (!newton(P, y)) {
+      // follow the dynamics towards a stable rest state, then polish
+      y.set(s);
+      pseudoTransient(P, y);
+      if (!newton(P, y)) continue;
+    }
     if (found.some((z) => sameState(P, z, y))) continue;
     found.push(y);
   }

@@ -231,7 +231,7 @@ export function readController(ck: Checker, entry: NameEntry, names: Names, driv
   const { kp, ki, kd } = gains;
   if (!measure || !target || kp === undefined || ki === undefined || kd === undefined || !drivesOk || !limits || initially === undefined || v.kind === undefined || v['anti-windup'] === undefined) return undefined;
   if (initially < limits.min || initially > limits.max) {
-    ck.error(initNode ?? map, 'out-of-range', `\`initially\` of ${what} lies outside its output limits`, `choose a start output between ${limits.min * 100} % and ${limits.max * 100} %`);
+    ck.error(initNode ?? map, 'out-of-range', `\`initially\` of ${what} lies outside its output limits`, `choose a start integral between ${limits.min * 100} % and ${limits.max * 100} %`);
     return undefined;
   }
   if ([kp, ki, kd].some((g) => g !== 0) && [kp, ki, kd].some((g) => g * (kp || ki || kd) < 0)) {

@@ -217,7 +217,7 @@ function readWhen(ck: Checker, map: YMap, cx: ExpectContext, what: string): Extr
     return undefined;
   }
   if (t0 === undefined || t1 === undefined || s === undefined) return undefined;
-  return { over: [t0, t1], stat: s as 'max' | 'min' | 'mean' };
+  return { over: [t0, t1], stat: s as 'max' | 'min' | 'mean' | 'overshoot' };
 }
 
 function scalarText(node: YNode | undefined): string {
@@ -236,7 +236,7 @@ function defaultName(map: YMap): string {
 }
 
 function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): ExpectSpec | undefined {
-  const extra = map.entries.find((e) => e.key !== 'name' && e.key !== 'settles');
+  const extra = map.entries.find((e) => e.key !== 'name' && e.key !== 'settles' && e.key !== 'probe');
   if (extra) {
     ck.error({ pos: extra.keyPos, path: [...map.path, extra.key] }, 'conflicting-keys', `\`settles\` stands alone; \`${extra.key}\` does not go with it`, 'put probe checks in their own list item');
     return undefined;
@@ -250,8 +250,12 @@ function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): E
     ck.error(ck.get(s, 'within') ?? s, 'out-of-range', `\`within\` (${within} s) is after the end of the simulation (${cx.duration} s)`, 'choose a time within `simulate.duration`');
     return undefined;
   }
-  if (within === undefined || v.band === undefined) return undefined;
-  return { kind: 'settles', name, within, band: v.band as number, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  const probeNode = ck.get(map, 'probe');
+  const probe = probeNode ? readProbe(ck, probeNode, cx) : undefined;
+  if (within === undefined || v.band === undefined || (probeNode && !probe)) return undefined;
+  const spec: ExpectSpec = { kind: 'settles', name, within, band: v.band as number, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  if (probe) spec.probe = probe;
+  return spec;
 }
 
 function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | undefined {
@@ -271,7 +275,8 @@ function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | unde
   const probe = readProbe(ck, probeNode, cx);
   const what = `the expectation \`${name}\``;
   const when = readWhen(ck, map, cx, what);
-  const compare = probe ? readComparison(ck, map, probeValueKind(probe, cx.controllers), what) : undefined;
+  const overshoot = when !== undefined && 'over' in when && when.stat === 'overshoot';
+  const compare = probe ? readComparison(ck, map, overshoot ? 'fraction' : probeValueKind(probe, cx.controllers), what) : undefined;
   if (!probe || !when || !compare) return undefined;
   return { kind: 'probe', name, probe, when, compare, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
 }

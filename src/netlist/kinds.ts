@@ -87,7 +87,7 @@ function opt(name: string, dimension: ParamDimension, doc: string, extra: Partia
 export const GAS_NAMES = ['air', 'nitrogen', 'helium', 'carbon-dioxide'] as const;
 export const HEAT_MODES = ['isothermal', 'adiabatic', 'exchange'] as const;
 export const METHODS = ['auto', 'explicit', 'implicit'] as const;
-export const STATS = ['max', 'min', 'mean'] as const;
+export const STATS = ['max', 'min', 'mean', 'overshoot'] as const;
 export const SPHERE_LAWS = ['neo-hookean', 'mooney-rivlin', 'gent'] as const;
 export const CONTROLLER_KINDS = ['pid'] as const;
 export const ANTI_WINDUP = ['clamping', 'back-calculation'] as const;
@@ -357,7 +357,7 @@ export const CONTROLLER: KindTable = {
     opt('anti-windup', 'enum', 'clamping (integration stops while the output is held at a limit and the error drives it further) or back-calculation', { values: ANTI_WINDUP, default: 'clamping' }),
     opt('tracking-time', 'time', 'back-calculation tracking time Tt (default √(Ti·Td), or Ti = kp/ki without kd)', { bounds: POSITIVE }),
     opt('sample', 'time', 'sample period of a discrete controller (output held between samples); absent: continuous', { bounds: POSITIVE }),
-    opt('initially', 'structure', 'output at t = 0 (the integral starts there: a bumpless start); default the lower limit', { shape: 'opening' }),
+    opt('initially', 'structure', 'integral part at t = 0: the output at zero error, as if it had held the plant before the run (default the lower limit); an error at t = 0 acts through kp at once', { shape: 'opening' }),
   ],
 };
 
@@ -429,11 +429,11 @@ export const EXPECT: KindTable = {
     opt('probe', 'text', '<element>.<quantity> or total.mass'),
     opt('at', 'structure', 'a time or `end`', { shape: 'at' }),
     opt('over', 'structure', '[t0, t1], with stat', { shape: 'over' }),
-    opt('stat', 'enum', 'statistic over the interval', { values: STATS }),
+    opt('stat', 'enum', 'statistic over the interval; `overshoot`: how far the probe passes its final value, as a fraction of its step over the interval (compare with e.g. `below: 10%`)', { values: STATS }),
     opt('below', 'structure', 'passes when the value is below this (in the probe’s dimension)', { shape: 'probe-value' }),
     opt('above', 'structure', 'passes when the value is above this', { shape: 'probe-value' }),
     opt('near', 'structure', '{ value, within: <abs or %> }', { shape: 'near' }),
-    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber stays within band of its final value after `within`', { shape: 'settles' }),
+    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber (or, with `probe`, that probe) stays within band of its final value after `within`', { shape: 'settles' }),
   ],
 };
 

@@ -186,11 +186,16 @@ export type ExpectSpec =
       kind: 'probe';
       name: string;
       probe: Probe;
-      when: { at: number | 'end' } | { over: [number, number]; stat: 'max' | 'min' | 'mean' };
+      /**
+       * `overshoot`: how far the probe goes past its final value (at t1) beyond the step from its
+       * value at t0, as a fraction of that step: max over [t0, t1] of (x − x1)·sgn(x1 − x0)/|x1 − x0|, ≥ 0.
+       */
+      when: { at: number | 'end' } | { over: [number, number]; stat: 'max' | 'min' | 'mean' | 'overshoot' };
       compare: Comparison;
       pos: SourcePos;
     }
-  | { kind: 'settles'; name: string; within: number; band: number; pos: SourcePos };
+  /** Every chamber's pressure and volume, or with `probe` that one probe, stay within band of their final values after `within`. */
+  | { kind: 'settles'; name: string; within: number; band: number; probe?: Probe; pos: SourcePos };
 
 export interface NetlistDoc {
   file: string;

@@ -23,8 +23,7 @@
  *             the output is at a limit and ki·e_k pushes further),
  * and u_k is held until the next sample.
  *
- * A bumpless start: I(0) = u0 − kp·e(0), so the output starts at u0 (the controller's
- * `initially`) whatever the error.
+ * Start: I(0) = u0 (the controller's `initially`), the output at zero error.
  *
  * References: Åström & Hägglund, Advanced PID Control, ISA 2006, §3.3 (derivative filter,
  * derivative on the measure), §3.5 (windup: back-calculation, tracking time √(Ti·Td),

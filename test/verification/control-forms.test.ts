@@ -23,7 +23,9 @@ describe('closed forms of the linear PI loop (Ogata ch. 5–6, from memory)', ()
     const d = 20;
     expect(piStep(L, d, 0)).toBeCloseTo(0, 12);
     expect(piStep(L, d, 1e3)).toBeCloseTo(d, 9);
-    // Cm·ẍ + (G + q·kp)·ẋ + q·ki·x = q·ki·δ + q·kp·δ·(impulse at 0): check the ODE at t > 0
+    // Cm·ẍ + (G + q·kp)·ẋ + q·ki·x = q·ki·δ for t > 0, and the kick: Cm·ẋ(0+) = q·kp·δ
+    const h0 = 1e-7;
+    expect((L.Cm * (piStep(L, d, h0) - piStep(L, d, 0))) / h0 / (L.qMax * L.kp * d)).toBeCloseTo(1, 4);
     for (const t of [0.002, 0.01, 0.03]) {
       const h = 1e-6;
       const x = piStep(L, d, t), xp = piStep(L, d, t + h), xm = piStep(L, d, t - h);

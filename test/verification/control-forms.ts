@@ -30,8 +30,8 @@ export function expm2(A: readonly number[], t: number, v: readonly number[]): [n
 export interface PiLoop { Cm: number; G: number; qMax: number; kp: number; ki: number }
 
 /**
- * Pressure deviation δp(t) after the target steps by δ at t = 0 from rest, with a bumpless
- * start (the output starts where it was: I(0) = u0 − kp·δ). States (δp, δI), δI = I − u0.
+ * Pressure deviation δp(t) after the target steps by δ at t = 0 from rest (the integral part
+ * holds the rest output u0: I(0) = u0, so the output kicks by kp·δ). States (δp, δI), δI = I − u0.
  */
 export function piStep(L: PiLoop, delta: number, t: number): number {
   const { Cm, G, qMax, kp, ki } = L;
@@ -39,7 +39,7 @@ export function piStep(L: PiLoop, delta: number, t: number): number {
   const A = [(-G - qMax * kp) / Cm, qMax / Cm, -ki, 0];
   // rest: x* = δ, z* = G·δ/q_max
   const xs = delta, zs = (G * delta) / qMax;
-  const [dx] = expm2(A, t, [0 - xs, -kp * delta - zs]);
+  const [dx] = expm2(A, t, [0 - xs, 0 - zs]);
   return xs + dx;
 }
 

@@ -66,7 +66,7 @@ describe('PI closed-loop step on a rigid tank through a laminar line (second-ord
         expect(worst).toBeLessThan(1e-4);
         // the error channel is target − measure; the output channel the opening
         expect(at(r, 'hold.error', 0)).toBeCloseTo(delta, 6);
-        expect(at(r, 'hold.output', 0)).toBeCloseTo(u0, 12);
+        expect(at(r, 'hold.output', 0)).toBeCloseTo(u0 + kp * delta, 12); // the proportional kick
         expect(Math.abs(at(r, 'hold.output', 20) - (k * ((p0 + delta) ** 2 - pa * pa)) / qMax)).toBeLessThan(1e-4 * u0);
       });
     }
