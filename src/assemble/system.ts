@@ -472,7 +472,7 @@ export class NetworkSystem implements EventfulProblem {
           out[k] = this.chambers[e.index].c.wall.stretch(this.V[e.index]) - (this.model.chambers[e.index].limits.stretch as number);
           break;
         case 'saturation':
-          out[k] = this.controllers[e.index].saturation(e.limit as 'high' | 'low');
+          out[k] = this.controllers[e.index].eventValue(e.limit as 'high' | 'low');
           break;
         case 'regulator': {
           const bm = this.model.branches[e.index];
@@ -488,6 +488,7 @@ export class NetworkSystem implements EventfulProblem {
   eventDirection(k: number): number {
     const e = this.events[k];
     if (e.kind === 'relief') return this.branches[e.index].open ? -1 : 1;
+    if (e.kind === 'saturation') return this.controllers[e.index].eventDirection(e.limit as 'high' | 'low');
     return e.direction;
   }
 
@@ -522,9 +523,9 @@ export class NetworkSystem implements EventfulProblem {
         note(`${e.element} exceeds its stretch limit of ${this.model.chambers[e.index].limits.stretch}`);
         return false;
       case 'saturation': {
-        const L = this.controllers[e.index].law;
-        const at = e.limit === 'high' ? L.umax : L.umin;
-        note(`controller ${e.element} ${rising === (e.limit === 'high') ? 'saturates at' : 'leaves'} ${pct(at)}${rising === (e.limit === 'high') ? '' : ' (saturation)'}`);
+        const c = this.controllers[e.index];
+        const at = e.limit === 'high' ? c.law.umax : c.law.umin;
+        note(`controller ${e.element} ${c.fire(e.limit as 'high' | 'low') ? 'saturates at' : 'leaves'} ${pct(at)}`);
         return true;
       }
       case 'regulator':
@@ -571,6 +572,11 @@ export class NetworkSystem implements EventfulProblem {
 
   settleInitialModes(t: number, y: Float64Array): void {
     this.evaluate(t, y);
+    for (const c of this.controllers) {
+      if (!c.continuous) continue;
+      c.settle();
+      if (c.mode !== 'free') this.log.push({ t, what: `controller ${c.c.name} starts saturated at ${pct(c.mode === 'high' ? c.law.umax : c.law.umin)}`, kind: 'saturation', element: c.c.name });
+    }
     for (const e of this.events) {
       if (e.kind === 'check') {
         // open at the start when the difference already exceeds the cracking pressure

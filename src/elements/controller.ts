@@ -3,10 +3,15 @@
  * (physics/pid.ts gives the law).
  *
  * Continuous: its states are the integral part I of the output and, with derivative action,
- * the filtered measure yf; both integrate with the network. The saturation is read from the
- * state (u = clamp(v)), and conditional integration too, so the right-hand side is correct
- * whatever the event bookkeeping; the two saturation events (v crossing u_max and u_min)
- * restart the integrator at the kink and log "saturates" / "leaves saturation".
+ * the filtered measure yf; both integrate with the network. The output is u = clamp(v) at every
+ * instant. The saturation mode ('free' | 'high' | 'low') is a discrete state switched by two
+ * events, and it decides the integral only under clamping: the mode turns 'high' when v rises
+ * through u_max and I then stays frozen while the error pushes further (ki·e > 0); it returns to
+ * 'free' when the error stops pushing (ki·e falls through 0), by which time v = kp·e + I is back
+ * below the limit. Judging "saturated" from v alone would make I chatter along v = u_max (a
+ * sliding mode: integrating pushes v over the limit, freezing lets kp·e pull it back), with an
+ * event at every crossing. Under back-calculation the rhs is continuous in v and the mode only
+ * follows v across the limits (events restart the integrator at the kink and log).
  *
  * Sampled (`sample: Ts`): the output is held between samples (zero-order hold); its states
  * are discrete (I, D, the previous measure) and change at the sample instants, which are
@@ -16,7 +21,7 @@
  * zero error, as if it had been holding the plant before the run), yf(0) = y(0); an error at
  * t = 0 acts through kp at once (the proportional kick of a set-point step).
  */
-import { filterRate, integralRate, pidRaw, pidSample, type PidLaw, type SampledPid } from '../physics/pid.js';
+import { filterRate, integralRate, pidRaw, pidSample, type PidLaw, type PidMode, type SampledPid } from '../physics/pid.js';
 import type { ControllerModel } from '../model/types.js';
 
 export class ControllerState {
@@ -30,6 +35,8 @@ export class ControllerState {
   e = 0;
   v = 0;
   u = 0;
+  /** Saturation mode, switched by events (see the header). */
+  mode: PidMode = 'free';
 
   constructor(readonly c: ControllerModel) {
     const s = c.spec;
@@ -76,8 +83,11 @@ export class ControllerState {
   rates(state: Float64Array, dydt: Float64Array): void {
     if (!this.continuous) return;
     const L = this.law;
-    const mode = this.v > L.umax ? 'high' : this.v < L.umin ? 'low' : 'free';
-    dydt[this.iIdx] = integralRate(L, this.e, this.v, mode);
+    if (L.antiWindup === 'back-calculation') {
+      dydt[this.iIdx] = L.ki * this.e + (this.u - this.v) / L.tt;
+    } else {
+      dydt[this.iIdx] = integralRate(L, this.e, this.v, this.mode);
+    }
     if (this.fIdx >= 0) dydt[this.fIdx] = filterRate(L, this.y, state[this.fIdx]);
   }
 
@@ -100,8 +110,33 @@ export class ControllerState {
     pidSample(this.law, this.sampled, this.c.spec.target.at(t) - y, y, this.c.spec.sample as number);
   }
 
-  /** Event values: v − u_max and v − u_min (continuous only). */
-  saturation(which: 'high' | 'low'): number {
-    return this.v - (which === 'high' ? this.law.umax : this.law.umin);
+  /** The mode at a state (the start, a rest state): saturated when v is past a limit (and, under clamping, the error pushes). */
+  settle(): void {
+    const L = this.law;
+    const push = L.antiWindup === 'clamping' ? L.ki * this.e : 0;
+    this.mode = this.v > L.umax && push >= 0 ? 'high' : this.v < L.umin && push <= 0 ? 'low' : 'free';
+  }
+
+  /**
+   * The event of one limit: in its saturated mode, what ends it (ki·e under clamping, v − limit
+   * under back-calculation); otherwise v − limit.
+   */
+  eventValue(which: 'high' | 'low'): number {
+    const L = this.law;
+    const limit = which === 'high' ? L.umax : L.umin;
+    if (this.mode === which && L.antiWindup === 'clamping') return L.ki * this.e;
+    return this.v - limit;
+  }
+
+  /** Direction of that event: into saturation outward, out of it back. */
+  eventDirection(which: 'high' | 'low'): number {
+    const inMode = this.mode === which;
+    return which === 'high' ? (inMode ? -1 : 1) : (inMode ? 1 : -1);
+  }
+
+  /** Fires the event of one limit; returns whether the controller is now saturated there. */
+  fire(which: 'high' | 'low'): boolean {
+    this.mode = this.mode === which ? 'free' : which;
+    return this.mode === which;
   }
 }

@@ -354,7 +354,7 @@ export const CONTROLLER: KindTable = {
     opt('kd', 'structure', 'derivative gain (on the measure, filtered): opening·s per unit of the measure, e.g. `0.1 %*s/kPa`', { shape: 'gain', default: 0 }),
     opt('derivative-filter', 'time', 'time constant of the derivative filter (default kd/(10·kp), or 1 ms without kp)', { bounds: POSITIVE }),
     opt('limits', 'structure', '{ min, max }: output (opening) limits, default 0 % and 100 %', { shape: 'output-limits' }),
-    opt('anti-windup', 'enum', 'clamping (integration stops while the output is held at a limit and the error drives it further) or back-calculation', { values: ANTI_WINDUP, default: 'clamping' }),
+    opt('anti-windup', 'enum', 'clamping (integration stops once the output saturates with the error driving it further, until the error turns) or back-calculation', { values: ANTI_WINDUP, default: 'clamping' }),
     opt('tracking-time', 'time', 'back-calculation tracking time Tt (default √(Ti·Td), or Ti = kp/ki without kd)', { bounds: POSITIVE }),
     opt('sample', 'time', 'sample period of a discrete controller (output held between samples); absent: continuous', { bounds: POSITIVE }),
     opt('initially', 'structure', 'integral part at t = 0: the output at zero error, as if it had held the plant before the run (default the lower limit); an error at t = 0 acts through kp at once', { shape: 'opening' }),

@@ -7,9 +7,11 @@
  * set point steps), filtered by a first-order lag of time constant Tf:
  *   ẏf = (y − yf)/Tf,   D = −kd·(y − yf)/Tf   (= −kd·ẏf, i.e. −kd·s/(1 + Tf·s) applied to y).
  * Integral, two anti-windup schemes:
- *   clamping (conditional integration): İ = ki·e, except while the output is held at a limit
- *     and the error would drive it further (at u_max with ki·e > 0, at u_min with ki·e < 0),
- *     when İ = 0;
+ *   clamping (conditional integration): İ = ki·e, except once the output has saturated with
+ *     the error driving it further (v past u_max with ki·e > 0, past u_min with ki·e < 0): then
+ *     İ = 0 until the error stops driving it (ki·e changes sign). Judged by v alone, freezing
+ *     and integrating would alternate along v = u_max (a sliding mode); the mode keeps one
+ *     decision until the error turns, in the continuous and the sampled law alike;
  *   back-calculation: İ = ki·e + (u − v)/Tt (tracking time Tt), which bleeds the integral back
  *     while saturated.
  * The saturation state is a mode ('free' | 'high' | 'low') that the simulation switches by
@@ -19,8 +21,8 @@
  * Sampled controller (period Ts, zero-order hold): at each sample k, with e_k and y_k,
  *   D_k = (Tf·D_{k−1} − kd·(y_k − y_{k−1}))/(Tf + Ts)      (backward difference of the filtered derivative),
  *   v_k = kp·e_k + I_k + D_k,   u_k = clamp(v_k),
- *   I_{k+1} = I_k + Ts·ki·e_k + (back-calculation: Ts·(u_k − v_k)/Tt; clamping: no update when
- *             the output is at a limit and ki·e_k pushes further),
+ *   I_{k+1} = I_k + Ts·ki·e_k + (back-calculation: Ts·(u_k − v_k)/Tt; clamping: no update while
+ *             in a saturated mode, entered and left as in the continuous law),
  * and u_k is held until the next sample.
  *
  * Start: I(0) = u0 (the controller's `initially`), the output at zero error.
@@ -84,6 +86,8 @@ export interface SampledPid {
   yPrev: number;
   /** Output held until the next sample. */
   u: number;
+  /** Saturation mode under clamping. */
+  mode?: PidMode;
 }
 
 /** One sample at error e and measure y, period ts: sets the held output and advances I and D. */
@@ -93,6 +97,15 @@ export function pidSample(law: PidLaw, s: SampledPid, e: number, y: number, ts: 
   const u = v > law.umax ? law.umax : v < law.umin ? law.umin : v;
   s.u = u;
   s.yPrev = y;
-  if (law.antiWindup === 'back-calculation') s.I += ts * (law.ki * e + (u - v) / law.tt);
-  else if (!((u === law.umax && law.ki * e > 0 && v >= law.umax) || (u === law.umin && law.ki * e < 0 && v <= law.umin))) s.I += ts * law.ki * e;
+  if (law.antiWindup === 'back-calculation') {
+    s.I += ts * (law.ki * e + (u - v) / law.tt);
+    return;
+  }
+  const push = law.ki * e;
+  let mode = s.mode ?? 'free';
+  if ((mode === 'high' && push <= 0) || (mode === 'low' && push >= 0)) mode = 'free';
+  if (mode === 'free' && v >= law.umax && push > 0) mode = 'high';
+  else if (mode === 'free' && v <= law.umin && push < 0) mode = 'low';
+  s.mode = mode;
+  if (mode === 'free') s.I += ts * push;
 }
