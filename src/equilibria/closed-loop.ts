@@ -22,7 +22,8 @@
  * Nonlinear Equations, 1983, §6.3 (backtracking line search; from memory); Hirsch, Smale &
  * Devaney 2004, ch. 8 (linearisation at an equilibrium).
  */
-import { NetworkSystem } from '../assemble/system.js';
+import type { NetworkSystem } from '../assemble/system.js';
+import { ControllerElement } from '../elements/controller-element.js';
 import { DenseLu } from '../linalg/dense-lu.js';
 import type { Model } from '../model/types.js';
 import type { RunResult } from '../transient/results.js';
@@ -63,11 +64,15 @@ function problemOf(model: Model, valves: ValveState, masses: ArrayLike<number>):
   const scales: number[] = [];
   const mScale = Math.max(...Array.from(masses), 1e-12);
   for (let i = 0; i < sys.nc; i++) { slots.push(sys.mIdx[i]); scales.push(Math.max(masses[i], 1e-3 * mScale)); }
-  for (const c of sys.controllers) {
-    if (c.iIdx >= 0) { slots.push(c.iIdx); scales.push(1); }
-    if (c.fIdx >= 0) { slots.push(c.fIdx); scales.push(Math.max(Math.abs(c.c.spec.target.at(setup.t)), 1e-12)); }
-  }
-  sys.zIdx.forEach((z, b) => { if (z >= 0 && !setup.model.branches[b].vent) { slots.push(z); scales.push(1); } });
+  // every other state but boundary stores, temperatures and hysteresis blends (which rest
+  // anywhere once the gas is still): a controller's I and yf, a regulator's lag
+  const skip = new Set<number>([...sys.mIdx, ...sys.TIdx, ...sys.hIdx]);
+  const y0 = sys.initialState();
+  sys.slots.forEach((sl, k) => {
+    if (skip.has(k) || sl.mass === 'store') return;
+    slots.push(k);
+    scales.push(Math.max(Math.abs(y0[k]), typeof sl.scale === 'number' ? sl.scale * 1e3 : 1));
+  });
   const closed = setup.groups.filter((g) => g.kind === 'closed').map((g) => ({
     pos: g.chambers.map((c) => c),
     M: g.chambers.reduce((a, c) => a + masses[c], 0),
@@ -197,12 +202,17 @@ function endGuess(P: Problem, run: RunResult): Float64Array {
     const k = run.trace.channels.findIndex((c) => c.key === key);
     return k < 0 ? undefined : run.trace.values[k].at(-1);
   };
-  for (const c of sys.controllers) {
+  for (const c of controllersOf(sys)) {
     const u = last(`${c.c.name}.output`), e = last(`${c.c.name}.error`);
     if (c.iIdx >= 0 && u !== undefined && e !== undefined) y[c.iIdx] = u - c.law.kp * e;
     if (c.fIdx >= 0 && e !== undefined) y[c.fIdx] = c.c.spec.target.at(P.t) - e;
   }
   return y;
+}
+
+/** The controllers' states (ControllerState) of a system. */
+function controllersOf(sys: NetworkSystem): import('../elements/controller.js').ControllerState[] {
+  return sys.elements.filter((e): e is ControllerElement => e instanceof ControllerElement).map((e) => e.state);
 }
 
 function sameState(P: Problem, a: Float64Array, b: Float64Array): boolean {
@@ -261,7 +271,7 @@ function controllerNotes(P: Problem, y: Float64Array): string[] {
   const { sys } = P;
   sys.evaluate(P.t, y);
   const out: string[] = [];
-  for (const c of sys.controllers) {
+  for (const c of controllersOf(sys)) {
     const L = c.law;
     const sat = c.v >= L.umax ? ` (held at its upper limit ${(L.umax * 100).toPrecision(3)} %)` : c.v <= L.umin ? ` (held at its lower limit ${(L.umin * 100).toPrecision(3)} %)` : '';
     out.push(`controller ${c.c.name}: output ${(c.u * 100).toPrecision(4)} %, error ${c.e.toPrecision(3)}${sat}${c.continuous ? '' : '; sampled: stability of the continuous law'}`);

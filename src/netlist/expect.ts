@@ -108,7 +108,7 @@ export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forContro
     }
   } else {
     const entry = cx.names.get(element);
-    const probed = (k: string): boolean => k === 'chamber' || k === 'line' || k === 'valve' || (k === 'controller' && !forControl);
+    const probed = (k: string): boolean => k in PROBE_QUANTITIES && (k !== 'controller' || !forControl);
     if (!entry || !probed(entry.kind)) {
       const candidates = [...cx.names.values()].filter((n) => probed(n.kind)).map((n) => n.name);
       const why = entry

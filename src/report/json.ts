@@ -11,6 +11,7 @@ export function resultJson(r: RunResult): string {
     chambers: r.chambers,
     lines: r.lines,
     valves: r.valves,
+    ...r.sections,
     mass: r.mass,
     events: r.events,
     warnings: r.warnings,

@@ -31,6 +31,16 @@ export function nameList(names: string[]): string {
   return names.length <= 12 ? names.join(', ') : `${names.slice(0, 3).join(', ')} … ${names[names.length - 1]} (${names.length} chambers)`;
 }
 
+/** A summary's fields flattened to `a.b` keys and printed values (numbers to 4 digits). */
+function flatFields(s: Record<string, unknown>, prefix = ''): [string, string][] {
+  const out: [string, string][] = [];
+  for (const [k, v] of Object.entries(s)) {
+    if (v !== null && typeof v === 'object') out.push(...flatFields(v as Record<string, unknown>, `${prefix}${k}.`));
+    else out.push([`${prefix}${k}`, typeof v === 'number' ? (Number.isFinite(v) ? String(+v.toPrecision(4)) : '-') : typeof v === 'boolean' ? (v ? 'yes' : 'no') : String(v)]);
+  }
+  return out;
+}
+
 export function summaryText(r: RunResult): string {
   const out: string[] = [];
   out.push(`${r.title}  (${r.file})`);
@@ -72,6 +82,16 @@ export function summaryText(r: RunResult): string {
   if (vl.length) {
     out.push(table(['valve', 'peak flow', 'choked'], vl.map(([n, v]) => [n, display(v.peak_flow, 'flow'), v.choked ? 'yes' : 'no'])));
     out.push(...more(vl.length, vlAll.length, 'valves', 'peak flow'));
+    out.push('');
+  }
+  for (const [section, entries] of Object.entries(r.sections ?? {})) {
+    // kinds beyond chambers, lines and valves: their summary fields as given, SI numbers
+    const all = Object.entries(entries).map(([n, s]) => [n, flatFields(s)] as [string, [string, string][]]);
+    const rows = all.slice(0, MAX_TABLE_ROWS);
+    if (!rows.length) continue;
+    out.push(table([section.replace(/s$/, ''), ...rows[0][1].map(([k]) => k)], rows.map(([n, f]) => [n, ...f.map(([, v]) => v)])));
+    out.push(...more(rows.length, all.length, section, 'place in the netlist'));
+    out.push('(SI units)');
     out.push('');
   }
   if (r.events.length) {

@@ -9,6 +9,12 @@ export interface ChamberSummary {
 export interface LineSummary { peak_flow: number; peak_reynolds: number; regime: 'laminar' | 'transitional' | 'turbulent' }
 export interface ValveSummary { peak_flow: number; choked: boolean }
 
+/**
+ * Summaries by section and element name, as the elements give them (elements/contract.ts:
+ * `ElementSummary`): `chambers`, `lines`, `valves`, and the sections of other kinds.
+ */
+export type ElementSections = Record<string, Record<string, Record<string, unknown>>>;
+
 export interface ExpectationResult {
   name: string;
   passed: boolean;
@@ -82,6 +88,8 @@ export interface RunResult {
   chambers: Record<string, ChamberSummary>;
   lines: Record<string, LineSummary>;
   valves: Record<string, ValveSummary>;
+  /** Sections of element kinds beyond chambers, lines and valves (written after them in JSON). */
+  sections?: ElementSections;
   mass: { initial: number; final: number; through_boundaries: number; drift: number };
   events: { t: number; what: string }[];
   warnings: string[];

@@ -10,7 +10,7 @@ import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
 import { ExpectationMonitor } from './expectations.js';
 import { diagnoseFault } from './fault.js';
-import type { ChamberSummary, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
+import type { ChamberSummary, ElementSections, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
 import { classifyOutcomes } from './outcome.js';
 
@@ -30,10 +30,6 @@ const DEFAULT_MAX_STEPS = 1_000_000;
 const DEFAULT_SAMPLES = 1000;
 /** Relative mass drift above which a run warns (the integrators conserve mass to round-off). */
 const DRIFT_WARN = 1e-9;
-
-function regimeOf(re: number): LineSummary['regime'] {
-  return re < 2300 ? 'laminar' : re > 4000 ? 'turbulent' : 'transitional';
-}
 
 export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array): { integrator: Integrator; name: string; why: string } {
   const m = model.simulate.method;
@@ -61,11 +57,8 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   // expectations are judged on the dense output inside every step, not on samples
   const monitor = new ExpectationMonitor(model.expect, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) },
     model.chambers.map((c) => c.name), model.pa);
-  const nc = model.chambers.length;
-  const nb = model.branches.length;
-  const peak = model.chambers.map(() => ({ max: -Infinity, tMax: 0, min: Infinity, tMin: 0 }));
-  const bPeak = model.branches.map(() => ({ flow: 0, re: 0, choked: false }));
-  const gaugeCol = model.chambers.map((c) => keys.get(`${c.name}.gauge`)!);
+  // every element's summaries (peaks, finals), tracked at samples and step ends
+  const summaries = sys.elements.flatMap((e) => e.summaries?.((key) => keys.get(key)!) ?? []);
   let lastProgress = 0;
 
   const row = new Float64Array(nch);
@@ -75,19 +68,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
       trace.times.push(t);
       for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
     }
-    for (let i = 0; i < nc; i++) {
-      const g = row[gaugeCol[i]];
-      const pk = peak[i];
-      if (g > pk.max) { pk.max = g; pk.tMax = t; }
-      if (g < pk.min) { pk.min = g; pk.tMin = t; }
-    }
-    for (let b = 0; b < nb; b++) {
-      const f = sys.flows[b];
-      const bp = bPeak[b];
-      if (Math.abs(f.mdot) > Math.abs(bp.flow)) bp.flow = f.mdot;
-      if (f.reynolds > bp.re) bp.re = f.reynolds;
-      if (f.choked) bp.choked = true;
-    }
+    for (let s = 0; s < summaries.length; s++) summaries[s].track(t, row);
     if (options.progress && Date.now() - lastProgress > 100) {
       lastProgress = Date.now();
       options.progress(t, duration);
@@ -121,22 +102,9 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const yEnd = r.y;
   const rowEnd = new Float64Array(nch);
   sys.observe(r.t, yEnd, rowEnd);
-  const chambers: Record<string, ChamberSummary> = {};
-  model.chambers.forEach((c, i) => {
-    const g = (q: string): number => rowEnd[keys.get(`${c.name}.${q}`)!];
-    const fin: ChamberSummary['final'] = {
-      pressure: g('pressure'), gauge: g('gauge'), volume: g('volume'), mass: g('mass'), temperature: g('temperature'),
-    };
-    if (c.wall.sphere) fin.stretch = g('stretch');
-    chambers[c.name] = { final: fin, peak: { gauge: peak[i].max, at: peak[i].tMax }, least: { gauge: peak[i].min, at: peak[i].tMin } };
-  });
-  const lines: Record<string, LineSummary> = {};
-  const valves: Record<string, ValveSummary> = {};
-  model.branches.forEach((b, i) => {
-    const lineName = b.kind === 'line' ? b.name : b.hostLine;
-    if (lineName) lines[lineName] = { peak_flow: bPeak[i].flow, peak_reynolds: bPeak[i].re, regime: regimeOf(bPeak[i].re) };
-    if (b.kind === 'valve') valves[b.name] = { peak_flow: bPeak[i].flow, choked: bPeak[i].choked };
-  });
+  const sections: ElementSections = {};
+  for (const s of summaries) (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
+  const { chambers = {}, lines = {}, valves = {}, ...more } = sections;
   const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
@@ -145,15 +113,13 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const warnings: string[] = [];
   const seen = new Set<string>();
   for (const e of sys.log) {
-    if ((e.kind === 'limit-pressure' || e.kind === 'limit-stretch') && !seen.has(e.what)) {
+    if (e.warning && !seen.has(e.what)) {
       seen.add(e.what);
       warnings.push(`${e.what} at t = ${display(e.t, 'time')}: it may burst or yield; see the safety notes`);
     }
   }
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
-  model.chambers.forEach((c, i) => {
-    if (peak[i].min + model.pa < 0.05 * model.pa) warnings.push(`${c.name} fell to ${display(peak[i].min + model.pa, 'pressure')}, near vacuum`);
-  });
+  for (const s of summaries) if (s.warnings) warnings.push(...s.warnings());
 
   const expectations = r.status === 'completed'
     ? monitor.results(r.t, yEnd)
@@ -167,7 +133,10 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     message,
     end: r.t,
     stats: { method, steps: r.work.steps, rejected: r.work.rejected, rhs: r.work.rhs, jacobians: r.work.jacobians, lu: r.work.lu, wall_ms: Date.now() - started },
-    chambers, lines, valves,
+    chambers: chambers as unknown as Record<string, ChamberSummary>,
+    lines: lines as unknown as Record<string, LineSummary>,
+    valves: valves as unknown as Record<string, ValveSummary>,
+    ...(Object.keys(more).length ? { sections: more } : {}),
     mass: { initial, final, through_boundaries: through, drift },
     events: sys.log.map((e) => ({ t: e.t, what: e.what })),
     warnings,

@@ -1,0 +1,223 @@
+/**
+ * A line, a valve or a valve inside a line on the element contract (contract.ts): no states of
+ * its own; it reads the pressures and temperatures of its two end nodes, moves its flow with the
+ * node table's conserving transfer, and adds the transfer's jacobian from its flow partials
+ * (branch.ts has the flow laws). A valve's schedule gives breakpoints; a relief valve's open
+ * state and a check valve's opening are events.
+ */
+import type { BranchModel } from '../model/types.js';
+import type { Schedule } from '../model/schedule.js';
+import { BranchState, type BranchFlow, type BranchPartials } from './branch.js';
+import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, LoggedEvent } from './contract.js';
+import type { Nodes } from './nodes.js';
+
+/**
+ * Dead band of a check valve's event, relative to the mean of its end pressures. Its flow is
+ * continuous (the cracking pressure acts as a drop while open), so the event only restarts the
+ * integrator at the kink; between two chambers at the same pressure the pressure difference is
+ * round-off that changes sign from one evaluation to the next, and without a dead band the
+ * valve "opened and closed" at every step until a budget stopped the run (found by the fuzzer:
+ * a zero-cracking check valve between two chambers starting at ambient). An opening is
+ * registered once the difference exceeds the cracking pressure by this band (1e-7 of 100 kPa is
+ * 0.01 Pa), a closing when it falls to the cracking pressure: after a closing, round-off cannot
+ * reopen the valve.
+ */
+const CHECK_DEADBAND = 1e-7;
+
+function pct(x: number): string {
+  return `${Math.round(x * 1000) / 10} %`;
+}
+
+function fmtT(s: number): string {
+  return s < 1 ? `${+(s * 1000).toPrecision(4)} ms` : `${+s.toPrecision(4)} s`;
+}
+
+/** Logs a schedule's ramps that start or end at t (`valve v1 opens (0 % → 100 %)`). */
+export function describeSchedule(t: number, noun: string, name: string, s: Schedule, log: LoggedEvent[]): void {
+  const eps = 1e-12 * Math.max(1, Math.abs(t));
+  const note = (what: string): void => { log.push({ t, what, kind: 'schedule', element: '' }); };
+  for (const r of s.ramps) {
+    if (Math.abs(r.t0 - t) <= eps && r.t1 > r.t0) {
+      note(`${noun} ${name} starts ${r.to > r.from ? 'opening' : 'closing'} (${pct(r.from)} → ${pct(r.to)} over ${fmtT(r.t1 - r.t0)})`);
+    } else if (Math.abs(r.t1 - t) <= eps) {
+      note(r.t1 === r.t0
+        ? `${noun} ${name} ${r.to > r.from ? 'opens' : r.to < r.from ? 'closes' : 'stays'} (${pct(r.from)} → ${pct(r.to)})`
+        : `${noun} ${name} reaches ${pct(r.to)}`);
+    }
+  }
+}
+
+/** True when a schedule does not change over [t0, t1] (a step at t0 itself is already taken). */
+export function scheduleStill(s: Schedule | null, t0: number, t1: number): boolean {
+  if (!s) return true;
+  for (const r of s.ramps) {
+    // a ramp changes the value on [r.t0, r.t1] (a step, r.t0 = r.t1, at that instant)
+    if (r.t0 < t1 && r.t1 > t0) return false;
+    if (r.t0 === r.t1 && r.t0 > t0 && r.t0 < t1) return false;
+  }
+  return true;
+}
+
+export class BranchElement implements Element {
+  readonly kind: string;
+  readonly name: string;
+  readonly state: BranchState;
+  /** The flow at the evaluated point. */
+  readonly flow: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
+  private readonly nodes: Nodes;
+  private readonly withT: boolean;
+  private readonly bp: BranchPartials = { q: 0, dp1: 0, dp2: 0, dT1: 0, dT2: 0 };
+  private link = -1;
+
+  constructor(readonly b: BranchModel, private readonly asm: Assembly, readonly from: number, readonly to: number) {
+    this.kind = b.kind;
+    this.name = b.name;
+    this.state = new BranchState(b, asm.gas, asm.pa);
+    this.nodes = asm.nodes;
+    this.withT = asm.model.heat !== 'isothermal';
+  }
+
+  evaluate(t: number): void {
+    const n = this.nodes, i = this.from, j = this.to;
+    this.state.flow(t, n.p[i], n.p[j], n.T[i], n.T[j], this.flow);
+  }
+
+  load(dydt: Float64Array): void {
+    this.nodes.between(dydt, this.from, this.to, this.flow.mdot);
+  }
+
+  reserveJacobian(r: JacobianReserve): void {
+    this.link = r.link(this.from, this.to);
+  }
+
+  loadJacobian(t: number, values: Float64Array): void {
+    const n = this.nodes, a = this.from, c = this.to;
+    // this.flow is the flow at these end states (from the rhs just evaluated)
+    this.state.partials(t, n.p[a], n.p[c], n.T[a], n.T[c], this.withT, this.bp, this.flow);
+    n.transferJacobian(this.link, a, c, this.bp, values);
+  }
+
+  breakpoints(): number[] {
+    return this.state.schedule?.breakpoints ?? [];
+  }
+
+  atBreakpoint(t: number, log: LoggedEvent[]): void {
+    if (this.state.schedule) describeSchedule(t, 'valve', this.name, this.state.schedule, log);
+  }
+
+  timeInvariant(t0: number, t1: number): boolean {
+    return scheduleStill(this.state.schedule, t0, t1);
+  }
+
+  mode(): number {
+    return this.state.open ? 1 : 0;
+  }
+
+  events(): ElementEvent[] {
+    const op = this.b.valve?.operation;
+    const n = this.nodes, a = this.from, c = this.to, name = this.name, st = this.state, pa = this.asm.pa;
+    if (op?.kind === 'relief') {
+      return [{
+        kind: 'relief', element: name,
+        value: () => {
+          const g = n.p[a] - pa;
+          return st.open ? g - op.reseatsBelow : g - op.opensAbove;
+        },
+        direction: () => (st.open ? -1 : 1),
+        fire: (t, _r, log) => {
+          st.open = !st.open;
+          log.push({ t, what: `relief valve ${name} ${st.open ? 'opens' : 'reseats'}`, kind: 'relief', element: name });
+          return true;
+        },
+        settle: (t, log) => {
+          if (n.p[a] - pa > op.opensAbove) {
+            st.open = true;
+            log.push({ t, what: `relief valve ${name} is open at the start`, kind: 'relief', element: name });
+          }
+        },
+      }];
+    }
+    if (op?.kind === 'regulator' && !this.b.vent) {
+      // the kinks of the regulator's law: lock-up at the set pressure, full opening at set − band
+      const at = (limit: number) => (): number => n.p[c] - pa - limit;
+      return [
+        {
+          kind: 'regulator', element: name, value: at(op.set), direction: () => 0,
+          fire: (t, rising, log) => {
+            log.push({ t, what: `regulator ${name} ${rising ? 'locks up (downstream at its set pressure)' : 'opens'}`, kind: 'regulator', element: name });
+            return true;
+          },
+        },
+        {
+          kind: 'regulator', element: name, value: at(op.set - op.band), direction: () => 0,
+          fire: (t, rising, log) => {
+            log.push({ t, what: `regulator ${name} ${rising ? 'throttles' : 'is fully open (downstream below set − band)'}`, kind: 'regulator', element: name });
+            return true;
+          },
+        },
+      ];
+    }
+    if (op?.kind === 'check') {
+      /** +1 after the valve last opened, −1 after it last closed (see CHECK_DEADBAND). */
+      let side = -1;
+      /** How far the pressure difference across the valve exceeds its cracking pressure (Pa). */
+      const margin = (): number => n.p[a] - op.cracking - n.p[c];
+      return [{
+        kind: 'check', element: name,
+        value: () => {
+          const g = margin();
+          const pMean = 0.5 * (Math.abs(n.p[a]) + Math.abs(n.p[c]));
+          return side > 0 ? g : g - CHECK_DEADBAND * pMean;
+        },
+        direction: () => 0,
+        fire: (t, rising, log) => {
+          side = rising ? 1 : -1;
+          log.push({ t, what: `check valve ${name} ${rising ? 'opens' : 'closes'}`, kind: 'check', element: name });
+          return true;
+        },
+        // open at the start when the difference already exceeds the cracking pressure
+        settle: () => { side = margin() > 0 ? 1 : -1; },
+      }];
+    }
+    return [];
+  }
+
+  channels(): Channel[] {
+    const ch: Channel[] = [{ key: `${this.name}.flow`, unit: 'kg/s' }, { key: `${this.name}.reynolds`, unit: '-' }];
+    const host = this.b.hostLine;
+    if (host) ch.push({ key: `${host}.flow`, unit: 'kg/s' }, { key: `${host}.reynolds`, unit: '-' });
+    return ch;
+  }
+
+  observe(_y: Float64Array, out: Float64Array, k: number): number {
+    const f = this.flow;
+    out[k++] = f.mdot;
+    out[k++] = f.reynolds;
+    if (this.b.hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
+    return k;
+  }
+
+  summaries(): ElementSummary[] {
+    const b = this.b, f = this.flow;
+    const pk = { flow: 0, re: 0, choked: false };
+    const track = (): void => {
+      if (Math.abs(f.mdot) > Math.abs(pk.flow)) pk.flow = f.mdot;
+      if (f.reynolds > pk.re) pk.re = f.reynolds;
+      if (f.choked) pk.choked = true;
+    };
+    const out: ElementSummary[] = [];
+    const lineName = b.kind === 'line' ? b.name : b.hostLine;
+    if (lineName) {
+      out.push({ section: 'lines', name: lineName, track, result: () => ({ peak_flow: pk.flow, peak_reynolds: pk.re, regime: regimeOf(pk.re) }) });
+    }
+    if (b.kind === 'valve') {
+      out.push({ section: 'valves', name: b.name, track: lineName ? () => {} : track, result: () => ({ peak_flow: pk.flow, choked: pk.choked }) });
+    }
+    return out;
+  }
+}
+
+/** Flow regime named by a Reynolds number (laminar below 2300, turbulent above 4000). */
+function regimeOf(re: number): 'laminar' | 'transitional' | 'turbulent' {
+  return re < 2300 ? 'laminar' : re > 4000 ? 'turbulent' : 'transitional';
+}

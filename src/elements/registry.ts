@@ -1,0 +1,35 @@
+/**
+ * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
+ * keeps: gas nodes first (chambers, then reservoirs), so that they evaluate before the elements
+ * between them, then lines and valves, then feeds. The one place that names the kinds: a new
+ * kind adds its line here (and its parameter table, netlist reading and model entry).
+ */
+import type { Model, NodeRef } from '../model/types.js';
+import { BranchElement } from './branch-element.js';
+import { ChamberElement } from './chamber-element.js';
+import type { Assembly, Element } from './contract.js';
+import { ControllerElement } from './controller-element.js';
+import { FeedElement } from './feed.js';
+import { RegulatorLagElement } from './regulator-lag.js';
+import { ReservoirElement } from './reservoir.js';
+
+export function createElements(model: Model, asm: Assembly): Element[] {
+  const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
+  const reservoirs = model.reservoirs.map((r) => new ReservoirElement(r, asm));
+  const node = (n: NodeRef): number => (n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node);
+  // a regulator's lag sets its valve's position before the branches evaluate
+  const lags = model.branches.flatMap((b) => {
+    const op = b.valve?.operation;
+    return op?.kind === 'regulator' && op.timeConstant > 0 && !b.vent ? [new RegulatorLagElement(b, asm, node(b.to))] : [];
+  });
+  const branches = model.branches.map((b) => new BranchElement(b, asm, node(b.from), node(b.to)));
+  for (const lag of lags) {
+    const k = model.branches.indexOf(lag.b);
+    lag.attach(branches.filter((_, i) => i === k || model.branches[i].vent?.of === k));
+  }
+  const feeds = model.feeds.map((f) => new FeedElement(f, asm, chambers[f.into].node));
+  // controllers after the branches: they read undriven branches and chambers, then set their valve
+  const controllers = model.controllers.map((c) => new ControllerElement(c, asm, branches[c.valve],
+    c.measure.kind === 'chamber' ? chambers[c.measure.index] : null, c.measure.kind === 'branch' ? branches[c.measure.index] : null));
+  return [...chambers, ...reservoirs, ...lags, ...branches, ...feeds, ...controllers];
+}
