@@ -47,7 +47,6 @@ export class ControllerElement implements Element {
   readonly state: ControllerState;
   readonly differenced: boolean;
   private readonly nodes: Nodes;
-  private tEval = 0;
 
   constructor(readonly c: ControllerModel, private readonly asm: Assembly, private readonly driven: BranchElement, private readonly chamber: ChamberElement | null, private readonly branch: BranchElement | null) {
     this.name = c.name;
@@ -87,7 +86,6 @@ export class ControllerElement implements Element {
   }
 
   evaluate(t: number, y: Float64Array): void {
-    this.tEval = t;
     this.driven.state.command = this.state.output(t, this.measure(y), y);
     this.driven.evaluate(t);
   }
@@ -163,10 +161,5 @@ export class ControllerElement implements Element {
       },
       result: (end) => ({ final: { output: end[cu], error: end[ce] }, peak: { output: pk.output, at: pk.at }, saturated_time: pk.saturated }),
     }];
-  }
-
-  /** For rest-state analyses: last evaluation time. */
-  get evaluatedAt(): number {
-    return this.tEval;
   }
 }

@@ -45,6 +45,7 @@ import { restSetup } from './rest.js';
 import { makeParameter } from './trace-parameter.js';
 import { GroupProblem } from './trace-problem.js';
 import type { TraceBranch, TraceOptions, TraceOutcome } from './trace-types.js';
+import type { ValveState } from './types.js';
 import { Tracer } from './tracer.js';
 import { hasLoopStates } from './closed-loop.js';
 import { traceLoop } from './loop-trace.js';
@@ -82,15 +83,7 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
     // controllers and regulators: the rest state followed over the parameter, stability watched
     const branches = traceLoop(param, valves, notes);
     notes.push('controllers or regulators: the rest state followed by Newton at sampled values of the parameter, a change of stability located by bisection');
-    return {
-      ok: true,
-      value: {
-        format: 1, title: model.doc.title, file: model.doc.file,
-        status: 'ok', message: `${branches.length} branch${branches.length === 1 ? '' : 'es'}`,
-        parameter: { vary: param.vary, from: param.from, to: param.to, unit: param.unit },
-        valves, branches, notes,
-      },
-    };
+    return traceResult(model, param, valves, branches, notes);
   }
   const base = restSetup(model, valves);
   const baseMasses = Float64Array.from(model.chambers.map((c) => c.m0));
@@ -131,6 +124,11 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   if (closedTraced && param.gasFollows && !param.massOf) notes.push('the parameter is a start value: the gas each closed group holds follows it');
   else if (closedTraced && !param.massOf) notes.push('each closed group keeps the gas it holds in the netlist as written');
   if (branches.length === 0) notes.push('no equilibrium found at any start value');
+  return traceResult(model, param, valves, branches, notes);
+}
+
+/** The result of a trace. */
+function traceResult(model: Model, param: { vary: string; from: number; to: number; unit: string }, valves: ValveState, branches: TraceBranch[], notes: string[]): TraceOutcome {
   return {
     ok: true,
     value: {
