@@ -247,9 +247,9 @@ export class NetworkSystem implements EventfulProblem {
     return this.events[k].direction();
   }
 
-  fireEvent(k: number, t: number, _y: Float64Array, rising: boolean): boolean {
+  fireEvent(k: number, t: number, y: Float64Array, rising: boolean): boolean {
     this.invalidate();
-    return this.events[k].fire(t, rising, this.log);
+    return this.events[k].fire(t, rising, this.log, y);
   }
 
   atBreakpoint(t: number, y: Float64Array): void {
@@ -263,6 +263,7 @@ export class NetworkSystem implements EventfulProblem {
   settleInitialModes(t: number, y: Float64Array): void {
     this.evaluate(t, y);
     for (const e of this.events) e.settle?.(t, this.log);
+    this.invalidate();
   }
 
   // ---- observables ----------------------------------------------------------------------

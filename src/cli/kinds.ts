@@ -1,6 +1,7 @@
 /** `plenum kinds`: element kinds and wall laws with their parameters, from the parameter tables. */
 import {
-  CHAMBER, CONTROLLER, FEED, LINE, RESERVOIR, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
+  CHAMBER, CONTROLLER, CYLINDER, CYLINDER_START, DEAD_VOLUME, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
+  VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
 } from '../netlist/kinds.js';
 
 const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => string }[] = [
@@ -10,6 +11,11 @@ const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => str
   { title: 'lines', tables: [LINE], label: () => 'line' },
   { title: 'valves', tables: [VALVE, ...VALVE_RATINGS, ...VALVE_OPERATIONS], label: (t) => (t.kind === 'valve' ? 'valve' : `valve ${t.section === 'valve-rating' ? 'rating' : 'opening'}: ${t.kind}`) },
   { title: 'feeds', tables: [FEED], label: () => 'feed' },
+  {
+    title: 'cylinders',
+    tables: [CYLINDER, DEAD_VOLUME, SPRING, FRICTION, MOUNTING, CYLINDER_START, PORT_START],
+    label: (t) => (t.kind === 'cylinder' ? 'cylinder' : t.kind === 'port-start' ? 'cylinder start: cap / rod' : `cylinder ${t.kind.replace('cylinder-', '')}`),
+  },
   { title: 'controllers', tables: [CONTROLLER], label: () => 'controller' },
 ];
 

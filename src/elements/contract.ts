@@ -64,8 +64,12 @@ export interface ElementEvent {
   value(): number;
   /** +1: only upward crossings count, −1 only downward, 0 both. */
   direction(): number;
-  /** Applies the event at t; true when the rhs changed (the integrator must restart). */
-  fire(t: number, rising: boolean, log: LoggedEvent[]): boolean;
+  /**
+   * Applies the event at t; true when the rhs changed (the integrator must restart). `y` is the
+   * state at the event, which an event may change (a piston stopping at its end stop); the
+   * integration restarts from it.
+   */
+  fire(t: number, rising: boolean, log: LoggedEvent[], y?: Float64Array): boolean;
   /** Sets the mode the event controls as it stands at the start (after an evaluation). */
   settle?(t: number, log: LoggedEvent[]): void;
 }
@@ -81,6 +85,8 @@ export interface ElementSummary {
   result(end: Float64Array): Record<string, unknown>;
   /** Warnings from what it tracked (a chamber near vacuum). */
   warnings?(): string[];
+  /** Its row in the printed table, as (column, text) pairs (default: the result's fields flattened). */
+  row?(result: Record<string, unknown>): [string, string][];
 }
 
 /** Hands out jacobian entries (see the file comment): −1 while the pattern is collected. */

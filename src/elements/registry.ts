@@ -1,12 +1,13 @@
 /**
  * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
- * keeps: gas nodes first (chambers, then reservoirs), so that they evaluate before the elements
+ * keeps: gas nodes first (chambers, then reservoirs, then cylinders, whose two sides are nodes), so that they evaluate before the elements
  * between them, then lines and valves, then feeds. The one place that names the kinds: a new
  * kind adds its line here (and its parameter table, netlist reading and model entry).
  */
 import type { Model, NodeRef } from '../model/types.js';
 import { BranchElement } from './branch-element.js';
 import { ChamberElement } from './chamber-element.js';
+import { CylinderElement } from './cylinder-element.js';
 import type { Assembly, Element } from './contract.js';
 import { ControllerElement } from './controller-element.js';
 import { FeedElement } from './feed.js';
@@ -16,7 +17,11 @@ import { ReservoirElement } from './reservoir.js';
 export function createElements(model: Model, asm: Assembly): Element[] {
   const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
   const reservoirs = model.reservoirs.map((r) => new ReservoirElement(r, asm));
-  const node = (n: NodeRef): number => (n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node);
+  const cylinders = model.cylinders.map((c) => new CylinderElement(c, asm));
+  const node = (n: NodeRef): number => {
+    if (n.kind === 'port') return n.side === 'cap' ? cylinders[n.index].capNode : cylinders[n.index].rodNode;
+    return n.kind === 'chamber' ? chambers[n.index].node : reservoirs[n.index].node;
+  };
   // a regulator's lag sets its valve's position before the branches evaluate
   const lags = model.branches.flatMap((b) => {
     const op = b.valve?.operation;
@@ -27,9 +32,9 @@ export function createElements(model: Model, asm: Assembly): Element[] {
     const k = model.branches.indexOf(lag.b);
     lag.attach(branches.filter((_, i) => i === k || model.branches[i].vent?.of === k));
   }
-  const feeds = model.feeds.map((f) => new FeedElement(f, asm, chambers[f.into].node));
+  const feeds = model.feeds.map((f) => new FeedElement(f, asm, f.port ? node({ kind: 'port', ...f.port }) : chambers[f.into].node));
   // controllers after the branches: they read undriven branches and chambers, then set their valve
   const controllers = model.controllers.map((c) => new ControllerElement(c, asm, branches[c.valve],
     c.measure.kind === 'chamber' ? chambers[c.measure.index] : null, c.measure.kind === 'branch' ? branches[c.measure.index] : null));
-  return [...chambers, ...reservoirs, ...lags, ...branches, ...feeds, ...controllers];
+  return [...chambers, ...reservoirs, ...cylinders, ...lags, ...branches, ...feeds, ...controllers];
 }

@@ -52,6 +52,7 @@
  * Nocedal & Wright, Numerical Optimization, 2nd ed., §10.3 (Levenberg–Marquardt).
  */
 import { everConducts } from '../model/groups.js';
+import { cylinderRests } from './cylinder-rest.js';
 import type { Model, NodeRef } from '../model/types.js';
 import type { RunResult } from '../transient/results.js';
 import { simulate } from '../transient/transient.js';
@@ -239,10 +240,16 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
   }
 
   const failed = groups.some((g) => g.equilibria.some((e) => !e.stability.ok)) || groups.some((g) => g.kind === 'open' && !g.complete && g.equilibria.length === 0);
+  const cylMasses = model.cylinders.map((c) => {
+    const end = (side: string): number | undefined => (gas === 'end' && run ? run.chambers[`${c.name}.${side}`]?.final.mass : undefined);
+    return { cap: end('cap') ?? c.cap.m0, rod: end('rod') ?? c.rod?.m0 ?? 0 };
+  });
+  const cylinders = model.cylinders.length ? cylinderRests(model, valves, cylMasses) : undefined;
   return {
     format: 1, title: model.doc.title, file: model.doc.file,
     status: failed ? 'failed' : 'ok',
     message: failed ? 'part of the analysis failed numerically (see the group notes)' : `${count} equilibri${count === 1 ? 'um' : 'a'}`,
     valves, gas, heat: model.heat, ambient: model.pa, groups, equilibria, count, transient, notes,
+    ...(cylinders ? { cylinders } : {}),
   };
 }

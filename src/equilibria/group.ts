@@ -188,7 +188,7 @@ export function oneWayChecks(setup: RestSetup, pressures: Float64Array): string[
   const { model } = setup;
   const flowing = new Set(setup.groups.flatMap((g) => g.flowing));
   const out: string[] = [];
-  const pOf = (r: { kind: 'chamber' | 'reservoir'; index: number }): number => (r.kind === 'chamber' ? pressures[r.index] : model.reservoirs[r.index].pressure.at(setup.t));
+  const pOf = (r: NodeRef): number => (r.kind === 'chamber' ? pressures[r.index] : model.reservoirs[r.index].pressure.at(setup.t));
   model.branches.forEach((b, k) => {
     const op = b.valve?.operation;
     if (!op || flowing.has(k)) return;

@@ -5,7 +5,7 @@
 import { NetworkSystem } from '../assemble/system.js';
 import { chamberGroups, type ChamberGroup } from '../model/groups.js';
 import { makeSchedule } from '../model/schedule.js';
-import type { BranchModel, ChamberModel, Model } from '../model/types.js';
+import type { BranchModel, ChamberModel, Model, NodeRef } from '../model/types.js';
 import { vacuumVolume } from '../model/volume.js';
 import { brent } from '../physics/roots.js';
 import type { WallLaw, WallPoint } from '../physics/wall.js';
@@ -144,12 +144,12 @@ export function restSetup(model: Model, valves: ValveState): RestSetup {
     groups = chamberGroups(rest, (b, k) => conducts(b) || flowing.has(k), feedActive);
     const groupOf = new Map<number, ChamberGroup>();
     for (const g of groups) for (const c of g.chambers) groupOf.set(c, g);
-    const open = (r: { kind: 'chamber' | 'reservoir'; index: number }): boolean => {
+    const open = (r: NodeRef): boolean => {
       if (r.kind === 'reservoir') return true;
       const g = groupOf.get(r.index)!;
       return g.reservoirs.length > 0 || g.feeds.length > 0;
     };
-    const fedOnly = (r: { kind: 'chamber' | 'reservoir'; index: number }): boolean => {
+    const fedOnly = (r: NodeRef): boolean => {
       if (r.kind === 'reservoir') return false;
       const g = groupOf.get(r.index)!;
       return g.reservoirs.length === 0 && g.feeds.length > 0;

@@ -4,6 +4,7 @@
  */
 import { DenseLu } from '../linalg/dense-lu.js';
 import type { RestGroup, RestSetup } from './rest.js';
+import type { NodeRef } from '../model/types.js';
 
 // ---- open groups: steady flow ------------------------------------------------------------
 
@@ -23,7 +24,7 @@ export function steadyPressures(setup: RestSetup, g: RestGroup): { p: Float64Arr
   const residual = (x: Float64Array, out: Float64Array): void => {
     out.fill(0);
     scale.fill(0);
-    const node = (r: { kind: 'chamber' | 'reservoir'; index: number }): [number, number] => (r.kind === 'chamber'
+    const node = (r: NodeRef): [number, number] => (r.kind === 'chamber'
       ? [x[pos.get(r.index)!], setup.chambers[r.index].T]
       : [model.reservoirs[r.index].pressure.at(t), model.reservoirs[r.index].T]);
     for (const k of g.branches) {

@@ -5,6 +5,7 @@
 import type { HeatMode } from '../model/types.js';
 import type { GroupOutcome } from '../transient/results.js';
 import type { Stability, StabilityVerdict } from './stability.js';
+import type { CylinderRest } from './cylinder-rest.js';
 
 /** Samples per wall segment for bracketing roots (Chebyshev–Lobatto in V or ln V). */
 export const SAMPLES = 128;
@@ -111,4 +112,6 @@ export interface EquilibriaResult {
   count: number;
   transient: TransientMatch | null;
   notes: string[];
+  /** Rest positions of cylinders and their stability with the load (cylinder-rest.ts). */
+  cylinders?: CylinderRest[];
 }

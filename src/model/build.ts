@@ -11,6 +11,8 @@ import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/ty
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import type { BranchModel, ChamberModel, ControllerModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
+import { buildCylinder, type CylinderModel } from './cylinder.js';
+import { PORT_NAME } from '../netlist/names.js';
 
 const AMBIENT = 'ambient';
 
@@ -137,9 +139,12 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   const chamberIndex = new Map(doc.chambers.map((c, i) => [c.name, i] as const));
   const reservoirs: ReservoirModel[] = doc.reservoirs.map((r) => ({ name: r.name, pressure: r.pressure, T: r.temperature ?? Ta }));
   const reservoirIndex = new Map(reservoirs.map((r, i) => [r.name, i] as const));
+  const cylinderIndex = new Map(doc.cylinders.map((c, i) => [c.name, i] as const));
   const node = (name: string): NodeRef => {
     const c = chamberIndex.get(name);
     if (c !== undefined) return { kind: 'chamber', index: c };
+    const port = PORT_NAME.exec(name);
+    if (port && cylinderIndex.has(port[1])) return { kind: 'port', index: cylinderIndex.get(port[1]) as number, side: port[2] as 'cap' | 'rod' };
     let r = reservoirIndex.get(name);
     if (r === undefined && name === AMBIENT) {
       r = reservoirs.length;
@@ -152,14 +157,17 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
 
   // Lines: half of each line's volume is lumped into the node at each end.
   const dead = new Float64Array(doc.chambers.length);
+  const deadPort = doc.cylinders.map(() => ({ cap: 0, rod: 0 }));
   const hostedBy = new Map(doc.valves.filter((v) => v.inLine).map((v) => [v.inLine as string, v] as const));
   const branches: BranchModel[] = [];
   for (const l of doc.lines) {
     const half = (Math.PI * l.diameter * l.diameter * l.length) / 8;
     const from = node(l.from);
     const to = node(l.to);
-    if (from.kind === 'chamber') dead[from.index] += half;
-    if (to.kind === 'chamber') dead[to.index] += half;
+    for (const end of [from, to]) {
+      if (end.kind === 'chamber') dead[end.index] += half;
+      if (end.kind === 'port') deadPort[end.index][end.side] += half;
+    }
     const line = { diameter: l.diameter, length: l.length, roughness: l.roughness };
     const v = hostedBy.get(l.name);
     branches.push(v
@@ -259,9 +267,16 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   });
 
   const rhoAnr = anrDensity(gas);
+  const cylinders: CylinderModel[] = [];
+  doc.cylinders.forEach((c, i) => {
+    const m = buildCylinder(c, deadPort[i], gas, pa, Ta, doc.heat, errs);
+    if (m) cylinders.push(m);
+  });
+
   const feeds: FeedModel[] = doc.feeds.map((f) => ({
     name: f.name,
-    into: chamberIndex.get(f.into) as number,
+    into: chamberIndex.get(f.into) ?? -1,
+    ...(chamberIndex.has(f.into) ? {} : { port: node(f.into) as { index: number; side: 'cap' | 'rod' } }),
     rate: f.rate.kind === 'mass' ? f.rate.value : f.rate.value * rhoAnr,
     T: f.temperature ?? Ta,
     initially: f.initially,
@@ -295,7 +310,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
 
   if (errs.length) return { ok: false, diagnostics: errs };
   const model: Model = {
-    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, controllers,
+    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders, controllers,
     simulate: doc.simulate, expect: doc.expect,
   };
   return { ok: true, value: model, warnings };

@@ -4,14 +4,18 @@
  */
 import type { Gas } from '../physics/gas.js';
 import type { WallLaw } from '../physics/wall.js';
+import type { CylinderModel } from './cylinder.js';
 import type {
   ChamberSpec, ControllerSpec, ExpectSpec, ProbeQuantity, NetlistDoc, ScheduleStep, SimulateSpec, TimeSeries, ValveOperation, ValveRating,
 } from '../netlist/types.js';
 
 export type HeatMode = NetlistDoc['heat'];
 
-/** A node is a chamber (holds gas) or a reservoir (fixed pressure, a boundary). */
-export type NodeRef = { kind: 'chamber'; index: number } | { kind: 'reservoir'; index: number };
+/**
+ * A node is a chamber (holds gas), a reservoir (fixed pressure, a boundary), or one side of a
+ * cylinder (holds gas; `index` is the cylinder's).
+ */
+export type NodeRef = { kind: 'chamber'; index: number } | { kind: 'reservoir'; index: number } | { kind: 'port'; index: number; side: 'cap' | 'rod' };
 
 export interface ChamberModel {
   name: string;
@@ -58,7 +62,8 @@ export interface BranchModel {
 
 export interface FeedModel {
   name: string;
-  into: number;          // chamber index
+  into: number;          // chamber index, or −1 for a cylinder's side (then `port`)
+  port?: { index: number; side: 'cap' | 'rod' };
   rate: number;          // kg/s at full opening
   T: number;             // K
   initially: number;
@@ -90,6 +95,7 @@ export interface Model {
   reservoirs: ReservoirModel[];
   branches: BranchModel[];
   feeds: FeedModel[];
+  cylinders: CylinderModel[];
   controllers: ControllerModel[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];

@@ -17,7 +17,7 @@ import { readOpening, readSchedule } from './schedule.js';
 import type { FeedCurve, FeedSpec, FlowValue, LineSpec, ValveOperation, ValveRating, ValveSpec } from './types.js';
 import type { YMap, YNode } from './yaml-types.js';
 
-const NODE_KINDS = ['chamber', 'reservoir'] as const;
+const NODE_KINDS = ['chamber', 'port', 'reservoir'] as const;
 const RATE_HINT = 'write a mass flow (`0.5 g/s`) or a standard volume flow at ISO 8778 (`10 L/min ANR`)';
 
 function keysOf(tables: readonly KindTable[]): string[] {
@@ -309,7 +309,7 @@ export function readFeed(ck: Checker, entry: NameEntry, names: Names): FeedSpec 
   ck.checkKeys(map, FEED.params.map((p) => p.name), what);
   const v = ck.params(map, FEED.params);
   const into = v.into as string | undefined;
-  const intoOk = into !== undefined && resolve(ck, names, ck.get(map, 'into') as YNode, into, ['chamber'], `\`into\` of ${what}`);
+  const intoOk = into !== undefined && resolve(ck, names, ck.get(map, 'into') as YNode, into, ['chamber', 'port'], `\`into\` of ${what}`);
   const shutNode = ck.get(map, 'shut-off');
   let rate = v.rate ? readRate(ck, v.rate as YNode) : undefined;
   if (rate && rate.value === 0) {

@@ -14,6 +14,8 @@ import type { SourcePos } from './types.js';
 import type { Pos, YMap, YNode, YSeq } from './yaml-types.js';
 
 export const IDENTIFIER = /^[A-Za-z][A-Za-z0-9_]*$/;
+/** A node name: an identifier, or a cylinder's side (`clamp.cap`, `clamp.rod`). */
+const NODE_NAME = /^[A-Za-z][A-Za-z0-9_]*(?:\.(?:cap|rod))?$/;
 
 /** Something a diagnostic can point at. */
 export interface Where {
@@ -159,11 +161,11 @@ export class Checker {
     return v;
   }
 
-  /** An identifier naming another element. */
+  /** An identifier naming another element, or a cylinder's side (`clamp.cap`). */
   name(node: YNode, what: string): string | undefined {
     const v = this.text(node, what, 'write the name of an element');
     if (v === undefined) return undefined;
-    if (!IDENTIFIER.test(v)) {
+    if (!NODE_NAME.test(v)) {
       this.error(node, 'bad-name', `${what} \`${v}\` is not a valid name`, 'names are letters, digits and _, starting with a letter');
       return undefined;
     }

@@ -32,6 +32,11 @@ export const QUANTITY_DIMENSION: Record<Exclude<ProbeQuantity, 'output' | 'error
   stretch: 'dimensionless',
   flow: 'mass-flow',
   reynolds: 'dimensionless',
+  position: 'length',
+  velocity: 'velocity',
+  'stroke-time': 'time',
+  'impact-velocity': 'velocity',
+  dissipated: 'energy',
 };
 
 export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): SimulateSpec | undefined {
@@ -94,7 +99,8 @@ export function probeValueKind(probe: Probe, controllers?: Map<string, Controlle
 export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forControl = false): Probe | undefined {
   const text = ck.text(node, '`probe`', PROBE_HINT);
   if (text === undefined) return undefined;
-  const m = /^\s*([A-Za-z][A-Za-z0-9_]*)\.([A-Za-z_-]+)\s*$/.exec(text);
+  // the element may be a cylinder's side: `clamp.cap.gauge`
+  const m = /^\s*([A-Za-z][A-Za-z0-9_]*(?:\.(?:cap|rod))?)\.([A-Za-z_-]+)\s*$/.exec(text);
   if (!m) {
     ck.error(node, 'bad-probe', `cannot read the probe \`${text}\``, PROBE_HINT);
     return undefined;
@@ -108,13 +114,13 @@ export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forContro
     }
   } else {
     const entry = cx.names.get(element);
-    const probed = (k: string): boolean => k in PROBE_QUANTITIES && (k !== 'controller' || !forControl);
+    const probed = (k: string): boolean => (forControl ? k === 'chamber' || k === 'line' || k === 'valve' : k in PROBE_QUANTITIES);
     if (!entry || !probed(entry.kind)) {
       const candidates = [...cx.names.values()].filter((n) => probed(n.kind)).map((n) => n.name);
       const why = entry
         ? `\`${element}\` is a ${entry.kind}, which has no probes${forControl && entry.kind === 'controller' ? ' a controller can measure' : ''}`
         : `the probe names \`${element}\`, which is not defined`;
-      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? (forControl ? 'measure a chamber, a line or a valve' : 'probe a chamber, a line, a valve, a controller, or `total.mass`'));
+      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? (forControl ? 'measure a chamber, a line or a valve' : 'probe a chamber, a line, a valve, a cylinder (or its side `<cylinder>.cap`), a controller, or `total.mass`'));
       return undefined;
     }
     kind = entry.kind as keyof typeof PROBE_QUANTITIES;
@@ -124,7 +130,7 @@ export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forContro
   const sphere = law === undefined || (SPHERE_LAWS as readonly string[]).includes(law);
   if (!allowed.includes(quantity) || (quantity === 'stretch' && !sphere)) {
     const own = allowed.filter((q) => q !== 'stretch' || sphere);
-    const which = kind === 'total' ? '`total`' : `${kind} \`${element}\``;
+    const which = kind === 'total' ? '`total`' : `${kind === 'port' ? 'cylinder side' : kind} \`${element}\``;
     const has = `${which} has ${listChoices(own).replace(/ or (?=[^ ]*$)/, ' and ')}`;
     const close = didYouMean(quantity, own);
     ck.error(node, 'unknown-quantity', `${which} has no quantity \`${quantity}\``, close ? `${close} (${has})` : has);

@@ -63,6 +63,7 @@ export type Section =
   | 'valve-operation'
   | 'schedule-step'
   | 'feed'
+  | 'cylinder'
   | 'controller'
   | 'simulate'
   | 'expect';
@@ -371,6 +372,87 @@ export const OUTPUT_LIMITS: KindTable = {
   ],
 };
 
+// ---- cylinders -----------------------------------------------------------------------------
+
+export const CYLINDER: KindTable = {
+  kind: 'cylinder',
+  section: 'cylinder',
+  doc: 'a pneumatic cylinder: a piston moving a load; its gas volumes are the nodes `<name>.cap` and `<name>.rod`',
+  params: [
+    p('bore', 'length', 'piston (bore) diameter D', { bounds: POSITIVE }),
+    opt('rod', 'length', 'rod diameter d, thinner than the bore; absent: single-acting, the rod side open to ambient', { bounds: POSITIVE }),
+    p('stroke', 'length', 'stroke s: the piston moves over 0 ≤ x ≤ s (x = 0 retracted)', { bounds: POSITIVE }),
+    p('dead-volume', 'structure', 'gas volume left at each end with the piston against it (ports, cushions): one value for both, or { cap, rod }', { shape: 'dead-volume' }),
+    p('moving-mass', 'mass', 'mass M of piston, rod and the load they carry', { bounds: POSITIVE }),
+    opt('spring', 'structure', '{ rate, preload }: a spring that retracts the piston, force preload + rate·x', { shape: 'spring' }),
+    opt('force', 'structure', 'external load opposing extension: a constant (`40 N`), a table [[t, F], ...] or an expression in t', { shape: 'force-series' }),
+    opt('friction', 'structure', '{ static, sliding, viscous }: stick–slip friction of piston and seals (Karnopp)', { shape: 'friction' }),
+    opt('mounting', 'structure', '{ angle }: the extending direction’s angle above the horizontal; gravity acts along the axis', { shape: 'mounting' }),
+    opt('start', 'structure', '{ position, cap: { pressure }, rod: { pressure } }; default retracted with both sides at ambient', { shape: 'cylinder-start' }),
+    opt('heat-transfer', 'heat-conductance', 'h·A between the gas of each side and the surroundings, for heat: exchange (default 0: adiabatic sides)', { bounds: NON_NEGATIVE }),
+  ],
+};
+
+export const DEAD_VOLUME: KindTable = {
+  kind: 'dead-volume',
+  section: 'cylinder',
+  doc: 'dead volumes of a cylinder’s two sides',
+  params: [
+    p('cap', 'volume', 'cap-side gas volume at x = 0', { bounds: POSITIVE }),
+    opt('rod', 'volume', 'rod-side gas volume at x = s (double-acting only)', { bounds: POSITIVE }),
+  ],
+};
+
+export const SPRING: KindTable = {
+  kind: 'spring',
+  section: 'cylinder',
+  doc: 'a return spring acting to retract: force preload + rate·x',
+  params: [
+    p('rate', 'spring-rate', 'spring rate k', { bounds: NON_NEGATIVE }),
+    opt('preload', 'force', 'spring force F0 at x = 0 (retracted)', { default: '0 N', bounds: NON_NEGATIVE }),
+  ],
+};
+
+export const FRICTION: KindTable = {
+  kind: 'friction',
+  section: 'cylinder',
+  doc: 'Karnopp stick–slip friction: static (breakaway) and sliding (Coulomb) levels and a viscous part',
+  params: [
+    opt('static', 'force', 'breakaway force F_s: a piston at rest moves once the net force exceeds it (default: the sliding level)', { bounds: NON_NEGATIVE }),
+    opt('sliding', 'force', 'Coulomb force F_c ≤ F_s against the motion (default: the static level)', { bounds: NON_NEGATIVE }),
+    opt('viscous', 'damping', 'viscous coefficient c: c·v against the motion', { default: '0 N*s/m', bounds: NON_NEGATIVE }),
+  ],
+};
+
+export const MOUNTING: KindTable = {
+  kind: 'mounting',
+  section: 'cylinder',
+  doc: 'how the cylinder is mounted',
+  params: [p('angle', 'angle', 'angle of the extending direction above the horizontal (`90 deg`: extends upwards, against gravity)', { bounds: { ge: -Math.PI, le: Math.PI } })],
+};
+
+export const CYLINDER_START: KindTable = {
+  kind: 'cylinder-start',
+  section: 'cylinder',
+  doc: 'initial state of a cylinder: piston position (at rest) and each side’s gas',
+  params: [
+    opt('position', 'length', 'initial piston position x within 0..stroke', { default: '0 m' }),
+    opt('cap', 'structure', '{ pressure, temperature } of the cap-side gas (default ambient)', { shape: 'port-start' }),
+    opt('rod', 'structure', '{ pressure, temperature } of the rod-side gas (default ambient; double-acting only)', { shape: 'port-start' }),
+  ],
+};
+
+export const PORT_START: KindTable = {
+  kind: 'port-start',
+  section: 'cylinder',
+  doc: 'initial gas of one side of a cylinder: pressure or mass, optional temperature',
+  params: [
+    opt('pressure', 'absolute-pressure', 'initial pressure (gauge or abs)', { bounds: POSITIVE }),
+    opt('mass', 'mass', 'initial gas mass', { bounds: POSITIVE }),
+    opt('temperature', 'temperature', 'initial gas temperature (default ambient)', { bounds: POSITIVE }),
+  ],
+};
+
 // ---- top level -----------------------------------------------------------------------------
 
 export const AMBIENT: KindTable = {
@@ -472,6 +554,7 @@ export const TOP: KindTable = {
     opt('lines', 'structure', 'lines by name', { shape: 'lines' }),
     opt('valves', 'structure', 'valves by name', { shape: 'valves' }),
     opt('feeds', 'structure', 'feeds by name', { shape: 'feeds' }),
+    opt('cylinders', 'structure', 'cylinders by name', { shape: 'cylinders' }),
     opt('controllers', 'structure', 'controllers by name', { shape: 'controllers' }),
     p('simulate', 'structure', 'duration and solver settings', { shape: 'simulate' }),
     opt('expect', 'structure', 'checks for CI', { shape: 'expect' }),
@@ -481,7 +564,8 @@ export const TOP: KindTable = {
 /** Every table, for `plenum kinds` and the README. */
 export const ALL_TABLES: KindTable[] = [
   TOP, AMBIENT, CUSTOM_GAS, VISCOSITY, CHAMBER, ...WALL_LAWS, START, LIMITS, RESERVOIR, LINE, VALVE,
-  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, REGULATES, SCHEDULE_STEP, FEED, CONTROLLER, OUTPUT_LIMITS, SIMULATE, EXPECT, NEAR, SETTLES,
+  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, REGULATES, SCHEDULE_STEP, FEED, CONTROLLER, OUTPUT_LIMITS, CYLINDER, DEAD_VOLUME, SPRING, FRICTION,
+  MOUNTING, CYLINDER_START, PORT_START, SIMULATE, EXPECT, NEAR, SETTLES,
 ];
 
 /** The table of a wall law, or undefined. */
@@ -494,6 +578,8 @@ export const PROBE_QUANTITIES = {
   chamber: ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch'],
   line: ['flow', 'reynolds'],
   valve: ['flow', 'reynolds'],
+  cylinder: ['position', 'velocity', 'stroke-time', 'impact-velocity', 'dissipated'],
+  port: ['pressure', 'gauge', 'volume', 'mass', 'temperature'],
   controller: ['output', 'error'],
   total: ['mass'],
 } as const;

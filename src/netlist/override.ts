@@ -11,10 +11,10 @@
 import { isMap, isScalar, isSeq, parseDocument, type Document } from 'yaml';
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { closestMatches, listChoices } from '../diag/did-you-mean.js';
-import { readNetlist } from './read.js';
+import { readNetlist, readNetlistTree } from './read.js';
 import type { NetlistDoc } from './types.js';
 import { parseYamlTree } from './yaml-tree.js';
-import type { YNode } from './yaml-types.js';
+import type { Pos, YamlTree, YNode } from './yaml-types.js';
 
 export type PathSegment = string | number;
 
@@ -150,10 +150,53 @@ export function mapOverrideDiagnostics(diagnostics: readonly Diagnostic[], sourc
   });
 }
 
-/** readNetlist on the netlist with overrides applied, diagnostics mapped back to the user's input. */
-export function readWithOverrides(source: string, file: string, overrides: readonly Override[]): Result<NetlistDoc> {
-  const text = overrides.length ? applyOverrides(source, overrides) : source;
-  const r = readNetlist(text, file);
+/** A scalar node holding an override's value at `path`. */
+function overrideNode(path: readonly PathSegment[], value: string | number, pos: Pos): YNode {
+  return { kind: 'scalar', value, empty: false, path: path.slice(), pos, keyPos: pos };
+}
+
+/** node with the value at path[k..] set, sharing every node off the path (copy on write). */
+function setIn(node: YNode, path: readonly PathSegment[], k: number, value: string | number): YNode {
+  if (k === path.length) return { ...overrideNode(path, value, node.pos), keyPos: node.keyPos };
+  const seg = path[k];
+  if (node.kind === 'map') {
+    const key = String(seg);
+    const i = node.entries.findIndex((e) => e.key === key);
+    const entries = node.entries.slice();
+    if (i >= 0) entries[i] = { ...entries[i], value: setIn(entries[i].value, path, k + 1, value) };
+    else if (k === path.length - 1) entries.push({ key, keyPos: node.pos, value: overrideNode(path, value, node.pos) });
+    else throw new Error(`override path ${dotted(path)} was not checked`);
+    return { ...node, entries };
+  }
+  if (node.kind === 'seq' && typeof seg === 'number' && seg < node.items.length) {
+    const items = node.items.slice();
+    items[seg] = setIn(items[seg], path, k + 1, value);
+    return { ...node, items };
+  }
+  throw new Error(`override path ${dotted(path)} was not checked`);
+}
+
+/**
+ * The parsed netlist with every override set (paths must have passed checkPath): the same
+ * document `applyOverrides` writes out and the reader parses back, without writing or parsing
+ * text. Untouched nodes are shared with `tree`, which stays as it was.
+ */
+export function overrideTree(tree: YamlTree, overrides: readonly Override[]): YamlTree {
+  if (!tree.root || !overrides.length) return tree;
+  let root = tree.root;
+  for (const o of overrides) root = setIn(root, o.path, 0, o.value);
+  return { root, diagnostics: tree.diagnostics };
+}
+
+/**
+ * readNetlist on the netlist with overrides applied, diagnostics mapped back to the user's input.
+ * With `tree` (the netlist parsed once by parseYamlTree, for many cases) the overrides are set in
+ * the parsed document instead of the text; the document's `source` is then the original text.
+ */
+export function readWithOverrides(source: string, file: string, overrides: readonly Override[], tree?: YamlTree): Result<NetlistDoc> {
+  const r = tree
+    ? readNetlistTree(overrideTree(tree, overrides), source, file)
+    : readNetlist(overrides.length ? applyOverrides(source, overrides) : source, file);
   if (!overrides.length) return r;
   if (!r.ok) return { ok: false, diagnostics: mapOverrideDiagnostics(r.diagnostics, source, file, overrides) };
   return { ok: true, value: r.value, warnings: mapOverrideDiagnostics(r.warnings, source, file, overrides) };

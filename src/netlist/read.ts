@@ -9,16 +9,17 @@
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { readFeed, readLine, readValve } from './branches.js';
 import { readChamber } from './chambers.js';
+import { readCylinder } from './cylinders.js';
 import { Checker } from './checker.js';
 import { drivenValves, readController } from './controllers.js';
 import { readExpect, readSimulate } from './expect.js';
 import { namedGas } from './gases.js';
 import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
-import { collectNames, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
+import { collectNames, registerPorts, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
 import { readPressureSeries } from './time-series.js';
 import type { ChamberSpec, ControllerSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
 import { parseYamlTree } from './yaml-tree.js';
-import type { YMap, YNode } from './yaml-types.js';
+import type { YamlTree, YMap, YNode } from './yaml-types.js';
 
 const DEFAULT_AMBIENT = { pressure: 101325, temperature: 293.15 };
 
@@ -87,6 +88,7 @@ function collectSections(ck: Checker, root: YMap, names: Names): Record<ElementK
     const map = node ? ck.map(node, `\`${key}\``, `\`${key}\` maps names to definitions, e.g. \`${key}:\\n  name_1: {...}\``, true) : undefined;
     out[kind] = map ? collectNames(ck, names, kind, map) : [];
   }
+  registerPorts(names, out.cylinder);
   return out;
 }
 
@@ -140,7 +142,11 @@ function defined<T>(xs: (T | undefined)[]): T[] {
 
 /** Reads and validates a netlist. `file` is used in diagnostics and as the default title. */
 export function readNetlist(source: string, file: string): Result<NetlistDoc> {
-  const tree = parseYamlTree(source, file);
+  return readNetlistTree(parseYamlTree(source, file), source, file);
+}
+
+/** readNetlist on a tree already parsed from `source` (or edited from one: see override.ts). */
+export function readNetlistTree(tree: YamlTree, source: string, file: string): Result<NetlistDoc> {
   if (!tree.root) return { ok: false, diagnostics: tree.diagnostics };
   const ck = new Checker(file);
   ck.diagnostics.push(...tree.diagnostics);
@@ -162,10 +168,9 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
 
   const names: Names = new Map();
   const sections = collectSections(ck, root, names);
-  const chambersNode = ck.get(root, 'chambers');
-  const noChambers = !chambersNode || (chambersNode.kind === 'map' && chambersNode.entries.length === 0) || (chambersNode.kind === 'scalar' && chambersNode.value === null);
-  if (noChambers) {
-    ck.error(ck.missingAt(root, 'chambers'), 'missing-key', 'the netlist has no chambers', 'add `chambers:` with at least one chamber; there is nothing to simulate otherwise');
+  const empty = (node: YNode | undefined): boolean => !node || (node.kind === 'map' && node.entries.length === 0) || (node.kind === 'scalar' && node.value === null);
+  if (empty(ck.get(root, 'chambers')) && empty(ck.get(root, 'cylinders'))) {
+    ck.error(ck.missingAt(root, 'chambers'), 'missing-key', 'the netlist has no chambers', 'add `chambers:` with at least one chamber (or `cylinders:`); there is nothing to simulate otherwise');
   }
   const chambers = defined(sections.chamber.map((e) => readChamber(ck, e, { heat: heat as NetlistDoc['heat'] })));
   const reservoirs = defined(sections.reservoir.map((e) => readReservoir(ck, e, simulate?.duration)));
@@ -179,10 +184,11 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
   const carriesDriven = new Set<string>();
   for (const v of valves) if (driven.has(v.name)) { carriesDriven.add(v.name); if (v.inLine) carriesDriven.add(v.inLine); }
   const controllers = defined(sections.controller.map((e) => readController(ck, e, names, driven, { names, chambers: chamberMap, duration: simulate?.duration }, carriesDriven)));
+  const cylinders = defined(sections.cylinder.map((e) => readCylinder(ck, e, heat as NetlistDoc['heat'])));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {
-    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, controller: controllers };
+    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, cylinder: cylinders, controller: controllers };
     for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
       const got = new Set(read[kind].map((x) => x.name)); // a set: ten thousand chambers are read
       for (const e of sections[kind]) {
@@ -210,6 +216,7 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
     lines,
     valves,
     feeds,
+    cylinders,
     controllers,
     simulate,
     expect,

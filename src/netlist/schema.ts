@@ -6,8 +6,9 @@
  */
 import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
 import {
-  AMBIENT, CHAMBER, CHECK, CONTROLLER, CUSTOM_GAS, EXPECT, FEED, GAS_NAMES, LIMITS, LINE, NEAR, OUTPUT_LIMITS, REGULATES, RELIEF, RESERVOIR,
-  SCHEDULE_STEP, SETTLES, SIMULATE, START, TOP, VALVE, VALVE_OPERATIONS, VALVE_RATINGS, VISCOSITY, WALL_LAWS,
+  AMBIENT, CHAMBER, CHECK, CONTROLLER, CUSTOM_GAS, CYLINDER, CYLINDER_START, DEAD_VOLUME, EXPECT, FEED, FRICTION, GAS_NAMES, LIMITS,
+  LINE, MOUNTING, NEAR, OUTPUT_LIMITS, PORT_START, REGULATES, RELIEF, RESERVOIR, SCHEDULE_STEP, SETTLES, SIMULATE, SPRING, START, TOP, VALVE,
+  VALVE_OPERATIONS, VALVE_RATINGS, VISCOSITY, WALL_LAWS,
   type Bounds, type KindTable, type ParamSpec,
 } from './kinds.js';
 
@@ -20,6 +21,8 @@ const QUALIFIER = '(?:\\s(?:gauge|abs|absolute|GAUGE|ABS)|\\((?:g|a)\\)|(?:psi|b
 const QUALIFIED_PRESSURE = `^\\s*${NUMBER}\\s*(?:\\S.*)?${QUALIFIER}`;
 const PERCENT = `^\\s*${NUMBER}\\s*%\\s*$`;
 const IDENTIFIER = '^[A-Za-z][A-Za-z0-9_]*$';
+/** A node: an identifier, or a cylinder's side (`clamp.cap`, `clamp.rod`). */
+const NODE_NAME = '^[A-Za-z][A-Za-z0-9_]*(?:\\.(?:cap|rod))?$';
 
 function numberBounds(b: Bounds | undefined): Schema {
   const s: Schema = {};
@@ -123,6 +126,21 @@ function shapes(): Record<string, () => Schema> {
     lines: () => namedMap(objectOf(LINE), 'Lines by name.'),
     valves: () => namedMap(valveSchema(), 'Valves by name.'),
     feeds: () => namedMap(objectOf(FEED), 'Feeds by name.'),
+    cylinders: () => namedMap(objectOf(CYLINDER), 'Cylinders by name; their sides are the nodes `<name>.cap` and `<name>.rod`.'),
+    'dead-volume': () => ({ description: 'One volume for both sides, or { cap, rod }.', anyOf: [quantity('volume', 'Dead volume of each side', { gt: 0 }), objectOf(DEAD_VOLUME)] }),
+    spring: () => objectOf(SPRING),
+    friction: () => objectOf(FRICTION),
+    mounting: () => objectOf(MOUNTING),
+    'cylinder-start': () => objectOf(CYLINDER_START),
+    'port-start': () => objectOf(PORT_START),
+    'force-series': () => ({
+      description: 'Force: a constant (`40 N`), a time table [[t, F], ...] (linear, held outside), or an expression in t (`40 N + 10 N * sin(2*pi*t/(1 s))`).',
+      anyOf: [
+        { type: 'number' },
+        { type: 'string', pattern: NUMBER_TEXT },
+        { type: 'array', minItems: 1, items: pair(timeValue, quantity('force', 'Force'), '[time, force]') },
+      ],
+    }),
     simulate: () => objectOf(SIMULATE),
     expect: () => ({ type: 'array', description: 'Checks for CI.', items: objectOf(EXPECT) }),
     at: () => ({ description: 'A time or `end`.', anyOf: [{ const: 'end' }, timeValue] }),
@@ -157,7 +175,7 @@ function paramSchema(p: ParamSpec): Schema {
       case 'integer':
         return { type: 'integer', ...numberBounds(p.bounds) };
       case 'name':
-        return { type: 'string', pattern: IDENTIFIER };
+        return { type: 'string', pattern: NODE_NAME };
       case 'enum':
         return { enum: [...(p.values ?? [])] };
       case 'text':

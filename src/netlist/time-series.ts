@@ -44,9 +44,24 @@ export function tableSeries(times: number[], values: number[], text: string): Ti
   return { at, breakpoints: times.slice(), constant: n === 1 || values.every((v) => v === values[0]), text };
 }
 
-function readTable(ck: Checker, node: YNode & { kind: 'seq' }): TimeSeries | undefined {
+/** How a table reads its values: the quantity's name, a reader (SI or undefined) and an example row. */
+interface TableValues {
+  noun: string;
+  read: (ck: Checker, node: YNode, what: string) => number | undefined;
+  row: string;
+  hint: string;
+}
+
+const PRESSURE_VALUES: TableValues = {
+  noun: 'pressure',
+  read: (ck, node, what) => ck.absolutePressure(node, what),
+  row: '`[1 s, 200 kPa gauge]`',
+  hint: FORMS_HINT,
+};
+
+function readTable(ck: Checker, node: YNode & { kind: 'seq' }, kind: TableValues = PRESSURE_VALUES): TimeSeries | undefined {
   if (node.items.length === 0) {
-    ck.error(node, 'too-few-points', 'the pressure table is empty', FORMS_HINT);
+    ck.error(node, 'too-few-points', `the ${kind.noun} table is empty`, kind.hint);
     return undefined;
   }
   const times: number[] = [];
@@ -55,13 +70,13 @@ function readTable(ck: Checker, node: YNode & { kind: 'seq' }): TimeSeries | und
   let ok = true;
   node.items.forEach((row, i) => {
     if (row.kind !== 'seq' || row.items.length !== 2) {
-      ck.error(row, 'wrong-type', `row ${i + 1} of the pressure table must be a pair [time, pressure]`, 'write e.g. `[1 s, 200 kPa gauge]`');
+      ck.error(row, 'wrong-type', `row ${i + 1} of the ${kind.noun} table must be a pair [time, ${kind.noun}]`, `write e.g. ${kind.row}`);
       ok = false;
       return;
     }
     const [tn, pn] = row.items;
     const t = ck.quantity(tn, 'time', `the time in row ${i + 1}`);
-    const p = ck.absolutePressure(pn, `the pressure in row ${i + 1}`);
+    const p = kind.read(ck, pn, `the ${kind.noun} in row ${i + 1}`);
     if (t !== undefined && times.length && t <= times[times.length - 1]) {
       ck.error(tn, 'table-order', `the time in row ${i + 1} (${t} s) is not after the previous row's (${times[times.length - 1]} s)`, 'times in a table must be strictly increasing');
       ok = false;
@@ -153,4 +168,33 @@ export function readPressureSeries(ck: Checker, node: YNode, duration?: number):
     return undefined;
   }
   return readExpression(ck, node, body, reference, v.trim(), duration);
+}
+
+const FORCE_HINT = 'write a force `40 N`, a table `[[0 s, 0 N], [1 s, 40 N]]`, or an expression in t such as `40 N + 10 N * sin(2*pi*t/(1 s))`';
+
+const FORCE_VALUES: TableValues = {
+  noun: 'force',
+  read: (ck, node, what) => ck.quantity(node, 'force', what),
+  row: '`[1 s, 40 N]`',
+  hint: FORCE_HINT,
+};
+
+/**
+ * Reads a force as a function of time (N): a constant (`40 N`), a table [[t, F], ...] (linear,
+ * held outside, its times breakpoints) or an expression in t. Any sign (a negative load assists).
+ */
+export function readForceSeries(ck: Checker, node: YNode, what: string): TimeSeries | undefined {
+  if (node.kind === 'seq') return readTable(ck, node, FORCE_VALUES);
+  const v = ck.scalar(node, what, FORCE_HINT);
+  if (v === undefined) return undefined;
+  if (typeof v === 'number' || isPlainValue(v) || !FORMULA.test(v.trim().replace(/^[-+]/, ''))) {
+    const F = ck.quantity(node, 'force', what);
+    return F === undefined ? undefined : constantSeries(F, String(v).trim());
+  }
+  const compiled = compileExpression(v, 'force');
+  if (!compiled.ok) {
+    ck.valueError(node, compiled, what);
+    return undefined;
+  }
+  return { at: compiled.f, breakpoints: [], constant: compiled.constant, text: v.trim() };
 }

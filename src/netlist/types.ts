@@ -127,6 +127,31 @@ export interface FeedSpec {
   pos: SourcePos;
 }
 
+/** Initial gas of one side of a cylinder. */
+export type PortStartSpec = { by: 'pressure'; value: number /* Pa absolute */; temperature?: number } | { by: 'mass'; value: number /* kg */; temperature?: number };
+
+export interface CylinderSpec {
+  name: string;
+  bore: number;            // m
+  /** Rod diameter, m; undefined for a single-acting cylinder (rod side open to ambient). */
+  rod?: number;
+  stroke: number;          // m
+  deadVolume: { cap: number; rod: number }; // m³ (rod 0 for a single-acting cylinder)
+  movingMass: number;      // kg
+  spring: { rate: number /* N/m */; preload: number /* N */ };
+  /** External load opposing extension, N, as a function of time; undefined: none. */
+  force?: TimeSeries;
+  friction: { static: number; sliding: number; viscous: number }; // N, N, N·s/m
+  /** Angle of the extending direction above the horizontal, rad. */
+  angle: number;
+  start: { position: number /* m */; cap: PortStartSpec; rod?: PortStartSpec };
+  /** h·A of each side in W/K, for heat: exchange. */
+  heatTransfer?: number;
+  pos: SourcePos;
+  /** Positions of individual keys, e.g. fieldPos['start.position']. */
+  fieldPos: Record<string, SourcePos>;
+}
+
 /** A controller's set point: SI in the measured quantity's dimension (pressures absolute Pa). */
 export interface ControllerSpec {
   name: string;
@@ -163,10 +188,11 @@ export interface SimulateSpec {
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
   | 'flow' | 'reynolds'
+  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated'
   | 'output' | 'error';
 
 export interface Probe {
-  /** Element name, or 'total' with quantity 'mass'. */
+  /** Element name (a cylinder's side: `clamp.cap`), or 'total' with quantity 'mass'. */
   element: string;
   quantity: ProbeQuantity;
   text: string;
@@ -211,6 +237,7 @@ export interface NetlistDoc {
   lines: LineSpec[];
   valves: ValveSpec[];
   feeds: FeedSpec[];
+  cylinders: CylinderSpec[];
   controllers: ControllerSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];

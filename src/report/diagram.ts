@@ -9,6 +9,7 @@
  * crossings).
  */
 import type { ReportInput } from '../transient/report-input.js';
+import { cylinderSummary } from '../transient/results.js';
 import { display } from '../units/display.js';
 import { esc, num, sigText, tag, text, textWidth } from './svg.js';
 import { chamberStyles, channel, netTransfers } from './report-data.js';
@@ -29,7 +30,7 @@ const BOLD = 1.12;
 const TITLE = 'Network: where the gas went';
 const SUBTITLE = 'pipe width and arrow: net mass moved over the run and its way; dashed circle: a sphere\'s size at the start';
 
-type NodeKind = 'chamber' | 'reservoir' | 'ambient' | 'feed';
+type NodeKind = 'chamber' | 'reservoir' | 'ambient' | 'feed' | 'cylinder';
 
 interface DNode {
   id: string;
@@ -49,6 +50,9 @@ interface DEdge {
   label: string;
   a: string;
   b: string;
+  /** The cylinder side an end attaches to, when that end is a cylinder. */
+  aPort?: 'cap' | 'rod';
+  bPort?: 'cap' | 'rod';
   /** Net mass a → b over the run, kg (negative: b → a). */
   net: number;
   valves: { name: string; operation: string }[];
@@ -135,6 +139,38 @@ class BoxGrid {
   }
 }
 
+/** Half-length of a cylinder symbol's body (px); its ports sit under the two ends. */
+const CYL_HALF = 34;
+
+/** Where a pipe meets a cylinder side: under the cap end or the rod end of the body. */
+function portPoint(n: { x: number; y: number }, side: 'cap' | 'rod'): { x: number; y: number } {
+  return { x: n.x + (side === 'cap' ? -CYL_HALF + 8 : CYL_HALF - 8), y: n.y + 13 };
+}
+
+/**
+ * A cylinder symbol: the body with its end caps, the piston and rod at the final position
+ * (solid) and at the start (dashed), and the two ports as small stubs under the ends.
+ */
+function cylinderSymbol(x: number, y: number, f0: number, f1: number, doubleActing: boolean, color: string): string[] {
+  const L = CYL_HALF, H = 13;
+  const px = (f: number): number => x - L + 5 + Math.max(0, Math.min(1, f)) * (2 * L - 14);
+  const parts = [
+    tag('rect', { x: x - L, y: y - H, width: 2 * L, height: 2 * H, rx: 2, fill: tint(color, 0.18), stroke: INK, 'stroke-width': 1.8 }),
+    tag('path', { d: `M${num(px(f0))},${num(y - H + 2)}L${num(px(f0))},${num(y + H - 2)}M${num(px(f0))},${num(y)}L${num(x + L + 16)},${num(y)}`, fill: 'none', stroke: INK, 'stroke-width': 1, 'stroke-dasharray': '3 2.5' }),
+    tag('rect', { x: px(f1) - 2.5, y: y - H + 1.5, width: 5, height: 2 * H - 3, fill: INK }),
+    tag('rect', { x: px(f1), y: y - 2.5, width: x + L + 22 - px(f1), height: 5, fill: INK }),
+  ];
+  for (const side of doubleActing ? ['cap', 'rod'] as const : ['cap'] as const) {
+    const p = portPoint({ x, y }, side);
+    parts.push(tag('path', { d: `M${num(p.x - 3)},${num(p.y)}L${num(p.x - 3)},${num(p.y + 5)}M${num(p.x + 3)},${num(p.y)}L${num(p.x + 3)},${num(p.y + 5)}`, fill: 'none', stroke: INK, 'stroke-width': 1.4 }));
+  }
+  if (!doubleActing) {
+    const p = portPoint({ x, y }, 'rod');
+    parts.push(tag('path', { d: `M${num(p.x - 4)},${num(p.y - 13)}L${num(p.x + 4)},${num(p.y - 21)}`, fill: 'none', stroke: INK, 'stroke-width': 1.2 }));
+  }
+  return parts;
+}
+
 function sphereRadius(lambda: number): number {
   return Math.max(8, Math.min(34, 15 * (Number.isFinite(lambda) ? lambda : 1)));
 }
@@ -162,11 +198,18 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
   };
   for (const c of topo.chambers) addNode(c.name, c.name, 'chamber');
   for (const res of topo.reservoirs) if (!res.ambient) addNode(res.name, res.name, 'reservoir');
+  const cylinders = topo.cylinders ?? [];
+  for (const c of cylinders) addNode(c.name, c.name, 'cylinder');
+  /** `clamp.cap` → the cylinder node `clamp` and its side. */
+  const portOf = (name: string): { id: string; side?: 'cap' | 'rod' } => {
+    const m = /^(.*)\.(cap|rod)$/.exec(name);
+    return m && nodes.get(m[1])?.kind === 'cylinder' ? { id: m[1], side: m[2] as 'cap' | 'rod' } : { id: name };
+  };
 
   const transfers = netTransfers(input);
   let vents = 0;
   const endpoint = (name: string): string => {
-    if (name !== 'ambient') return name;
+    if (name !== 'ambient') return portOf(name).id;
     vents++;
     const id = `ambient#${vents}`;
     addNode(id, 'ambient', 'ambient');
@@ -174,15 +217,15 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
   };
   const valveOp = new Map(topo.valves.map((v) => [v.name, v.operation] as const));
   for (const l of topo.lines) {
-    edges.push({ id: l.name, label: l.name, a: endpoint(l.from), b: endpoint(l.to), net: transfers.get(l.name) ?? 0, valves: l.valves.map((v) => ({ name: v, operation: valveOp.get(v) ?? '' })) });
+    edges.push({ id: l.name, label: l.name, a: endpoint(l.from), b: endpoint(l.to), aPort: portOf(l.from).side, bPort: portOf(l.to).side, net: transfers.get(l.name) ?? 0, valves: l.valves.map((v) => ({ name: v, operation: valveOp.get(v) ?? '' })) });
   }
   for (const v of topo.valves) {
     if (v.inLine) continue;
-    edges.push({ id: v.name, label: '', a: endpoint(v.from), b: endpoint(v.to), net: transfers.get(v.name) ?? 0, valves: [{ name: v.name, operation: v.operation }] });
+    edges.push({ id: v.name, label: '', a: endpoint(v.from), b: endpoint(v.to), aPort: portOf(v.from).side, bPort: portOf(v.to).side, net: transfers.get(v.name) ?? 0, valves: [{ name: v.name, operation: v.operation }] });
   }
   for (const f of topo.feeds) {
     addNode(`feed:${f.name}`, f.name, 'feed');
-    edges.push({ id: `feed:${f.name}`, label: '', a: `feed:${f.name}`, b: f.into, net: 0, valves: [], feed: true });
+    edges.push({ id: `feed:${f.name}`, label: '', a: `feed:${f.name}`, b: portOf(f.into).id, bPort: portOf(f.into).side, net: 0, valves: [], feed: true });
   }
 
   // adjacency (vents excluded from the search: they hang off their chamber)
@@ -209,9 +252,14 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
   };
   bfs(roots);
   for (;;) {
-    // a part with no boundary source: start from its highest-pressure chamber
+    // a part with no boundary source: start from its highest-pressure chamber (or a cylinder)
     const rest = topo.chambers.filter((c) => nodes.get(c.name)!.layer < 0);
-    if (!rest.length) break;
+    if (!rest.length) {
+      const cyl = cylinders.find((c) => nodes.get(c.name)!.layer < 0);
+      if (!cyl) break;
+      bfs([cyl.name]);
+      continue;
+    }
     const best = rest.reduce((a, b) => (startGauge(b.name) > startGauge(a.name) ? b : a));
     bfs([best.name]);
   }
@@ -269,6 +317,14 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
     } else if (n.kind === 'reservoir') {
       n.r = 32;
       n.lines.push(reservoirDesc.get(n.name) ?? '');
+    } else if (n.kind === 'cylinder') {
+      const c = cylinders.find((x) => x.name === n.name)!;
+      const x0 = channel(input, `${n.name}.position`)?.[0] ?? 0;
+      const cs = cylinderSummary(r, n.name);
+      n.r = CYL_HALF + 10;
+      n.lines.push(c.describe);
+      n.lines.push(`x ${display(x0, 'position')} → ${display(cs?.final.position ?? Number.NaN, 'position')}`);
+      if (cs) n.lines.push(`peak ${display(Math.abs(cs.peak.velocity), 'velocity')}${cs.impacts.length ? `, impact ${display(Math.max(...cs.impacts.map((i) => Math.abs(i.velocity))), 'velocity')}` : ''}`);
     } else if (n.kind === 'feed') {
       n.r = 16;
       n.lines.push(topo.feeds.find((f) => f.name === n.name)?.describe ?? '');
@@ -340,8 +396,10 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
     // parallel paths, and paths within one column (past the labels under the nodes), bow out sideways
     const sameCol = A.layer === B.layer;
     const bow = (k === 0 ? 0 : (k % 2 ? 1 : -1) * Math.ceil(k / 2) * 30) + (sameCol ? (B.y > A.y ? -1 : 1) * Math.max(70, labelW / 2 + 12) : 0);
-    const ax = A.x + ux * A.r, ay = A.y + uy * A.r;
-    const bx = B.x - ux * B.r, by = B.y - uy * B.r;
+    const pa = e.aPort ? portPoint(A, e.aPort) : null;
+    const pb = e.bPort ? portPoint(B, e.bPort) : null;
+    const ax = pa ? pa.x : A.x + ux * A.r, ay = pa ? pa.y + 5 : A.y + uy * A.r;
+    const bx = pb ? pb.x : B.x - ux * B.r, by = pb ? pb.y + 5 : B.y - uy * B.r;
     const cx = (ax + bx) / 2 + nx * bow * 2, cy = (ay + by) / 2 + ny * bow * 2;
     const frac = maxNet > 0 ? Math.abs(e.net) / maxNet : 0;
     const width = e.feed ? 2 : 2 + 7 * frac;
@@ -447,6 +505,12 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
       g.push(tag('title', {}, esc(`reservoir ${n.name}: ${n.lines[0] ?? ''}`)));
       g.push(tag('rect', { x: n.x - 32, y: n.y - 21, width: 64, height: 42, rx: 3, fill: '#efefef', stroke: INK, 'stroke-width': 1.6 }));
       g.push(tag('rect', { x: n.x - 27, y: n.y - 16, width: 54, height: 32, rx: 2, fill: 'none', stroke: INK, 'stroke-width': 1 }));
+    } else if (n.kind === 'cylinder') {
+      const c = cylinders.find((x) => x.name === n.name)!;
+      const x0 = channel(input, `${n.name}.position`)?.[0] ?? 0;
+      const x1 = cylinderSummary(r, n.name)?.final.position ?? x0;
+      g.push(tag('title', {}, esc(`cylinder ${n.name}: ${c.describe}; ports ${n.name}.cap${c.doubleActing ? ` and ${n.name}.rod` : ' (rod side open to ambient)'}`)));
+      g.push(...cylinderSymbol(n.x, n.y, x0 / c.stroke, x1 / c.stroke, c.doubleActing, '#4c78a8'));
     } else if (n.kind === 'ambient') {
       g.push(tag('title', {}, esc('vent to ambient')));
       g.push(tag('path', { d: `M${num(n.x - 14)},${num(n.y - 10)}L${num(n.x + 14)},${num(n.y - 10)} ${num(n.x)},${num(n.y + 12)}Z`, fill: '#ffffff', stroke: INK, 'stroke-width': 1.6, 'stroke-linejoin': 'round' }));

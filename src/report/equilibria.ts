@@ -3,7 +3,7 @@
  */
 import type { ChamberRest, EquilibriaResult } from '../equilibria/equilibria.js';
 import type { TraceResult } from '../equilibria/continuation.js';
-import { display } from '../units/display.js';
+import { display, significant } from '../units/display.js';
 import { nameList } from './table.js';
 
 /** JSON has no Infinity/NaN: write them as null. */
@@ -77,6 +77,20 @@ export function equilibriaText(r: EquilibriaResult): string {
     if (r.count > r.equilibria.length) out.push(`... ${r.count - r.equilibria.length} more not listed`);
     out.push('');
   }
+  for (const c of r.cylinders ?? []) {
+    const sides = `cap ${c.sides.cap}${c.sides.rod ? `, rod ${c.sides.rod}` : ''}`;
+    out.push(`cylinder ${c.cylinder} (${sides}): ${c.note ?? `${c.rests.length} rest position${c.rests.length === 1 ? '' : 's'}`}`);
+    for (const e of c.rests) {
+      const where = e.where === 'inside' ? display(e.position, 'position') : `at its ${e.where}`;
+      const dyn = e.stiffness === null ? (e.stable ? 'held by the force' : 'not held: the force is zero at the stop')
+        : e.stable
+          ? `stable: stiffness ${significant(e.stiffness, 4)} N/m, ${e.omega !== null ? `natural frequency ${significant(e.omega / (2 * Math.PI), 4)} Hz, damping ratio ${significant(e.damping ?? 0, 3)}` : ''}`
+          : `unstable: stiffness ${significant(e.stiffness, 4)} N/m (the force grows away from it)`;
+      const band = e.friction_band ? `; static friction holds it anywhere in ${display(e.friction_band[0], 'position')} … ${display(e.friction_band[1], 'position')}` : '';
+      out.push(`  ${where}: ${dyn}${band}`);
+    }
+  }
+  if (r.cylinders?.length) out.push('');
   if (r.transient) {
     out.push(`transient (${display(r.transient.end, 'time')}): ${r.transient.message}`);
     for (const o of r.transient.outcomes) {
@@ -104,6 +118,7 @@ export function equilibriaJson(r: EquilibriaResult): string {
     })),
     transient: r.transient,
     notes: r.notes,
+    ...(r.cylinders ? { cylinders: r.cylinders } : {}),
   });
 }
 

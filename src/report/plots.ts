@@ -320,6 +320,34 @@ export function reportFigures(input: ReportInput, opts: FigureOptions = {}): Fig
     });
   }
 
+  // cylinders: piston position and velocity, and the gauge pressure of their sides
+  const cyls = input.topology.cylinders ?? [];
+  if (cyls.length) {
+    const kinds: { q: string; kind: DisplayKind; title: string; what: string; keys: (c: string, double: boolean) => [string, string][] }[] = [
+      { q: 'position', kind: 'position', title: 'Piston position', what: 'piston position of each cylinder (0: retracted)', keys: (c) => [[c, `${c}.position`]] },
+      { q: 'velocity', kind: 'velocity', title: 'Piston velocity', what: 'piston velocity of each cylinder (positive: extending)', keys: (c) => [[c, `${c}.velocity`]] },
+      {
+        q: 'pressure', kind: 'gauge', title: 'Cylinder pressures', what: 'gauge pressure of each cylinder side',
+        keys: (c, double) => (double ? [[`${c}.cap`, `${c}.cap.gauge`], [`${c}.rod`, `${c}.rod.gauge`]] : [[`${c}.cap`, `${c}.cap.gauge`]]),
+      },
+    ];
+    for (const k of kinds) {
+      const data = cyls.flatMap((c) => k.keys(c.name, c.doubleActing)).map(([name, key]) => ({ name, v: channel(input, key) }))
+        .filter((d) => d.v !== undefined) as { name: string; v: number[] }[];
+      if (!data.length) continue;
+      const sc = displayScale(k.kind, maxAbs(data.flatMap((d) => d.v)));
+      const series: ChartSeries[] = data.map((d, i) => ({ name: d.name, x: ax.times, y: scaled(d.v, sc.factor), style: styleAt(i, data.length) }));
+      const refs: ChartRefLine[] = k.q === 'position' ? cyls.map((c) => ({ axis: 'y' as const, value: c.stroke * sc.factor, label: `${c.name} full stroke`, tone: 'info' as const })) : [];
+      const unit = sc.unit.replace(' gauge', '');
+      figs.push({
+        id: `cylinder-${k.q}`, title: k.title,
+        caption: `${k.what[0].toUpperCase()}${k.what.slice(1)}. Numbered marks on the top edge are the events listed below.`,
+        svg: timeChart(input, ax, `cylinder-${k.q}`, k.title, `${k.what}; numbered marks: events`, `${k.title.toLowerCase()} [${unit}]`, series, refs, k.q === 'velocity', opts),
+        series: series.length,
+      });
+    }
+  }
+
   if (input.heat !== 'isothermal') {
     const shown = mostChanging(input, names, (n) => `${n}.temperature`);
     const c = chamberSeries(input, ax, 'temperature', 'temperature', shown);

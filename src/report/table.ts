@@ -86,12 +86,13 @@ export function summaryText(r: RunResult): string {
   }
   for (const [section, entries] of Object.entries(r.sections ?? {})) {
     // kinds beyond chambers, lines and valves: their summary fields as given, SI numbers
-    const all = Object.entries(entries).map(([n, s]) => [n, flatFields(s)] as [string, [string, string][]]);
+    const given = r.rows?.[section];
+    const all = Object.entries(entries).map(([n, s]) => [n, given?.[n] ?? flatFields(s)] as [string, [string, string][]]);
     const rows = all.slice(0, MAX_TABLE_ROWS);
     if (!rows.length) continue;
     out.push(table([section.replace(/s$/, ''), ...rows[0][1].map(([k]) => k)], rows.map(([n, f]) => [n, ...f.map(([, v]) => v)])));
     out.push(...more(rows.length, all.length, section, 'place in the netlist'));
-    out.push('(SI units)');
+    if (!r.rows?.[section]) out.push('(SI units)');
     out.push('');
   }
   if (r.events.length) {

@@ -1,9 +1,10 @@
 /**
- * The non-stiff integrator: Hairer & Wanner's extrapolated explicit midpoint rule (ODEX), from
- * the odex package, behind the plenum Integrator contract. odex works on number[] and calls
- * back solOut(nr, xOld, x, y, dense(c, x)); this wrapper converts to Float64Array, counts rhs
- * evaluations itself, and turns odex's outcomes (and non-finite values, which odex would
- * happily accept) into statuses.
+ * The non-stiff integrator: Hairer & Wanner's extrapolated explicit midpoint rule (ODEX), behind
+ * the plenum Integrator contract. The core loop is `odex-core.ts` (the odex 2.0.4 package's
+ * code on Float64Arrays, with a dense output that evaluates a whole sample in O(n) and no
+ * allocation a call; results identical to the package's). This wrapper counts rhs evaluations
+ * itself and turns odex's outcomes (and non-finite values, which odex would happily accept)
+ * into statuses.
  *
  * Non-finite rhs values abort the odex run; the wrapper restarts from the last accepted point
  * with the step size capped at a quarter of the failed one (and a quarter again on each repeat),
@@ -24,7 +25,7 @@
  * output for the GBS method"; section numbers from memory); odex 2.0.4, a port of Hairer's
  * odex.f.
  */
-import { Outcome, Solver, type OutputFunction } from '#odex';
+import { odexSolve, type OdexDense, type OdexOutput, type OdexRun } from './odex-core.js';
 import {
   zeroWork,
   type DenseOutput,
@@ -80,32 +81,23 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
   const span = Math.abs(tEnd - t0);
   const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
   const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
-  const atol = Array.from(problem.atol);
+  const atol = Float64Array.from(problem.atol);
 
   // f is never sampled at or past tEnd: a schedule switching there belongs to the next run.
   const tInside = tEnd - dir * Math.max(Math.abs(tEnd) * EPS, Number.MIN_VALUE);
-  const yIn = new Float64Array(n);
-  const dydt = new Float64Array(n);
-  const fOut = new Array<number>(n).fill(0);
-  // odex copies the returned array at once, so one buffer serves every call.
+  // the core hands views of its own buffers: the rhs reads y and writes dydt in place
   let stallCalls = 0;
-  const f = (x: number, yArr: number[]): number[] => {
+  const f = (x: number, yArr: Float64Array, dydt: Float64Array): void => {
     if (x === t && ++stallCalls > STALL_CALLS) throw new Stalled();
-    for (let i = 0; i < n; i++) yIn[i] = yArr[i];
-    problem.rhs(dir * (x - tInside) > 0 ? tInside : x, yIn, dydt);
+    problem.rhs(dir * (x - tInside) > 0 ? tInside : x, yArr, dydt);
     work.rhs++;
     for (let i = 0; i < n; i++) {
-      const v = dydt[i];
-      if (!Number.isFinite(v) || !Number.isFinite(yIn[i])) throw new NonFiniteRhs(x);
-      fOut[i] = v;
+      if (!Number.isFinite(dydt[i]) || !Number.isFinite(yArr[i])) throw new NonFiniteRhs(x);
     }
-    return fOut;
   };
 
-  let odexDense: ((c: number, x: number) => number) | undefined;
-  const dense: DenseOutput = (tq, out) => {
-    for (let i = 0; i < n; i++) out[i] = odexDense!(i, tq);
-  };
+  let odexDense: OdexDense | null = null;
+  const dense: DenseOutput = (tq, out) => odexDense!.into(tq, out);
 
   let ended: { status: IntegratorStatus; message: string } | null = null;
   let cap = Infinity;
@@ -114,7 +106,7 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
   let nNonFinite = 0;
   let stabilityCheck = true;
 
-  const solOut: OutputFunction = (nr, xOld, x, yArr, d) => {
+  const solOut: OdexOutput = (nr, xOld, x, yArr, d) => {
     if (nr === 1) return; // odex reports the starting point first (xOld == x): not a step
     for (let i = 0; i < n; i++) {
       if (!Number.isFinite(yArr[i])) {
@@ -149,19 +141,20 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
   for (;;) {
     const budget = maxSteps - work.steps - work.rejected;
     if (budget <= 0) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
-    const solver = new Solver(n);
-    solver.denseOutput = true;
-    solver.relativeTolerance = problem.rtol;
-    solver.absoluteTolerance = atol;
-    solver.maxSteps = budget;
-    solver.maxStepSize = Math.min(hMax, cap);
-    solver.stabilityCheckCount = stabilityCheck ? 1 : 0;
+    const maxStepSize = Math.min(hMax, cap);
     const hStart = cap < Infinity ? cap : hLast > 0 ? hLast : options.h0;
-    if (positive(hStart)) solver.initialStepSize = Math.min(hStart, solver.maxStepSize);
+    const settings = {
+      maxSteps: budget,
+      initialStepSize: positive(hStart) ? Math.min(hStart, maxStepSize) : 1e-4,
+      maxStepSize,
+      stabilityCheckCount: stabilityCheck ? 1 : 0,
+      rtol: problem.rtol,
+      atol,
+    };
     liftCap = false;
-    let result: ReturnType<Solver['solve']>;
+    let result: OdexRun;
     try {
-      result = solver.solve(f, t, Array.from(y), tEnd, solOut);
+      result = odexSolve(n, f, t, y, tEnd, solOut, settings);
     } catch (e) {
       if (e instanceof Stalled) {
         work.rejected++;
@@ -195,8 +188,8 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
       cap = Infinity;
       continue;
     }
-    if (result.outcome === Outcome.MaxStepsExceeded) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
-    if (result.outcome === Outcome.Converged) {
+    if (result.outcome === 'max-steps') return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
+    if (result.outcome === 'converged') {
       t = tEnd;
       return finish('completed', 'reached tEnd');
     }

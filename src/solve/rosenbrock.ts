@@ -12,6 +12,7 @@
  */
 import { FiniteJacobian } from './finite-jacobian.js';
 import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
+import { adaptiveSteps, allFinite, checkArguments as checkArgs, justInside, rmsNorm, type StepMachine } from './step-control.js';
 import {
   zeroWork,
   type DenseOutput,
@@ -60,54 +61,6 @@ const H: readonly number[][] = [
   [10.12623508344586, -7.487995877610167, -34.80091861555747, -7.992771707568823, 1.025137723295662],
   [-0.6762803392801253, 6.087714651680015, 16.43084320892478, 24.76722511418386, -6.594389125716872],
 ];
-
-// ---- Step-size control (rodas.f defaults) -------------------------------------------------
-const SAFE = 0.9;
-/** h_new/h is kept in [1/SHRINK_MAX, GROW_MAX] = [0.2, 6]. */
-const SHRINK_MAX = 5;
-const GROW_MAX = 6;
-const DEFAULT_MAX_STEPS = 100_000;
-/** Consecutive failed factorisations (each halving h) before giving up. */
-const MAX_SINGULAR = 5;
-/** Non-finite attempts (each dividing h by 4) without getting past the trouble spot. */
-const MAX_NON_FINITE = 10;
-const EPS = 2.220446049250313e-16;
-
-// ---- Small helpers ------------------------------------------------------------------------
-
-/** An option that is given and usable as a step size. */
-function positive(x: number | undefined): x is number {
-  return x !== undefined && x > 0 && Number.isFinite(x);
-}
-
-function allFinite(v: Float64Array): boolean {
-  for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) return false;
-  return true;
-}
-
-/** Weighted RMS of v with sc_i = atol_i + rtol·max(|a_i|, |b_i|). */
-function rmsNorm(v: Float64Array, a: Float64Array, b: Float64Array, p: OdeProblem): number {
-  let s = 0;
-  for (let i = 0; i < v.length; i++) {
-    const sc = p.atol[i] + p.rtol * Math.max(Math.abs(a[i]), Math.abs(b[i]));
-    s += (v[i] / sc) ** 2;
-  }
-  return Math.sqrt(s / Math.max(1, v.length));
-}
-
-/**
- * The double a round-off or two inside tEnd. Stages that would sample f exactly at tEnd use it,
- * so a schedule switching at tEnd (a breakpoint, where the driver restarts) is never seen
- * from the wrong side, whichever way its comparison is written.
- */
-function justInside(tEnd: number, dir: number): number {
-  return tEnd - dir * Math.max(Math.abs(tEnd) * EPS, Number.MIN_VALUE);
-}
-
-/** Smallest step the integrator will try near t: below it t + h cannot resolve the step. */
-function minStep(t: number, tEnd: number): number {
-  return 10 * EPS * Math.max(Math.abs(t), Math.abs(tEnd));
-}
 
 /**
  * One RODAS step machine: workspace, the linearisation at (t, y), a step attempt and the dense
@@ -235,131 +188,51 @@ class Rodas {
     this.tOld = t;
     this.hOld = h;
   }
-
-  /**
-   * Starting step from the scaled sizes of y and f: h = 0.01·‖y‖/‖f‖.
-   *
-   * References: Hairer, Nørsett & Wanner, Solving ODEs I, 2nd ed. 1993, §II.4 ("Starting step
-   * size", steps a–b).
-   */
-  initialStep(y: Float64Array, span: number): number {
-    const d0 = rmsNorm(y, y, y, this.p);
-    const d1 = rmsNorm(this.f0, y, y, this.p);
-    return d0 < 1e-5 || d1 < 1e-5 ? 1e-6 * span : 0.01 * (d0 / d1);
-  }
 }
 
 function checkArguments(problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number): void {
-  if (y0.length !== problem.n || problem.atol.length !== problem.n) {
-    throw new RangeError(`rosenbrock: y0 has ${y0.length} and atol ${problem.atol.length} entries, problem.n is ${problem.n}`);
+  checkArgs('rosenbrock', problem, t0, y0, tEnd);
+}
+
+/** RODAS for the shared adaptive loop: a fresh f and jacobian at the start of every step. */
+class RodasMachine extends Rodas implements StepMachine {
+  private haveRhs = false;
+  private needJacobian = true;
+
+  start(t: number, y: Float64Array, work: WorkCounts): boolean {
+    this.haveRhs = true;
+    return this.evalRhs(t, y, work);
   }
-  if (!Number.isFinite(t0) || !Number.isFinite(tEnd)) throw new RangeError('rosenbrock: t0 and tEnd must be finite');
+
+  prepare(t: number, y: Float64Array, hs: number, tInside: number, work: WorkCounts): boolean {
+    if (!this.haveRhs && !this.evalRhs(t, y, work)) return false;
+    this.haveRhs = true;
+    if (this.needJacobian) {
+      if (!this.linearise(t, y, hs, tInside, work)) return false;
+      this.needJacobian = false;
+    }
+    return true;
+  }
+
+  retry(): boolean {
+    return false;
+  }
+
+  accept(t: number, hs: number, y: Float64Array): void {
+    this.keepDense(t, hs, y);
+    this.haveRhs = false;
+    this.needJacobian = true;
+  }
+
+  accepted(): void {}
 }
 
 /**
- * Adaptive RODAS. Options: h0 (first step; default from ‖y‖/‖f‖), hMax, maxSteps (accepted +
- * rejected attempts, default 100 000). `yNew` given to onStep is the integrator's own state:
- * read it, do not modify it. hLast is the last accepted step, or for a final step clipped to
- * tEnd the unclipped size the controller had proposed (a better warm start for a restart).
- *
- * References: Hairer & Wanner, Solving ODEs II, 2nd ed. 1996, §IV.7 (error estimate and step
- * size selection incl. the predictive controller of Gustafsson) and rodas.f.
+ * Adaptive RODAS (the loop: step-control.ts, adaptiveSteps). Options: h0 (first step; default
+ * from ‖y‖/‖f‖), hMax, maxSteps (accepted + rejected attempts, default 100 000).
  */
-export const rosenbrock: Integrator = (problem, t0, y0, tEnd, onStep, options: IntegrateOptions = {}) => {
-  checkArguments(problem, t0, y0, tEnd);
-  const work = zeroWork();
-  const y = Float64Array.from(y0);
-  let t = t0;
-  let hLast = 0;
-  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
-    ({ status, t, y: Float64Array.from(y), work, hLast, message });
-  if (t0 === tEnd) return finish('completed', 'empty interval');
-
-  const dir = Math.sign(tEnd - t0);
-  const span = Math.abs(tEnd - t0);
-  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
-  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
-  const tInside = justInside(tEnd, dir);
-  const st = new Rodas(problem, options.linearAlgebra);
-
-  if (!st.evalRhs(t, y, work)) return finish('non-finite', `rhs is not finite at the initial point t = ${t}`);
-  let h = Math.min(positive(options.h0) ? options.h0 : st.initialStep(y, span), hMax);
-  let haveRhs = true;
-  let needJacobian = true;
-  let reject = false;
-  let hAcc = 0;
-  let errAcc = 1;
-  let nSingular = 0;
-  let nNonFinite = 0;
-  /** Farthest end of a non-finite attempt; the counter resets once the solution gets past it. */
-  let tTrouble = t;
-
-  for (;;) {
-    if (work.steps + work.rejected >= maxSteps) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
-    if (!(h > minStep(t, tEnd))) return finish('step-too-small', `step size ${h} below round-off limit at t = ${t}`);
-    const hProposed = h;
-    const last = Math.abs(tEnd - t) <= 1.0001 * h;
-    const tNew = last ? tEnd : t + dir * h;
-    const hs = last ? tEnd - t : dir * h;
-    if (last) h = Math.abs(hs);
-
-    if (!haveRhs && !st.evalRhs(t, y, work)) return finish('non-finite', `rhs is not finite at t = ${t}`);
-    haveRhs = true;
-    if (needJacobian) {
-      if (!st.linearise(t, y, hs, tInside, work)) return finish('non-finite', `jacobian or ∂f/∂t not finite at t = ${t}`);
-      needJacobian = false;
-    }
-
-    const outcome = st.attempt(t, y, hs, last ? tInside : tNew, work);
-    if (outcome === 'singular') {
-      work.rejected++;
-      if (++nSingular >= MAX_SINGULAR) return finish('singular', `iteration matrix singular ${nSingular} times at t = ${t}`);
-      h *= 0.5;
-      reject = true;
-      continue;
-    }
-    if (outcome === 'non-finite') {
-      work.rejected++;
-      if (dir * (tNew - tTrouble) > 0) tTrouble = tNew;
-      if (++nNonFinite > MAX_NON_FINITE) return finish('non-finite', `non-finite stage values after ${MAX_NON_FINITE} step reductions at t = ${t}`);
-      h *= 0.25;
-      reject = true;
-      continue;
-    }
-
-    const err = st.errorNorm(y);
-    let fac = Math.max(1 / GROW_MAX, Math.min(SHRINK_MAX, err ** 0.25 / SAFE));
-    if (err > 1) {
-      work.rejected++;
-      reject = true;
-      h /= fac;
-      continue;
-    }
-    // Accepted. Predictive controller of Gustafsson, as in rodas.f.
-    if (work.steps > 0) {
-      const facGus = Math.max(1 / GROW_MAX, Math.min(SHRINK_MAX, ((hAcc / h) * (err * err / errAcc) ** 0.25) / SAFE));
-      fac = Math.max(fac, facGus);
-    }
-    hAcc = h;
-    errAcc = Math.max(1e-2, err);
-    work.steps++;
-    st.keepDense(t, hs, y);
-    y.set(st.yNew);
-    const tOld = t;
-    t = tNew;
-    hLast = last ? Math.max(h, hProposed) : h;
-    if (dir * (t - tTrouble) > 0) nNonFinite = 0;
-    nSingular = 0;
-    haveRhs = false;
-    needJacobian = true;
-    if (onStep(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
-    if (last) return finish('completed', 'reached tEnd');
-    let hNew = Math.min(h / fac, hMax);
-    if (reject) hNew = Math.min(hNew, h);
-    reject = false;
-    h = hNew;
-  }
-};
+export const rosenbrock: Integrator = (problem, t0, y0, tEnd, onStep, options: IntegrateOptions = {}) =>
+  adaptiveSteps('rosenbrock', new RodasMachine(problem, options.linearAlgebra), 4, problem, t0, y0, tEnd, onStep, options);
 
 /**
  * RODAS with `steps` equal steps and no error control, for convergence-order studies and

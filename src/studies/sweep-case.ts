@@ -1,13 +1,15 @@
 /**
- * One case of a study: apply its overrides to the netlist, read and build it like a user's
- * netlist, simulate, and boil the run down to its outcome. Runs in a worker thread or in the
+ * One case of a study: apply its overrides to the parsed netlist, check and build it like a
+ * user's netlist, simulate, and boil the run down to its outcome. Runs in a worker thread or in the
  * main thread; the result depends only on the netlist text and the case's parameters.
  */
 import { formatDiagnostic, type Diagnostic } from '../diag/diagnostic.js';
 import { buildModel } from '../model/build.js';
 import type { Model } from '../model/types.js';
 import { mapOverrideDiagnostics, overrideValue, readWithOverrides, splitPath, type Override } from '../netlist/override.js';
-import { readNetlist } from '../netlist/read.js';
+import { readNetlistTree } from '../netlist/read.js';
+import { parseYamlTree } from '../netlist/yaml-tree.js';
+import type { YamlTree } from '../netlist/yaml-types.js';
 import type { RunResult } from '../transient/results.js';
 import type { CaseSpec, ParamValue } from './sweep-spec.js';
 import { simulate } from '../transient/transient.js';
@@ -114,12 +116,15 @@ function invalid(spec: CaseSpec, diagnostics: readonly Diagnostic[]): CaseResult
 /** The run of one case. Reuse one CaseRunner for many cases of the same netlist. */
 export class CaseRunner {
   private readonly baseWarnings: Set<string>;
+  /** The netlist parsed once; each case sets its overrides in a copy-on-write edit of it. */
+  private readonly tree: YamlTree;
 
   constructor(
     readonly source: string,
     readonly file: string,
   ) {
-    const base = readNetlist(source, file);
+    this.tree = parseYamlTree(source, file);
+    const base = readNetlistTree(this.tree, source, file);
     const warnings = base.ok ? [...base.warnings] : [];
     if (base.ok) {
       const m = buildModel(base.value);
@@ -131,7 +136,7 @@ export class CaseRunner {
   /** Reads and builds the netlist with the case's overrides; diagnostics map back to the overrides. */
   model(params: readonly ParamValue[]): { ok: true; model: Model; warnings: Diagnostic[] } | { ok: false; diagnostics: Diagnostic[] } {
     const overrides = overridesOf(params);
-    const doc = readWithOverrides(this.source, this.file, overrides);
+    const doc = readWithOverrides(this.source, this.file, overrides, this.tree);
     if (!doc.ok) return { ok: false, diagnostics: doc.diagnostics };
     const built = buildModel(doc.value);
     if (!built.ok) return { ok: false, diagnostics: mapOverrideDiagnostics(built.diagnostics, this.source, this.file, overrides) };

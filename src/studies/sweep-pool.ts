@@ -10,8 +10,9 @@ import { existsSync } from 'node:fs';
 import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
+import type { Diagnostic } from '../diag/diagnostic.js';
 import { CaseRunner, type CaseResult } from './sweep-case.js';
-import type { CaseSpec } from './sweep-spec.js';
+import type { CaseSpec, ParamValue } from './sweep-spec.js';
 
 /** Where the bundled worker may be, relative to the module holding this code. */
 const WORKER_CANDIDATES = [
@@ -53,57 +54,119 @@ export interface PoolOptions {
   worker?: URL;
 }
 
-function runInThread(source: string, file: string, specs: readonly CaseSpec[], opts: PoolOptions): CaseResult[] {
-  const runner = new CaseRunner(source, file);
-  return specs.map((spec, i) => {
-    let r: CaseResult;
-    try {
-      r = runner.run(spec);
-    } catch (e) {
-      r = crashedCase(spec, e);
+/** Work for a worker: check one preflight parameter set (read and build only), or run a case. */
+export type PoolTask = { preflight: ParamValue[] } | { spec: CaseSpec };
+export type PoolAnswer = { diagnostics: Diagnostic[] } | { result: CaseResult };
+
+/** What a CaseRunner answers to a task (in a worker or in this thread). */
+export function answer(runner: CaseRunner, task: PoolTask): PoolAnswer {
+  if ('preflight' in task) {
+    const m = runner.model(task.preflight);
+    return { diagnostics: m.ok ? [] : m.diagnostics.filter((d) => d.severity === 'error') };
+  }
+  try {
+    return { result: runner.run(task.spec) };
+  } catch (e) {
+    return { result: crashedCase(task.spec, e) };
+  }
+}
+
+/** Tasks a message carries: a few per worker and round, so that the last ones still spread. */
+function batchSize(remaining: number, jobs: number): number {
+  return Math.max(1, Math.min(16, Math.floor(remaining / (4 * jobs))));
+}
+
+/**
+ * The threads of one study, kept for all its tasks (preflight, then cases): this thread and
+ * jobs − 1 workers each read the netlist once (CaseRunner) and take batches of tasks from one
+ * queue; this thread takes one task at a time and lets the workers' answers in between, so
+ * that it never holds them up. One job runs everything in this thread, with no worker.
+ */
+export class CasePool {
+  private readonly workers: Worker[] = [];
+  private runner: CaseRunner | undefined;
+  readonly jobs: number;
+
+  constructor(private readonly source: string, private readonly file: string, jobs: number, worker?: URL, maxTasks = Infinity) {
+    const script = worker ?? workerScript();
+    this.jobs = script ? Math.max(1, Math.min(Math.floor(jobs), maxTasks)) : 1;
+    for (let j = 1; j < this.jobs; j++) this.workers.push(new Worker(script!, { workerData: { source, file } }));
+  }
+
+  private answerHere(task: PoolTask): PoolAnswer {
+    this.runner ??= new CaseRunner(this.source, this.file);
+    return answer(this.runner, task);
+  }
+
+  /** Answers to the tasks, in task order. */
+  async run(tasks: readonly PoolTask[], progress?: (done: number, total: number) => void): Promise<PoolAnswer[]> {
+    if (this.jobs <= 1) {
+      return tasks.map((t, i) => {
+        const a = this.answerHere(t);
+        progress?.(i + 1, tasks.length);
+        return a;
+      });
     }
-    opts.progress?.(i + 1, specs.length);
-    return r;
-  });
+    const answers = new Array<PoolAnswer>(tasks.length);
+    if (!tasks.length) return answers;
+    let next = 0;
+    let done = 0;
+    const listeners: (() => void)[] = [];
+    try {
+      await new Promise<void>((resolve, reject) => {
+        const feed = (w: Worker): void => {
+          if (next >= tasks.length) return;
+          const from = next;
+          next = Math.min(tasks.length, next + batchSize(tasks.length - next, this.jobs));
+          w.postMessage({ from, tasks: tasks.slice(from, next) });
+        };
+        for (const w of this.workers) {
+          const onMessage = (msg: { from: number; answers: PoolAnswer[] }): void => {
+            msg.answers.forEach((a, k) => { answers[msg.from + k] = a; });
+            done += msg.answers.length;
+            progress?.(done, tasks.length);
+            if (done === tasks.length) resolve();
+            else feed(w);
+          };
+          const onExit = (code: number): void => {
+            reject(new Error(`a sweep worker stopped (exit code ${code}) with ${tasks.length - done} tasks left`));
+          };
+          w.on('message', onMessage);
+          w.on('error', reject);
+          w.on('exit', onExit);
+          listeners.push(() => { w.off('message', onMessage); w.off('error', reject); w.off('exit', onExit); });
+          feed(w);
+        }
+        // this thread's share, one task at a time, yielding to the workers' messages between tasks
+        const here = (): void => {
+          if (next >= tasks.length) return;
+          const i = next++;
+          answers[i] = this.answerHere(tasks[i]);
+          done++;
+          progress?.(done, tasks.length);
+          if (done === tasks.length) resolve();
+          else setImmediate(here);
+        };
+        setImmediate(here);
+      });
+    } finally {
+      for (const off of listeners) off();
+    }
+    return answers;
+  }
+
+  async close(): Promise<void> {
+    await Promise.all(this.workers.map((w) => w.terminate()));
+  }
 }
 
 /** Runs the cases; results[i] belongs to specs[i]. */
 export async function runCases(source: string, file: string, specs: readonly CaseSpec[], opts: PoolOptions): Promise<CaseResult[]> {
-  const jobs = Math.min(Math.max(1, Math.floor(opts.jobs)), specs.length);
-  const script = opts.worker ?? workerScript();
-  if (jobs <= 1 || !script) return runInThread(source, file, specs, opts);
-
-  const results = new Array<CaseResult>(specs.length);
-  const workers: Worker[] = [];
-  let next = 0;
-  let done = 0;
+  const pool = new CasePool(source, file, opts.jobs, opts.worker, specs.length);
   try {
-    await new Promise<void>((resolve, reject) => {
-      const feed = (w: Worker, slot: { i: number }): void => {
-        if (next >= specs.length) return;
-        slot.i = next++;
-        w.postMessage({ spec: specs[slot.i] });
-      };
-      for (let j = 0; j < jobs; j++) {
-        const w = new Worker(script, { workerData: { source, file } });
-        workers.push(w);
-        const slot = { i: -1 };
-        w.on('message', (msg: { result: CaseResult }) => {
-          results[slot.i] = msg.result;
-          done++;
-          opts.progress?.(done, specs.length);
-          if (done === specs.length) resolve();
-          else feed(w, slot);
-        });
-        w.on('error', reject);
-        w.on('exit', (code) => {
-          if (done < specs.length) reject(new Error(`a sweep worker stopped (exit code ${code}) with ${specs.length - done} cases left`));
-        });
-        feed(w, slot);
-      }
-    });
+    const answers = await pool.run(specs.map((spec) => ({ spec })), opts.progress);
+    return answers.map((a) => (a as { result: CaseResult }).result);
   } finally {
-    await Promise.all(workers.map((w) => w.terminate()));
+    await pool.close();
   }
-  return results;
 }

@@ -1,13 +1,13 @@
 /**
  * Worker-thread entry of a study (bundled to dist/studies/sweep-worker.js): holds one
- * CaseRunner for the study's netlist and runs the cases the pool sends, one at a time.
+ * CaseRunner for the study's netlist (read once) and answers the batches of tasks the pool
+ * sends: preflight parameter sets (read and build) and cases (run).
  *
- * Messages in:  { spec: CaseSpec }.  Messages out: { result: CaseResult }.
+ * Messages in:  { from, tasks: PoolTask[] }.  Messages out: { from, answers: PoolAnswer[] }.
  */
 import { parentPort, workerData } from 'node:worker_threads';
-import { crashedCase } from './sweep-pool.js';
+import { answer, type PoolTask } from './sweep-pool.js';
 import { CaseRunner } from './sweep-case.js';
-import type { CaseSpec } from './sweep-spec.js';
 
 interface WorkerInit { source: string; file: string }
 
@@ -16,12 +16,6 @@ const runner = new CaseRunner(init.source, init.file);
 const port = parentPort;
 if (!port) throw new Error('sweep-worker.ts must run in a worker thread');
 
-port.on('message', (msg: { spec: CaseSpec }) => {
-  let result;
-  try {
-    result = runner.run(msg.spec);
-  } catch (e) {
-    result = crashedCase(msg.spec, e);
-  }
-  port.postMessage({ result });
+port.on('message', (msg: { from: number; tasks: PoolTask[] }) => {
+  port.postMessage({ from: msg.from, answers: msg.tasks.map((t) => answer(runner, t)) });
 });

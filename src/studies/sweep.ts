@@ -16,7 +16,7 @@ import { buildModel } from '../model/build.js';
 import { checkPath } from '../netlist/override.js';
 import { readNetlist } from '../netlist/read.js';
 import { CaseRunner, type CaseResult } from './sweep-case.js';
-import { defaultJobs, runCases } from './sweep-pool.js';
+import { CasePool, defaultJobs } from './sweep-pool.js';
 import { caseSpec, parseVary, planStudy, preflightSpecs, type CaseSpec, type StudyPlan, type VaryKind, type VarySpec } from './sweep-spec.js';
 
 export interface Study {
@@ -96,12 +96,38 @@ export function shardIndices(cases: number, shard?: Shard): number[] {
   return out;
 }
 
+/** The first error of each kind among the preflight answers, in preflight order. */
+function preflightErrors(answers: readonly Diagnostic[][]): Diagnostic[] {
+  const seen = new Set<string>();
+  const out: Diagnostic[] = [];
+  for (const list of answers) {
+    for (const d of list) {
+      const key = formatDiagnostic(d);
+      if (d.severity === 'error' && !seen.has(key)) { seen.add(key); out.push(d); }
+    }
+  }
+  return out;
+}
+
 /**
  * Checks everything before a case runs: the netlist, every `--vary` (syntax, path, units) and,
  * by reading and building the netlist with them, every grid value and each random parameter's
- * centre and range ends. Diagnostics of overridden values name the override.
+ * centre and range ends. Diagnostics of overridden values name the override. In this thread;
+ * runSweep does the same with the reading and building spread over its workers.
  */
 export function prepareSweep(opts: SweepOptions): Result<PreparedSweep> {
+  const planned = planSweep(opts);
+  if (!planned.ok) return planned;
+  const runner = new CaseRunner(opts.source, opts.file);
+  const errors = preflightErrors(preflightSpecs(planned.value.plan).map((params) => {
+    const m = runner.model(params);
+    return m.ok ? [] : m.diagnostics;
+  }));
+  return errors.length ? { ok: false, diagnostics: errors } : planned;
+}
+
+/** prepareSweep without the preflight of the varied values. */
+function planSweep(opts: SweepOptions): Result<PreparedSweep> {
   const doc = readNetlist(opts.source, opts.file);
   if (!doc.ok) return doc;
   const model = buildModel(doc.value);
@@ -130,19 +156,6 @@ export function prepareSweep(opts: SweepOptions): Result<PreparedSweep> {
     return { ok: false, diagnostics: [usage('shard', `shard ${opts.shard.index}/${opts.shard.count} does not exist`, 'write --shard K/N with 1 ≤ K ≤ N, e.g. `--shard 2/4`')] };
   }
 
-  // Every grid value and the random parameters' centres and ends, read and built like a netlist.
-  const runner = new CaseRunner(opts.source, opts.file);
-  const seen = new Set<string>();
-  for (const params of preflightSpecs(plan)) {
-    const m = runner.model(params);
-    if (m.ok) continue;
-    for (const d of m.diagnostics) {
-      const key = formatDiagnostic(d);
-      if (d.severity === 'error' && !seen.has(key)) { seen.add(key); diagnostics.push(d); }
-    }
-  }
-  if (diagnostics.length) return { ok: false, diagnostics };
-
   const random = plan.random.length > 0;
   const netlistSha = sha256(opts.source);
   const study: Study = {
@@ -162,11 +175,22 @@ export function prepareSweep(opts: SweepOptions): Result<PreparedSweep> {
 
 /** Runs a study (or one shard of it). Diagnostics when the netlist or a `--vary` is invalid. */
 export async function runSweep(opts: SweepOptions): Promise<Result<SweepResult>> {
-  const prepared = prepareSweep(opts);
+  const prepared = planSweep(opts);
   if (!prepared.ok) return prepared;
   const { plan, study, indices } = prepared.value;
   const specs: CaseSpec[] = indices.map((k) => caseSpec(plan, k));
-  const cases = await runCases(opts.source, opts.file, specs, { jobs: opts.jobs ?? defaultJobs(), progress: opts.progress, worker: opts.worker });
-  const value: SweepResult = opts.shard ? { study, shard: opts.shard, cases } : { study, cases };
-  return { ok: true, value, warnings: prepared.warnings };
+  const preflight = preflightSpecs(plan);
+  // one pool for the preflight and the cases: each worker reads the netlist once
+  const pool = new CasePool(opts.source, opts.file, opts.jobs ?? defaultJobs(), opts.worker, Math.max(specs.length, preflight.length));
+  try {
+    const checked = await pool.run(preflight.map((params) => ({ preflight: params })));
+    const errors = preflightErrors(checked.map((a) => ('diagnostics' in a ? a.diagnostics : [])));
+    if (errors.length) return { ok: false, diagnostics: errors };
+    const answers = await pool.run(specs.map((spec) => ({ spec })), opts.progress);
+    const cases = answers.map((a) => (a as { result: CaseResult }).result);
+    const value: SweepResult = opts.shard ? { study, shard: opts.shard, cases } : { study, cases };
+    return { ok: true, value, warnings: prepared.warnings };
+  } finally {
+    await pool.close();
+  }
 }

@@ -28,7 +28,7 @@
  * Numerical Recipes, 3rd ed. (2007), §10.2; vertex of the interpolating parabola, ibid. §10.3,
  * eq. 10.3.1.
  */
-import type { ExpectSpec } from '../netlist/types.js';
+import type { ExpectSpec, ProbeQuantity } from '../netlist/types.js';
 import type { DenseOutput } from '../solve/types.js';
 import type { DisplayKind } from '../units/display.js';
 import type { ExpectationResult } from './results.js';
@@ -87,8 +87,23 @@ function unitFor(kind: DisplayKind, magnitude: number): Shown {
     case 'flow': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g/s' } : { scale: 1, offset: 0, unit: ' kg/s' };
     case 'time': return magnitude < 1 && magnitude > 0 ? { scale: 1e3, offset: 0, unit: ' ms' } : { scale: 1, offset: 0, unit: ' s' };
     case 'opening': return { scale: 100, offset: 0, unit: ' %' };
+    case 'position': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' mm' } : { scale: 1, offset: 0, unit: ' m' };
+    case 'velocity': return { scale: 1, offset: 0, unit: ' m/s' };
+    case 'energy': return { scale: 1, offset: 0, unit: ' J' };
     case 'stretch':
     case 'reynolds': return { scale: 1, offset: 0, unit: '' };
+  }
+}
+
+/** How a probe quantity is shown (a controller's error in SI: its dimension is that of what it measures). */
+function displayKindOf(q: ProbeQuantity): DisplayKind {
+  switch (q) {
+    case 'output': return 'opening';
+    case 'error': return 'reynolds';
+    case 'stroke-time': return 'time';
+    case 'impact-velocity': return 'velocity';
+    case 'dissipated': return 'energy';
+    default: return q;
   }
 }
 
@@ -402,8 +417,7 @@ export class ExpectationMonitor {
     }
     const stat = 'over' in s.when ? `${s.when.stat} of ` : '';
     const gauge = q === 'gauge';
-    // a controller's error is shown in SI (its dimension is that of what it measures)
-    const kind: DisplayKind = q === 'output' ? 'opening' : q === 'error' ? 'reynolds' : q;
+    const kind: DisplayKind = displayKindOf(q);
     // pressures are compared absolute and shown (and reported) in the probe's reference
     const ref = (x: number): number => (gauge ? x - this.pa : x);
     const actual = ref(v);
@@ -446,7 +460,7 @@ export class ExpectationMonitor {
       : Math.abs(v - cmp.value) <= ('abs' in cmp.within ? cmp.within.abs : cmp.within.rel * Math.abs(cmp.value));
     if (!Number.isFinite(v)) passed = false;
     const want = cmp.kind === 'near' ? `${pct(cmp.value)} ± ${'abs' in cmp.within ? pct(cmp.within.abs) : pct(cmp.within.rel * cmp.value)}` : `${cmp.kind} ${pct(cmp.value)}`;
-    const kind: DisplayKind = s.probe.quantity === 'output' ? 'opening' : s.probe.quantity === 'error' ? 'reynolds' : s.probe.quantity;
+    const kind: DisplayKind = displayKindOf(s.probe.quantity);
     const shown = (x: number): string => fmtDelta(x, kind);
     const w = s.when as { over: [number, number] };
     return {
@@ -470,7 +484,7 @@ export class ExpectationMonitor {
     const after = `for t ≥ ${time(s.within)}`;
     if (s.probe) {
       const q = s.probe.quantity;
-      const kind: DisplayKind = q === 'output' ? 'opening' : q === 'error' ? 'reynolds' : q;
+      const kind: DisplayKind = displayKindOf(q);
       return {
         passed, actual: worst.rel,
         message: `${s.probe.text} ${passed ? 'stays' : 'does not stay'} within ${pct(s.band)} of its final value ${fmt(parts[0] ? end[parts[0].c] : Number.NaN, kind)} ${after} (largest deviation ${pct(worst.rel)}${worst.key ? ` at t = ${time(worst.t)}` : ''})`,

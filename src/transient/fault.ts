@@ -79,7 +79,8 @@ const AT_END = 1e-3;
 function rangeFault(sys: NetworkSystem, model: Model, t: number, y: Float64Array): Omit<RunFault, 't' | 'cause'> | undefined {
   const f = new Float64Array(sys.n);
   sys.rhs(t, y, f); // also fills p, V and the flows at (t, y)
-  for (let i = 0; i < sys.nc; i++) {
+  // the first gas nodes with states are the chambers, in order (cylinder sides follow)
+  for (let i = 0; i < model.chambers.length; i++) {
     const c = model.chambers[i];
     const m = y[sys.mIdx[i]];
     const mdot = f[sys.mIdx[i]];
@@ -117,14 +118,14 @@ interface Fastest { element: string; kind: 'chamber' | 'line' | 'valve'; chamber
 
 /** The chamber with the fastest own dynamics, the branch responsible, and its time constant (s). */
 function fastest(sys: NetworkSystem, model: Model, t: number, y: Float64Array): Fastest | undefined {
-  if (sys.nc === 0) return undefined;
+  if (model.chambers.length === 0) return undefined;
   const f0 = new Float64Array(sys.n);
   const f1 = new Float64Array(sys.n);
   sys.rhs(t, y, f0);
   const q0 = sys.flows.map((q) => q.mdot);
   const yp = Float64Array.from(y);
   let best = { rate: 0, chamber: -1, branch: -1 };
-  for (let i = 0; i < sys.nc; i++) {
+  for (let i = 0; i < model.chambers.length; i++) {
     const k = sys.mIdx[i];
     const dm = 1e-7 * Math.max(Math.abs(y[k]), model.chambers[i].m0 * 1e-6, 1e-18);
     yp[k] = y[k] + dm;
@@ -168,6 +169,9 @@ export function diagnoseFault(sys: NetworkSystem, model: Model, cause: Cause, t:
   const found = chatter(sys) ?? reservoirFault(model, t)
     ?? (numerical ? rangeFault(sys, model, t, y) : undefined);
   if (found) return at(found);
+  if (numerical && trialFault && model.cylinders.some((c) => c.name === trialFault)) {
+    return at({ element: trialFault, kind: null, likely: `cylinder \`${trialFault}\` had a side emptied to vacuum during a step; a likely cause is a side vented or pumped out much faster than the piston can follow` });
+  }
   if (numerical && trialFault) {
     return at({ element: trialFault, kind: 'chamber', likely: `chamber \`${trialFault}\` left the range of its wall law during a step; a likely cause is a chamber emptied to vacuum or filled to a Gent lock` });
   }

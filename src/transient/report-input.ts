@@ -70,12 +70,23 @@ export interface TopologyValve {
 
 export interface TopologyFeed { name: string; into: string; describe: string }
 
+export interface TopologyCylinder {
+  name: string;
+  /** m */
+  stroke: number;
+  doubleActing: boolean;
+  /** One line for people, e.g. "32/12 mm × 80 mm, 2.5 kg". */
+  describe: string;
+}
+
 export interface ReportTopology {
   chambers: TopologyChamber[];
   reservoirs: TopologyReservoir[];
   lines: TopologyLine[];
   valves: TopologyValve[];
   feeds: TopologyFeed[];
+  /** Absent in results read back from before cylinders existed. */
+  cylinders?: TopologyCylinder[];
 }
 
 /**
@@ -250,6 +261,12 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
     name: f.name, into: f.into,
     describe: f.rate.kind === 'mass' ? display(f.rate.value, 'flow') : `${significant(f.rate.value * 60000, 3)} L/min ANR`,
   }));
+  const cylinders: TopologyCylinder[] = model.cylinders.map((c) => ({
+    name: c.name,
+    stroke: c.geometry.stroke,
+    doubleActing: c.doubleActing,
+    describe: `${c.spec.rod !== undefined ? `${significant(c.spec.bore * 1000, 3)}/${significant(c.spec.rod * 1000, 3)} mm` : `${mm(c.spec.bore)} single-acting`} × ${mm(c.geometry.stroke)}, ${display(c.load.mass, 'mass')}`,
+  }));
   const walls: WallCurve[] = [];
   for (const c of model.chambers) {
     const traj = traceChannel(result.trace, `${c.name}.${c.wall.sphere ? 'stretch' : 'volume'}`);
@@ -261,7 +278,7 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
     source: doc.source,
     heat: model.heat,
     gas: doc.gas.name,
-    topology: { chambers, reservoirs, lines, valves, feeds },
+    topology: { chambers, reservoirs, lines, valves, feeds, cylinders },
     walls,
     equilibria: options.equilibria,
     equilibriaNote: options.equilibriaNote,

@@ -15,6 +15,13 @@ export interface ValveSummary { peak_flow: number; choked: boolean }
  */
 export type ElementSections = Record<string, Record<string, Record<string, unknown>>>;
 
+export type { CylinderSummary } from '../elements/cylinder-summary.js';
+
+/** A cylinder's summary in a run result (`sections.cylinders`), or undefined. */
+export function cylinderSummary(r: Pick<RunResult, 'sections'>, name: string): import('../elements/cylinder-summary.js').CylinderSummary | undefined {
+  return r.sections?.cylinders?.[name] as import('../elements/cylinder-summary.js').CylinderSummary | undefined;
+}
+
 export interface ExpectationResult {
   name: string;
   passed: boolean;
@@ -90,6 +97,8 @@ export interface RunResult {
   valves: Record<string, ValveSummary>;
   /** Sections of element kinds beyond chambers, lines and valves (written after them in JSON). */
   sections?: ElementSections;
+  /** Rows of the printed table for those sections, where the elements give them (not in JSON). */
+  rows?: Record<string, Record<string, [string, string][]>>;
   mass: { initial: number; final: number; through_boundaries: number; drift: number };
   events: { t: number; what: string }[];
   warnings: string[];

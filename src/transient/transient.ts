@@ -103,9 +103,13 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const rowEnd = new Float64Array(nch);
   sys.observe(r.t, yEnd, rowEnd);
   const sections: ElementSections = {};
-  for (const s of summaries) (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
+  const rows: NonNullable<RunResult['rows']> = {};
+  for (const s of summaries) {
+    const res = (sections[s.section] ??= {})[s.name] = s.result(rowEnd);
+    if (s.row) (rows[s.section] ??= {})[s.name] = s.row(res);
+  }
   const { chambers = {}, lines = {}, valves = {}, ...more } = sections;
-  const initial = model.chambers.reduce((s, c) => s + c.m0, 0);
+  const initial = sys.totalMass(y0);
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
   const drift = (final - initial - through) / initial;
@@ -137,6 +141,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     lines: lines as unknown as Record<string, LineSummary>,
     valves: valves as unknown as Record<string, ValveSummary>,
     ...(Object.keys(more).length ? { sections: more } : {}),
+    ...(Object.keys(rows).length ? { rows } : {}),
     mass: { initial, final, through_boundaries: through, drift },
     events: sys.log.map((e) => ({ t: e.t, what: e.what })),
     warnings,

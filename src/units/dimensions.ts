@@ -21,6 +21,12 @@ export type Dimension =
   | 'heat-conductance'
   | 'viscosity'
   | 'molar-mass'
+  | 'force'
+  | 'spring-rate'
+  | 'damping'
+  | 'velocity'
+  | 'angle'
+  | 'energy'
   | 'dimensionless';
 
 export interface DimensionInfo {
@@ -50,6 +56,12 @@ export const DIMENSIONS: Record<Dimension, DimensionInfo> = {
   'heat-conductance': { si: 'W/K', label: 'W/K', noun: 'a heat conductance (h·A)', example: '2 W/K' },
   viscosity: { si: 'Pa*s', label: 'Pa·s', noun: 'a dynamic viscosity', example: '1.8e-5 Pa*s' },
   'molar-mass': { si: 'kg/mol', label: 'kg/mol', noun: 'a molar mass', example: '28.97 g/mol' },
+  force: { si: 'N', label: 'N', noun: 'a force', example: '40 N' },
+  'spring-rate': { si: 'N/m', label: 'N/m', noun: 'a spring rate (force per length)', example: '500 N/m' },
+  damping: { si: 'N*s/m', label: 'N·s/m', noun: 'a viscous coefficient (force per velocity)', example: '50 N*s/m' },
+  velocity: { si: 'm/s', label: 'm/s', noun: 'a velocity', example: '0.5 m/s' },
+  angle: { si: 'rad', label: 'rad', noun: 'an angle', example: '90 deg' },
+  energy: { si: 'J', label: 'J', noun: 'an energy', example: '2 J' },
   dimensionless: { si: '', label: '-', noun: 'a plain number', example: '0.5' },
 };
 
@@ -77,6 +89,7 @@ export function nameDimension(vector: readonly number[]): Dimension | undefined 
   const order: Dimension[] = [
     'dimensionless', 'length', 'area', 'volume', 'pressure', 'time', 'temperature', 'mass',
     'mass-flow', 'volume-flow', 'compliance', 'conductance', 'heat-conductance', 'viscosity', 'molar-mass',
+    'force', 'spring-rate', 'damping', 'velocity', 'angle', 'energy',
   ];
   return order.find((d) => dimensionVector(d).every((e, i) => Math.abs(e - (vector[i] ?? 0)) < 1e-12));
 }

@@ -52,6 +52,11 @@ export const PLAUSIBLE: Partial<Record<Dimension, { lo: number; hi: number; show
   'heat-conductance': { lo: 1e-12, hi: 1e9, shown: '1e-12 W/K to 1e9 W/K' },
   viscosity: { lo: 1e-9, hi: 1e3, shown: '1e-9 Pa·s to 1e3 Pa·s' },
   'molar-mass': { lo: 1e-4, hi: 10, shown: '0.1 g/mol to 10 kg/mol' },
+  force: { lo: 1e-9, hi: 1e9, shown: '1 nN to 1 GN' },
+  'spring-rate': { lo: 1e-6, hi: 1e12, shown: '1e-6 N/m to 1e12 N/m' },
+  damping: { lo: 1e-9, hi: 1e9, shown: '1e-9 N·s/m to 1e9 N·s/m' },
+  velocity: { lo: 1e-12, hi: 1e4, shown: '1e-12 m/s to 1e4 m/s' },
+  energy: { lo: 1e-12, hi: 1e12, shown: '1e-12 J to 1e12 J' },
 };
 
 /** `NaN kPa`, `Infinity m`, `-inf`: spelled-out non-numbers, which mathjs would call unknown units. */

@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { applyOverrides, checkPath, overrideValue, readWithOverrides, splitPath, type Override } from '../../src/netlist/override.js';
 import { readNetlist } from '../../src/netlist/read.js';
+import { parseYamlTree } from '../../src/netlist/yaml-tree.js';
 
 const FILE = 'networks/cushion-runaway.yaml';
 const source = readFileSync(FILE, 'utf8');
@@ -87,5 +88,34 @@ describe('readWithOverrides', () => {
   it('without overrides it is readNetlist', () => {
     const r = readWithOverrides(source, FILE, []);
     expect(r.ok).toBe(true);
+  });
+});
+
+describe('overrides set in the parsed netlist (one parse for many cases)', () => {
+  // The same overrides through the text (applyOverrides, then the reader) and through the tree
+  // (overrideTree) must give the same document and the same diagnostics. Positions differ where
+  // the text path re-wrote flow mappings as blocks (its positions are those of the edited
+  // text); the tree path keeps the user's own lines, checked against the unedited netlist.
+  const noPos = (x: unknown): unknown => JSON.parse(JSON.stringify(x, (k, v) => (k === 'pos' || k === 'line' || k === 'column' ? undefined : v)));
+  const strip = (r: ReturnType<typeof readWithOverrides>): unknown =>
+    noPos(r.ok ? { ...r.value, source: undefined, warnings: r.warnings } : r.diagnostics);
+  const cases: [string, [string, string][]][] = [
+    ['networks/cushion-runaway.yaml', [['chambers.cell_a.thickness', '1.4 mm'], ['chambers.cell_b.start.stretch', '1.65'], ['simulate.duration', '7 s']]],
+    ['networks/cushion-runaway.yaml', [['lines.crossover.roughness', '0.01 mm']]],
+    ['networks/cushion-runaway.yaml', [['valves.crossover_valve.schedule.0.at', '2 s'], ['chambers.cell_a.thickness', '-1 mm']]],
+    ['networks/cushion-runaway.yaml', [['chambers.cell_a.wall', 'rubber'], ['simulate.tolerance', 'true']]],
+    ['networks/gripper-charge.yaml', [['lines.feed_tube.diameter', '3 mm'], ['chambers.finger.limits.stretch', '4']]],
+  ];
+  it.each(cases)('%s with %j', (file, sets) => {
+    const text = readFileSync(file, 'utf8');
+    const overrides = sets.map(([p, v]) => ov(p, v));
+    const tree = parseYamlTree(text, file);
+    const before = JSON.stringify(tree);
+    const viaText = readWithOverrides(text, file, overrides);
+    const viaTree = readWithOverrides(text, file, overrides, tree);
+    expect(strip(viaTree)).toEqual(strip(viaText));
+    const plain = readNetlist(text, file);
+    if (plain.ok && viaTree.ok) expect(viaTree.value.chambers.map((c) => c.pos)).toEqual(plain.value.chambers.map((c) => c.pos));
+    expect(JSON.stringify(tree)).toBe(before); // the shared tree is not touched
   });
 });
