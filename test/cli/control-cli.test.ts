@@ -39,8 +39,8 @@ describe('plenum and controllers', () => {
     const csv = join(tmp, 'bad.csv');
     const r = plenum('run', file, '--csv', csv);
     expect(r.code).toBe(2);
-    expect(r.err).toMatch(/bad\.yaml:10:\d+: error \[unknown-reference\]/);
-    expect(r.err).toMatch(/bad\.yaml:10:\d+: error \[driven-valve-operated\]/);
+    expect(r.err).toMatch(/bad\.yaml:11:\d+: error \[unknown-reference\]/);
+    expect(r.err).toMatch(/bad\.yaml:11:\d+: error \[driven-valve-operated\]/);
     expect(r.err).not.toMatch(/at .*\.js:\d+/);
     expect(existsSync(csv)).toBe(false);
   });
