@@ -7,7 +7,7 @@ import { build } from 'esbuild';
 rmSync('dist', { recursive: true, force: true });
 
 await build({
-  entryPoints: { 'cli/main': 'src/cli/main.ts', index: 'src/index.ts', 'cli/check-worker': 'src/cli/check-worker.ts', 'studies/sweep-worker': 'src/studies/sweep-worker.ts', 'cli/run-worker': 'src/cli/run-worker.ts' },
+  entryPoints: { 'cli/main': 'src/cli/main.ts', index: 'src/index.ts', 'cli/check-worker': 'src/cli/check-worker.ts', 'studies/sweep-worker': 'src/studies/sweep-worker.ts', 'studies/eval-worker': 'src/studies/eval-worker.ts', 'cli/run-worker': 'src/cli/run-worker.ts' },
   outdir: 'dist',
   bundle: true,
   splitting: true,

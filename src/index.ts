@@ -36,6 +36,14 @@ export { fitWall, fitJson, fitText, fitResidualCsv, chamberSnippet, measuredSnip
 export { readBenchCsv, type BenchData, type BenchRow } from './studies/fit-data.js';
 export { levenbergMarquardt, type LmProblem, type LmResult } from './studies/fit-lm.js';
 export { studentQuantile, studentCdf } from './studies/fit-stats.js';
+export { calibrate, type CalibrateOptions, type CalibrationReport, type CalibratedParameter, type CalibrationInput, type ChannelFit, type ResidualRow } from './studies/calibrate.js';
+export { calibrationText, calibrationJson, residualCsv, calibratedNetlist, netlistWithValues } from './studies/calibrate-report.js';
+export { size, type SizeOptions, type SizeReport } from './studies/size.js';
+export { sizeText, sizeJson } from './studies/size-report.js';
+export { expectationMargin } from './studies/margins.js';
+export { readMeasuredCsv, checkSeries, type MeasuredSeries } from './studies/bench-series.js';
+export { measuredOverlays, measuredTrace, alignToMeasured } from './studies/measured-overlay.js';
+export type { MeasuredOverlay } from './transient/report-input.js';
 export { reportInput, type ReportInput, type ReportInputOptions, type EquilibriumMark, type WallCurve, type ReportTopology } from './transient/report-input.js';
 export { reportHtml } from './report/html.js';
 export { reportFigures, type Figure, type FigureOptions } from './report/plots.js';

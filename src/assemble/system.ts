@@ -56,6 +56,8 @@ export class NetworkSystem implements EventfulProblem {
   readonly mIdx: Int32Array;
   readonly TIdx: Int32Array;
   readonly hIdx: Int32Array;
+  /** Node index of each of those gas nodes. */
+  readonly gasNodes: Int32Array;
   private readonly held: Int32Array;
   private readonly stores: Int32Array;
   private readonly evaluators: Element[];
@@ -113,6 +115,7 @@ export class NetworkSystem implements EventfulProblem {
     const gasNodes: number[] = [];
     for (let i = 0; i < nodes.count; i++) if (nodes.hasState(i)) gasNodes.push(i);
     this.nc = gasNodes.length;
+    this.gasNodes = Int32Array.from(gasNodes);
     this.mIdx = Int32Array.from(gasNodes, (i) => nodes.cols[i * K]);
     this.TIdx = Int32Array.from(gasNodes, (i) => nodes.cols[i * K + 1]);
     this.hIdx = Int32Array.from(gasNodes, (i) => nodes.cols[i * K + 2]);
@@ -154,11 +157,11 @@ export class NetworkSystem implements EventfulProblem {
    * diagnosis looks for the branch that is fastest or not finite.
    */
   get branches(): BranchState[] {
-    return this.branchElements().map((e) => e.state);
+    return this.branchElements();
   }
 
   get flows(): BranchFlow[] {
-    return this.branchElements().map((e) => e.flow);
+    return this.branchElements().map((e) => e.current);
   }
 
   private branchList: BranchElement[] | null = null;
@@ -209,6 +212,26 @@ export class NetworkSystem implements EventfulProblem {
     for (let k = 0; k < ld.length; k++) ld[k].load!(dydt);
     const st = this.settlers;
     for (let k = 0; k < st.length; k++) st[k].settle!(y, dydt);
+  }
+
+  /**
+   * Net mass inflow (kg/s) into each gas node from `elements` alone, with the gas nodes at
+   * pressures p (Pa abs) and temperatures T (K), indexed like mIdx; scale gets Σ|flow| per
+   * node. Rest analyses solve their steady flow with it (equilibria/steady.ts).
+   */
+  restInflow(t: number, elements: Element[], p: ArrayLike<number>, T: ArrayLike<number>, out: Float64Array, scale: Float64Array): void {
+    const nodes = this.nodes;
+    for (let i = 0; i < this.nc; i++) { nodes.p[this.gasNodes[i]] = p[i]; nodes.T[this.gasNodes[i]] = T[i]; }
+    const y = new Float64Array(this.n);
+    const dydt = new Float64Array(this.n);
+    for (const e of elements) e.evaluate?.(t, y);
+    nodes.clearInflows();
+    for (const e of elements) e.load?.(dydt);
+    for (let i = 0; i < this.nc; i++) {
+      out[i] = dydt[this.mIdx[i]];
+      scale[i] = nodes.mIn[this.gasNodes[i]] + nodes.mOut[this.gasNodes[i]];
+    }
+    this.invalidate();
   }
 
   // ---- jacobian -----------------------------------------------------------------------

@@ -4,7 +4,7 @@
  * within tolerance, 1 outside, 2 when a file cannot be read or the two have nothing in common.
  */
 import { readFileSync } from 'node:fs';
-import { diffTraces, readTrace, type DiffOptions, type TraceFile } from '../index.js';
+import { alignToMeasured, diffTraces, formatDiagnostic, measuredTrace, readTrace, type DiffOptions, type TraceFile } from '../index.js';
 import { DEFAULT_RTOL, QUANTITY_CLASSES, type Deviation, type QuantityClass, type Tolerance } from '../transient/trace-diff.js';
 import { didYouMean } from '../diag/did-you-mean.js';
 import type { Dimension } from '../units/dimensions.js';
@@ -33,9 +33,21 @@ function load(file: string): TraceFile {
     throw new UsageError(`${file}: cannot read (${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code ?? String(e)})`);
   }
   const r = readTrace(text, file);
+  if (r.ok && !(r.value.kind === 'csv' && r.value.channels.some((c) => !SI_UNITS.has(c.unit)))) return r.value;
+  // not plenum's own trace: a bench recording (units of its own, comments, gaps)
+  if (!text.replace(/^\uFEFF/, '').trimStart().startsWith('{')) {
+    const m = measuredTrace(text, file, STANDARD_AMBIENT);
+    if (m.ok) return m.value;
+    if (!r.ok) throw new UsageError(`${m.diagnostics.map(formatDiagnostic).join('\n')}\n${file}: neither a plenum trace nor a readable bench recording`);
+  }
   if (!r.ok) throw new UsageError(r.message);
   return r.value;
 }
+
+/** Units plenum writes in its CSV trace. */
+const SI_UNITS = new Set(['Pa', 'm^3', 'kg', 'K', 'kg/s', '-', 'm', 'm/s', 's']);
+/** Ambient pressure used to read `.pressure [... gauge]` columns of a recording (ISO 2533 sea level). */
+const STANDARD_AMBIENT = 101325;
 
 function nonNegative(text: string, what: string): number {
   const x = Number(text);
@@ -98,7 +110,7 @@ function g(x: number | string | boolean, digits = 7): string {
 }
 
 function describe(f: TraceFile): string {
-  const what = f.kind === 'baseline' ? 'baseline' : f.kind === 'csv' ? 'CSV trace' : 'result summary';
+  const what = f.kind === 'baseline' ? 'baseline' : f.kind === 'csv' ? 'CSV trace' : f.kind === 'measured' ? 'bench recording' : 'result summary';
   const parts = [what];
   if (f.netlist) parts.push(`of ${f.netlist}`);
   if (f.times.length) parts.push(`${f.times.length} samples, ${f.channels.length} channels`);
@@ -112,8 +124,11 @@ function table(rows: string[][]): string[] {
 }
 
 export function diffCommand(a: string, b: string, opts: DiffCliOptions): number {
-  const A = load(a);
-  const B = load(b);
+  let A = load(a);
+  let B = load(b);
+  // a recording is compared where and what it measured: the other trace at its reading times
+  if (B.kind === 'measured' && A.kind !== 'measured' && A.times.length) ({ sim: A, measured: B } = alignToMeasured(A, B));
+  else if (A.kind === 'measured' && B.kind !== 'measured' && B.times.length) ({ sim: B, measured: A } = alignToMeasured(B, A));
   const o: DiffOptions = {};
   if (opts.rtol !== undefined) o.rtol = nonNegative(opts.rtol, '--rtol');
   if (opts.atol !== undefined) o.atol = nonNegative(opts.atol, '--atol');

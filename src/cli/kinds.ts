@@ -1,6 +1,6 @@
 /** `plenum kinds`: element kinds and wall laws with their parameters, from the parameter tables. */
 import {
-  CHAMBER, CONTROLLER, CYLINDER, CYLINDER_START, DEAD_VOLUME, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
+  CHAMBER, CONTROLLER, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
   VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
 } from '../netlist/kinds.js';
 
@@ -17,6 +17,7 @@ const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => str
     label: (t) => (t.kind === 'cylinder' ? 'cylinder' : t.kind === 'port-start' ? 'cylinder start: cap / rod' : `cylinder ${t.kind.replace('cylinder-', '')}`),
   },
   { title: 'controllers', tables: [CONTROLLER], label: () => 'controller' },
+  ...ELEMENT_TABLES.map((k) => ({ title: k.key, tables: [k], label: () => k.kind })),
 ];
 
 function dim(p: ParamSpec): string {

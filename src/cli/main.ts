@@ -38,6 +38,8 @@ Examples:
   plenum trace networks/cushion-runaway.yaml --vary mass:cell_a --from "1 g" --to "4 g" --csv branches.csv
   plenum sweep rig.yaml --vary 'chambers.cell_a.thickness=1.5 mm±3%' --samples 200 --json study.json
   plenum fit bench.csv --wall gent --radius 40mm --thickness 1.5mm
+  plenum calibrate rig.yaml --data bench.csv --free 'valves.v1.conductance=0.1 L/(s*bar)..2 L/(s*bar)'
+  plenum size rig.yaml --free 'valves.v1.orifice=0.5 mm..4 mm' --margin 0.1
   plenum schema > plenum.schema.json
   plenum kinds`);
 
@@ -68,8 +70,8 @@ program.command('check')
 
 program.command('diff')
   .description('compare two traces (baselines from `run --baseline`, or CSV from `run --csv`): largest deviations, exit 1 outside tolerance')
-  .argument('<a>', 'the reference: a baseline (.json) or a CSV trace')
-  .argument('<b>', 'the trace to compare with it')
+  .argument('<a>', 'the reference: a baseline (.json), a CSV trace, or a bench recording (measured CSV)')
+  .argument('<b>', 'the trace to compare with it (a recording is compared at its reading times, on its channels)')
   .option('--rtol <r>', 'relative tolerance (default 1e-6)')
   .option('--atol <a>', 'absolute tolerance for every quantity, SI (default: per quantity, see docs/ci.md)')
   .option('--tol <quantity=value>', 'tolerance for a quantity (pressure, volume, mass, temperature, flow, stretch, reynolds, time) or one channel: `pressure=50 Pa`, `cell_a.gauge=0.1%` (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
@@ -121,13 +123,50 @@ program.command('fit')
     process.exitCode = fitCommand(file, opts);
   });
 
+program.command('calibrate')
+  .description('fit netlist parameters to bench recordings (time series): values, standard errors, 95 % intervals, fit per probe')
+  .argument('<netlist>', 'netlist file (.yaml)')
+  .option('--data <file>', 'a recording: CSV with `time [s]` and `<probe> [unit]` columns; `FILE;PATH=VALUE;...` gives its own conditions (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
+  .option('--free <path>', 'a parameter to fit, by its netlist path, with optional bounds: `valves.v1.conductance=0.1 L/(s*bar)..2 L/(s*bar)` (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
+  .option('--sigma <probe=value>', 'measurement scale of a probe, e.g. `finger.gauge=0.5 kPa` (default: estimated from the residuals)', (v: string, acc: string[]) => [...acc, v], [] as string[])
+  .option('--json <file>', 'write parameters, intervals, correlation and fit per probe as JSON (- for stdout)')
+  .option('--residuals <file>', 'write one row per reading (measured, simulated, residual) as CSV (- for stdout)')
+  .option('--write-netlist <file>', 'write the netlist with the calibrated values (comments kept)')
+  .option('--jobs <n>', 'worker threads (default: the available cores)')
+  .option('--max-iterations <n>', 'Levenberg–Marquardt iterations (default 100)')
+  .option('-q, --quiet', 'do not print the report')
+  .action(async (file: string, opts: { data: string[]; free: string[]; sigma: string[]; json?: string; residuals?: string; writeNetlist?: string; jobs?: string; maxIterations?: string; quiet?: boolean }) => {
+    const { calibrateCommand } = await import('./calibrate.js');
+    process.exitCode = await calibrateCommand(file, opts);
+  });
+
+program.command('size')
+  .description('find parameter values for which every expectation passes with a margin: a feasible boundary, or an optimum of several')
+  .argument('<netlist>', 'netlist file (.yaml)')
+  .option('--free <path=lo..hi>', 'a parameter to size, by its netlist path, with its range: `valves.v1.orifice=0.5 mm..4 mm` (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
+  .option('--minimise <path>', 'the free parameter to make as small as possible (default with one free parameter)')
+  .option('--maximise <path>', 'the free parameter to make as large as possible')
+  .option('--margin <x>', 'fraction by which every expectation must clear its limit (default 0), e.g. 0.1 or 10%')
+  .option('--robust <path±tol>', "the design must pass for the worst case over this tolerance: `lines.feed.diameter±0.1 mm`, `valves.v1.conductance±10%` (repeatable)", (v: string, acc: string[]) => [...acc, v], [] as string[])
+  .option('--samples <n>', 'a seeded Monte Carlo sample of the tolerances instead of their corners')
+  .option('--seed <s>', 'seed of the Monte Carlo sample (default 1)')
+  .option('--jobs <n>', 'worker threads (default: the available cores)')
+  .option('--json <file>', 'write the result as JSON (- for stdout)')
+  .option('--write-netlist <file>', 'write the netlist with the sized values (comments kept)')
+  .option('-q, --quiet', 'do not print the report')
+  .action(async (file: string, opts: { free: string[]; minimise?: string; maximise?: string; margin?: string; robust: string[]; samples?: string; seed?: string; jobs?: string; json?: string; writeNetlist?: string; quiet?: boolean }) => {
+    const { sizeCommand } = await import('./size.js');
+    process.exitCode = await sizeCommand(file, opts);
+  });
+
 program.command('report')
   .description('simulate a netlist and write a self-contained HTML report (network, figures, tables, events, checks)')
   .argument('<netlist>', 'netlist file (.yaml)')
   .option('-o, --out <file>', 'the HTML file to write')
   .option('--plots <dir>', 'also write the figures as SVG files into this directory')
+  .option('--data <file>', 'a bench recording (CSV with `time [s]` and `<probe> [unit]` columns) to overlay, with a residual panel (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
   .option('-q, --quiet', 'do not print the summary table')
-  .action(async (file: string, opts: { out?: string; plots?: string; quiet?: boolean }) => {
+  .action(async (file: string, opts: { out?: string; plots?: string; data: string[]; quiet?: boolean }) => {
     const { reportCommand } = await import('./report.js');
     process.exitCode = await reportCommand(file, { ...opts, version: VERSION });
   });

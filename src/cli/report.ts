@@ -6,7 +6,8 @@
  */
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
-import { findEquilibria, reportFigures, reportHtml, reportInput, summaryText, type Model, type RunResult } from '../index.js';
+import { findEquilibria, formatDiagnostic, measuredOverlays, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
+import { readText } from './study-io.js';
 import { loadOrExit } from './load.js';
 import { checkOutputPaths, checkPlotsDir, UsageError, writeOutput } from './io.js';
 
@@ -20,16 +21,18 @@ export interface ReportOptions {
   quiet?: boolean;
   /** plenum's version, for the report's footer. */
   version?: string;
+  /** Bench recordings to overlay (measured CSV). */
+  data?: string[];
 }
 
 /** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */
-export function writePlots(dir: string, model: Model, result: RunResult): string[] {
+export function writePlots(dir: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): string[] {
   try {
     mkdirSync(dir, { recursive: true });
   } catch (e) {
     throw new UsageError(`cannot create --plots ${dir} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
   }
-  const figures = reportFigures(reportInput(model, result), { standalone: true });
+  const figures = reportFigures(reportInput(model, result, { measured }), { standalone: true });
   return figures.map((f) => {
     const path = join(dir, `${f.id}.svg`);
     writeOutput(path, f.svg, '--plots');
@@ -68,14 +71,26 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
   const stop = interruptOnSigint();
   try {
     const model = loadOrExit(file);
+    // recordings are checked before anything runs: bad data is exit 2 with nothing written
+    let measured: MeasuredOverlay[] | undefined;
+    if (opts.data?.length) {
+      const inputs = opts.data.map((d) => ({ file: d, text: readText(d, 'the recording') }));
+      const o = measuredOverlays(model, inputs);
+      if (!o.ok) {
+        const n = o.diagnostics.length;
+        throw new UsageError(`${o.diagnostics.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'} in the recordings; nothing was written`);
+      }
+      measured = o.value.overlays;
+      for (const note of o.value.notes) process.stderr.write(`plenum: note: ${note}\n`);
+    }
     const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
     const result = await simulateInterruptibly(model, stop, tty
       ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
       : undefined);
     if (tty) process.stderr.write('\r\x1b[K');
     if (!opts.quiet) process.stdout.write(summaryText(result));
-    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, ...restStates(model) })), '--out');
-    const plots = opts.plots ? writePlots(opts.plots, model, result) : [];
+    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, measured, ...restStates(model) })), '--out');
+    const plots = opts.plots ? writePlots(opts.plots, model, result, measured) : [];
     if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);

@@ -58,32 +58,34 @@ export function scheduleStill(s: Schedule | null, t0: number, t1: number): boole
   return true;
 }
 
-export class BranchElement implements Element {
+export class BranchElement extends BranchState implements Element {
   readonly kind: string;
   readonly name: string;
-  readonly state: BranchState;
   /** The flow at the evaluated point. */
-  readonly flow: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
+  readonly current: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
   private readonly nodes: Nodes;
   private readonly withT: boolean;
   private readonly bp: BranchPartials = { q: 0, dp1: 0, dp2: 0, dT1: 0, dT2: 0 };
   private link = -1;
+  /** A relief valve's open state, the one mode of a branch (others have none: not in the memo key). */
+  readonly mode?: () => number;
 
-  constructor(readonly b: BranchModel, private readonly asm: Assembly, readonly from: number, readonly to: number) {
+  constructor(b: BranchModel, private readonly asm: Assembly, readonly from: number, readonly to: number) {
+    super(b, asm.gas, asm.pa);
     this.kind = b.kind;
     this.name = b.name;
-    this.state = new BranchState(b, asm.gas, asm.pa);
     this.nodes = asm.nodes;
     this.withT = asm.model.heat !== 'isothermal';
+    if (b.valve?.operation.kind === 'relief') this.mode = () => (this.open ? 1 : 0);
   }
 
   evaluate(t: number): void {
     const n = this.nodes, i = this.from, j = this.to;
-    this.state.flow(t, n.p[i], n.p[j], n.T[i], n.T[j], this.flow);
+    this.flow(t, n.p[i], n.p[j], n.T[i], n.T[j], this.current);
   }
 
   load(dydt: Float64Array): void {
-    this.nodes.between(dydt, this.from, this.to, this.flow.mdot);
+    this.nodes.between(dydt, this.from, this.to, this.current);
   }
 
   reserveJacobian(r: JacobianReserve): void {
@@ -92,30 +94,26 @@ export class BranchElement implements Element {
 
   loadJacobian(t: number, values: Float64Array): void {
     const n = this.nodes, a = this.from, c = this.to;
-    // this.flow is the flow at these end states (from the rhs just evaluated)
-    this.state.partials(t, n.p[a], n.p[c], n.T[a], n.T[c], this.withT, this.bp, this.flow);
+    // this.current is the flow at these end states (from the rhs just evaluated)
+    this.partials(t, n.p[a], n.p[c], n.T[a], n.T[c], this.withT, this.bp, this.current);
     n.transferJacobian(this.link, a, c, this.bp, values);
   }
 
   breakpoints(): number[] {
-    return this.state.schedule?.breakpoints ?? [];
+    return this.schedule?.breakpoints ?? [];
   }
 
   atBreakpoint(t: number, log: LoggedEvent[]): void {
-    if (this.state.schedule) describeSchedule(t, 'valve', this.name, this.state.schedule, log);
+    if (this.schedule) describeSchedule(t, 'valve', this.name, this.schedule, log);
   }
 
   timeInvariant(t0: number, t1: number): boolean {
-    return scheduleStill(this.state.schedule, t0, t1);
-  }
-
-  mode(): number {
-    return this.state.open ? 1 : 0;
+    return scheduleStill(this.schedule, t0, t1);
   }
 
   events(): ElementEvent[] {
     const op = this.b.valve?.operation;
-    const n = this.nodes, a = this.from, c = this.to, name = this.name, st = this.state, pa = this.asm.pa;
+    const n = this.nodes, a = this.from, c = this.to, name = this.name, st = this, pa = this.asm.pa;
     if (op?.kind === 'relief') {
       return [{
         kind: 'relief', element: name,
@@ -190,7 +188,7 @@ export class BranchElement implements Element {
   }
 
   observe(_y: Float64Array, out: Float64Array, k: number): number {
-    const f = this.flow;
+    const f = this.current;
     out[k++] = f.mdot;
     out[k++] = f.reynolds;
     if (this.b.hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
@@ -198,7 +196,7 @@ export class BranchElement implements Element {
   }
 
   summaries(): ElementSummary[] {
-    const b = this.b, f = this.flow;
+    const b = this.b, f = this.current;
     const pk = { flow: 0, re: 0, choked: false };
     const track = (): void => {
       if (Math.abs(f.mdot) > Math.abs(pk.flow)) pk.flow = f.mdot;

@@ -18,17 +18,16 @@ function increment(x: number, scale: number): number {
   return (x + SQRT_EPS * scale) - x;
 }
 
-export class ChamberElement implements Element {
+export class ChamberElement extends ChamberState implements Element {
   readonly kind = 'chamber';
   readonly name: string;
-  readonly state: ChamberState;
   /** Node index and slots (−1 absent). */
   readonly node: number;
   readonly m: number;
   readonly T: number;
   readonly h: number;
   /** κ = ∂V/∂(pV_gas) at the evaluated point. */
-  kappa = 0;
+  kappa = Number.NaN;
   private readonly nodes: Nodes;
   private readonly solved = { p: 0, V: 0, kappa: 0 };
   private readonly aside = { p: 0, V: 0, kappa: 0 };
@@ -36,9 +35,9 @@ export class ChamberElement implements Element {
   /** Positions of its own block (rows m, T, h × columns m, T, h) in the jacobian values. */
   private readonly own = new Int32Array(K * K).fill(-1);
 
-  constructor(readonly c: ChamberModel, private readonly asm: Assembly) {
+  constructor(c: ChamberModel, private readonly asm: Assembly) {
+    super(c, asm.gas, asm.pa);
     this.name = c.name;
-    this.state = new ChamberState(c, asm.gas, asm.pa);
     const slots: StateSlot[] = [{ name: 'm', unit: 'kg', scale: 'mass', mass: 'held' }];
     const withT = asm.model.heat !== 'isothermal';
     if (withT) slots.push({ name: 'T', unit: 'K', scale: 300 });
@@ -49,6 +48,7 @@ export class ChamberElement implements Element {
     this.h = c.deflation ? first + slots.length - 1 : -1;
     this.nodes = asm.nodes;
     this.node = asm.nodes.add(c.name);
+    this.settle = this.T >= 0 || this.h >= 0 ? (y, dydt) => this.settleRows(y, dydt) : undefined;
   }
 
   /** Called once the node table is allocated. */
@@ -66,7 +66,7 @@ export class ChamberElement implements Element {
     const T = this.T >= 0 ? y[this.T] : this.c.T0;
     const h = this.h >= 0 ? y[this.h] : 1;
     const s = this.solved;
-    this.state.solve(y[this.m], T, h, s);
+    this.solve(y[this.m], T, h, s);
     const nodes = this.nodes, i = this.node;
     nodes.p[i] = s.p;
     nodes.V[i] = s.V;
@@ -75,7 +75,10 @@ export class ChamberElement implements Element {
     if (!(s.p >= 0) && nodes.fault === null) nodes.fault = this.name;
   }
 
-  settle(y: Float64Array, dydt: Float64Array): void {
+  /** Its energy and hysteresis rows, when it has them (others skip the pass altogether). */
+  readonly settle: ((y: Float64Array, dydt: Float64Array) => void) | undefined;
+
+  private settleRows(y: Float64Array, dydt: Float64Array): void {
     const mdot = dydt[this.m];
     const i = this.node;
     if (this.T >= 0) {
@@ -84,7 +87,7 @@ export class ChamberElement implements Element {
     if (this.h >= 0) {
       const h = y[this.h];
       const target = mdot > 0 ? 1 : 0;
-      dydt[this.h] = (Math.abs(mdot) / this.state.dmHyst) * (target - h);
+      dydt[this.h] = (Math.abs(mdot) / this.dmHyst) * (target - h);
     }
   }
 
@@ -115,7 +118,7 @@ export class ChamberElement implements Element {
     const m = y[this.m];
     const T = n.T[i];
     const h = this.h >= 0 ? y[this.h] : 1;
-    this.state.pressurePartials(m, T, h, n.V[i], n.p[i], this.kappa, pp);
+    this.pressurePartials(m, T, h, n.V[i], n.p[i], this.kappa, pp);
     n.dp[i * K] = pp.dm;
     n.dp[i * K + 1] = pp.dT;
     n.dp[i * K + 2] = pp.dh;
@@ -130,7 +133,7 @@ export class ChamberElement implements Element {
     }
     if (this.h >= 0) {
       const mdot = f[this.m];
-      const dm = this.state.dmHyst;
+      const dm = this.dmHyst;
       const target = mdot > 0 ? 1 : 0;
       n.cThird[i] = (Math.sign(mdot) * (target - h)) / dm;
       values[this.own[2 * K + 2]] += -Math.abs(mdot) / dm;
@@ -140,7 +143,7 @@ export class ChamberElement implements Element {
   /** ∂Ṫ/∂(m, T, h) at fixed inflows, by differences of this chamber alone. */
   settleJacobian(y: Float64Array, f: Float64Array, values: Float64Array): void {
     if (this.T < 0) return;
-    const ch = this.state, n = this.nodes, i = this.node;
+    const ch = this, n = this.nodes, i = this.node;
     const m = y[this.m], T = y[this.T];
     const h = this.h >= 0 ? y[this.h] : 1;
     const mdot = f[this.m];
@@ -201,7 +204,7 @@ export class ChamberElement implements Element {
     if (sLimit !== undefined && c.wall.sphere) {
       out.push({
         kind: 'limit-stretch', element: name,
-        value: () => this.state.c.wall.stretch(n.V[i]) - sLimit,
+        value: () => this.c.wall.stretch(n.V[i]) - sLimit,
         direction: () => 1,
         fire: (t, _r, log) => { note(log, t, 'limit-stretch', `${name} exceeds its stretch limit of ${sLimit}`, true); return false; },
       });

@@ -66,7 +66,7 @@ export class ControllerElement implements Element {
   /** The measured value at the evaluated point (SI; pressures absolute). */
   private measure(y: Float64Array): number {
     const m = this.c.measure;
-    if (this.branch) return m.quantity === 'reynolds' ? this.branch.flow.reynolds : this.branch.flow.mdot;
+    if (this.branch) return m.quantity === 'reynolds' ? this.branch.current.reynolds : this.branch.current.mdot;
     const ch = this.chamber!;
     const i = ch.node;
     switch (m.quantity) {
@@ -86,7 +86,7 @@ export class ControllerElement implements Element {
   }
 
   evaluate(t: number, y: Float64Array): void {
-    this.driven.state.command = this.state.output(t, this.measure(y), y);
+    this.driven.command = this.state.output(t, this.measure(y), y);
     this.driven.evaluate(t);
   }
 

@@ -125,8 +125,12 @@ export class Nodes {
     }
   }
 
-  /** A transfer of q from node `from` to node `to`, the gas carrying the upstream temperature. */
-  between(dydt: Float64Array, from: number, to: number, q: number): void {
+  /**
+   * A transfer of f.mdot from node `from` to node `to`, the gas carrying the upstream
+   * temperature (the flow is passed in its object: a double argument would be boxed).
+   */
+  between(dydt: Float64Array, from: number, to: number, f: { mdot: number }): void {
+    const q = f.mdot;
     const Tup = q >= 0 ? this.T[from] : this.T[to];
     this.transfer(dydt, this.rows[from * K], this.hasState(from) ? from : -1, this.rows[to * K], this.hasState(to) ? to : -1, q, Tup);
   }

@@ -1,10 +1,13 @@
 /**
  * The element kinds a model holds, made into elements (contract.ts) in the order the assembler
- * keeps: gas nodes first (chambers, then reservoirs, then cylinders, whose two sides are nodes), so that they evaluate before the elements
- * between them, then lines and valves, then feeds. The one place that names the kinds: a new
- * kind adds its line here (and its parameter table, netlist reading and model entry).
+ * keeps: gas nodes first (chambers, then reservoirs, then cylinders, whose two sides are nodes),
+ * so that they evaluate before the elements between them, then lines and valves, then feeds,
+ * then the kinds read from their table alone (netlist/kinds.ts: ELEMENT_TABLES), each made by
+ * its line in MAKERS. The one place that names the kinds: a new kind adds its line here (and its
+ * parameter table; kinds with reading code of their own also their netlist reading and model
+ * entry).
  */
-import type { Model, NodeRef } from '../model/types.js';
+import type { ElementModel, Model, NodeRef } from '../model/types.js';
 import { BranchElement } from './branch-element.js';
 import { ChamberElement } from './chamber-element.js';
 import { CylinderElement } from './cylinder-element.js';
@@ -12,7 +15,13 @@ import type { Assembly, Element } from './contract.js';
 import { ControllerElement } from './controller-element.js';
 import { FeedElement } from './feed.js';
 import { RegulatorLagElement } from './regulator-lag.js';
+import { LeakElement } from './leak.js';
 import { ReservoirElement } from './reservoir.js';
+
+/** Kinds read from their table alone (netlist/kinds.ts: ELEMENT_TABLES): how each makes its element. */
+const MAKERS: Record<string, (m: ElementModel, asm: Assembly, node: (n: NodeRef) => number) => Element> = {
+  leak: (m, asm, node) => new LeakElement(m, asm, node(m.nodes.from)),
+};
 
 export function createElements(model: Model, asm: Assembly): Element[] {
   const chambers = model.chambers.map((c) => new ChamberElement(c, asm));
@@ -36,5 +45,10 @@ export function createElements(model: Model, asm: Assembly): Element[] {
   // controllers after the branches: they read undriven branches and chambers, then set their valve
   const controllers = model.controllers.map((c) => new ControllerElement(c, asm, branches[c.valve],
     c.measure.kind === 'chamber' ? chambers[c.measure.index] : null, c.measure.kind === 'branch' ? branches[c.measure.index] : null));
-  return [...chambers, ...reservoirs, ...cylinders, ...lags, ...branches, ...feeds, ...controllers];
+  const more = (model.elements ?? []).map((m) => {
+    const make = MAKERS[m.kind];
+    if (!make) throw new Error(`element kind ${m.kind} has a table but no element (elements/registry.ts)`);
+    return make(m, asm, node);
+  });
+  return [...chambers, ...reservoirs, ...cylinders, ...lags, ...branches, ...feeds, ...more, ...controllers];
 }

@@ -37,7 +37,7 @@ export class RegulatorLagElement implements Element {
   }
 
   evaluate(_t: number, y: Float64Array): void {
-    for (const v of this.valves) v.state.position = y[this.z];
+    for (const v of this.valves) v.position = y[this.z];
   }
 
   settle(y: Float64Array, dydt: Float64Array): void {

@@ -147,12 +147,12 @@ export function restSetup(model: Model, valves: ValveState): RestSetup {
     const open = (r: NodeRef): boolean => {
       if (r.kind === 'reservoir') return true;
       const g = groupOf.get(r.index)!;
-      return g.reservoirs.length > 0 || g.feeds.length > 0;
+      return g.reservoirs.length > 0 || g.boundary || g.feeds.length > 0;
     };
     const fedOnly = (r: NodeRef): boolean => {
       if (r.kind === 'reservoir') return false;
       const g = groupOf.get(r.index)!;
-      return g.reservoirs.length === 0 && g.feeds.length > 0;
+      return g.reservoirs.length === 0 && !g.boundary && g.feeds.length > 0;
     };
     let grew = false;
     rest.branches.forEach((b, k) => {
@@ -163,7 +163,7 @@ export function restSetup(model: Model, valves: ValveState): RestSetup {
   }
   const restGroups: RestGroup[] = groups.map((g) => ({
     ...g,
-    kind: g.reservoirs.length > 0 ? 'open' : g.feeds.length > 0 ? 'fed' : 'closed',
+    kind: g.reservoirs.length > 0 || g.boundary ? 'open' : g.feeds.length > 0 ? 'fed' : 'closed',
     flowing: g.branches.filter((k) => flowing.has(k)),
   }));
   if (rest.branches.some((b, k) => isOneWay(b) && !flowing.has(k))) {

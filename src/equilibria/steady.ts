@@ -18,7 +18,13 @@ export function steadyPressures(setup: RestSetup, g: RestGroup): { p: Float64Arr
   const n = g.chambers.length;
   const pos = new Map(g.chambers.map((c, i) => [c, i] as const));
   const resP = g.reservoirs.map((r) => model.reservoirs[r].pressure.at(t));
-  const p = new Float64Array(n).fill(resP.reduce((a, x) => a + x, 0) / resP.length);
+  // start at the reservoirs' mean pressure (ambient when only boundary elements open the group)
+  const p = new Float64Array(n).fill(resP.length ? resP.reduce((a, x) => a + x, 0) / resP.length : model.pa);
+  // elements of kinds read from their table: their flows come from the system itself
+  const extra = g.elements.map((k) => sys.elements.find((e) => e.name === model.elements![k].name)!);
+  const nc = setup.chambers.length;
+  const pAll = new Float64Array(nc), TAll = Float64Array.from(setup.chambers, (c) => c.T);
+  const inflow = new Float64Array(nc), inScale = new Float64Array(nc);
   const flow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const } as { mdot: number; reynolds: number; choked: boolean; regime: 'laminar' | 'transitional' | 'turbulent' | 'orifice' };
   const scale = new Float64Array(n);
   const residual = (x: Float64Array, out: Float64Array): void => {
@@ -40,6 +46,11 @@ export function steadyPressures(setup: RestSetup, g: RestGroup): { p: Float64Arr
       const q = fd.rate * fd.initially;
       out[pos.get(fd.into)!] += q;
       scale[pos.get(fd.into)!] += q;
+    }
+    if (extra.length) {
+      g.chambers.forEach((c, i) => { pAll[c] = x[i]; });
+      sys.restInflow(t, extra, pAll, TAll, inflow, inScale);
+      g.chambers.forEach((c, i) => { out[i] += inflow[c]; scale[i] += inScale[c]; });
     }
   };
   const r = new Float64Array(n);

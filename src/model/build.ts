@@ -9,7 +9,8 @@ import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
 import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
 import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
-import type { BranchModel, ChamberModel, ControllerModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import type { BranchModel, ChamberModel, ControllerModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
 import { buildCylinder, type CylinderModel } from './cylinder.js';
 import { PORT_NAME } from '../netlist/names.js';
@@ -187,6 +188,15 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
     branches.push({ name: `${b.name}.vent`, kind: 'valve', from: b.to, to: node(AMBIENT), valve: { rating: b.valve!.rating, operation: op }, vent: { of: k, set: op.set, band: op.band } });
   }
 
+  // Kinds read from their table alone: name parameters become nodes (after the lines, so that
+  // the order of the reservoirs, `ambient` among them, does not depend on them).
+  const elements: ElementModel[] = (doc.elements ?? []).map((e) => {
+    const table = ELEMENT_TABLES.find((k) => k.kind === e.kind)!;
+    const nodes: Record<string, NodeRef> = {};
+    for (const p of table.params) if (p.dimension === 'name' && typeof e.values[p.name] === 'string') nodes[p.name] = node(e.values[p.name] as string);
+    return { kind: e.kind, name: e.name, values: e.values, nodes, boundary: table.boundary === true };
+  });
+
   const chambers: ChamberModel[] = [];
   // Large networks repeat a few chamber designs: build each wall law once (its extrema search
   // and monotonicity scan cost thousands of evaluations) and share it, and check each
@@ -311,6 +321,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   if (errs.length) return { ok: false, diagnostics: errs };
   const model: Model = {
     doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders, controllers,
+    ...(elements.length ? { elements } : {}),
     simulate: doc.simulate, expect: doc.expect,
   };
   return { ok: true, value: model, warnings };

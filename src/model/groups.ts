@@ -15,6 +15,10 @@ export interface ChamberGroup {
   feeds: number[];
   /** Branch indices inside it or joining it to a reservoir. */
   branches: number[];
+  /** Indices of the elements of kinds read from their table (model.elements) that touch it. */
+  elements: number[];
+  /** One of those is a boundary (it exchanges gas with the surroundings): the group is open. */
+  boundary: boolean;
 }
 
 function find(parent: Int32Array, i: number): number {
@@ -40,13 +44,23 @@ export function chamberGroups(
     const c = find(parent, b.to.index);
     if (a !== c) parent[Math.max(a, c)] = Math.min(a, c);
   });
+  const chambersOf = (e: { nodes: Record<string, { kind: string; index: number }> }): number[] =>
+    Object.values(e.nodes).filter((n) => n.kind === 'chamber').map((n) => n.index);
+  for (const e of model.elements ?? []) {
+    const cs = chambersOf(e);
+    for (let k = 1; k < cs.length; k++) {
+      const a = find(parent, cs[0]);
+      const c = find(parent, cs[k]);
+      if (a !== c) parent[Math.max(a, c)] = Math.min(a, c);
+    }
+  }
   const byRoot = new Map<number, ChamberGroup>();
   const groups: ChamberGroup[] = [];
   for (let i = 0; i < nc; i++) {
     const r = find(parent, i);
     let g = byRoot.get(r);
     if (!g) {
-      g = { chambers: [], reservoirs: [], feeds: [], branches: [] };
+      g = { chambers: [], reservoirs: [], feeds: [], branches: [], elements: [], boundary: false };
       byRoot.set(r, g);
       groups.push(g);
     }
@@ -59,6 +73,14 @@ export function chamberGroups(
     const g = byRoot.get(find(parent, end))!;
     g.branches.push(k);
     for (const n of [b.from, b.to]) if (n.kind === 'reservoir' && !g.reservoirs.includes(n.index)) g.reservoirs.push(n.index);
+  });
+  (model.elements ?? []).forEach((e, k) => {
+    const cs = chambersOf(e);
+    if (!cs.length) return;
+    const g = byRoot.get(find(parent, cs[0]))!;
+    g.elements.push(k);
+    if (e.boundary) g.boundary = true;
+    for (const n of Object.values(e.nodes)) if (n.kind === 'reservoir' && !g.reservoirs.includes(n.index)) g.reservoirs.push(n.index);
   });
   model.feeds.forEach((f, k) => {
     if (feedActive(k)) byRoot.get(find(parent, f.into))!.feeds.push(k);

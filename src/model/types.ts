@@ -85,6 +85,19 @@ export interface ControllerModel {
   valve: number;
 }
 
+/**
+ * An element of a kind read from its table alone (netlist/kinds.ts: ELEMENT_TABLES): its values
+ * as read (SI), its `name` parameters resolved to nodes, and whether it is a boundary (it
+ * exchanges gas with the surroundings, so a group of chambers it touches is open).
+ */
+export interface ElementModel {
+  kind: string;
+  name: string;
+  values: Record<string, unknown>;
+  nodes: Record<string, NodeRef>;
+  boundary: boolean;
+}
+
 export interface Model {
   doc: NetlistDoc;
   gas: Gas;
@@ -97,6 +110,8 @@ export interface Model {
   feeds: FeedModel[];
   cylinders: CylinderModel[];
   controllers: ControllerModel[];
+  /** Elements of kinds read from their table alone (absent when there are none). */
+  elements?: ElementModel[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
 }

@@ -12,7 +12,7 @@ import { didYouMean, listChoices } from '../diag/did-you-mean.js';
 import type { Dimension } from '../units/dimensions.js';
 import { parseFraction } from '../units/quantity.js';
 import type { Checker } from './checker.js';
-import { EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
+import { ELEMENT_TABLES, EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
 import type { Names } from './names.js';
 import type { ChamberSpec, Comparison, ControllerSpec, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
 import type { YMap, YNode, YScalar } from './yaml-types.js';
@@ -23,7 +23,7 @@ const COMPARISONS = ['below', 'above', 'near'] as const;
 export const MAX_SAMPLES = 1_000_000;
 
 /** Dimension of each quantity; a controller's `error` takes its measure's (see probeValueKind). */
-export const QUANTITY_DIMENSION: Record<Exclude<ProbeQuantity, 'output' | 'error'>, Dimension> = {
+export const QUANTITY_DIMENSION: Record<string, Dimension> = {
   pressure: 'pressure',
   gauge: 'pressure',
   volume: 'volume',
@@ -38,6 +38,11 @@ export const QUANTITY_DIMENSION: Record<Exclude<ProbeQuantity, 'output' | 'error
   'impact-velocity': 'velocity',
   dissipated: 'energy',
 };
+
+/** The dimension of a probe quantity (built in, or declared by a kind's table). */
+function probeDimension(q: ProbeQuantity): Dimension {
+  return QUANTITY_DIMENSION[q] ?? ELEMENT_TABLES.find((k) => q in k.probes)!.probes[q];
+}
 
 export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): SimulateSpec | undefined {
   if (!node) {
@@ -88,10 +93,10 @@ export function probeValueKind(probe: Probe, controllers?: Map<string, Controlle
   if (probe.quantity === 'error') {
     const m = controllers?.get(probe.element)?.measure;
     if (!m || m.quantity === 'output' || m.quantity === 'error') return 'dimensionless';
-    const d = QUANTITY_DIMENSION[m.quantity];
+    const d = probeDimension(m.quantity);
     return d === 'pressure' ? 'pressure-difference' : d === 'temperature' ? 'temperature-difference' : d;
   }
-  const d = QUANTITY_DIMENSION[probe.quantity];
+  const d = probeDimension(probe.quantity);
   return d === 'pressure' ? 'absolute-pressure' : d;
 }
 
@@ -106,7 +111,7 @@ export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forContro
     return undefined;
   }
   const [, element, quantity] = m;
-  let kind: keyof typeof PROBE_QUANTITIES;
+  let kind: string;
   if (element === 'total') {
     kind = 'total';
     if (cx.names.has('total')) {
@@ -123,7 +128,7 @@ export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forContro
       ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? (forControl ? 'measure a chamber, a line or a valve' : 'probe a chamber, a line, a valve, a cylinder (or its side `<cylinder>.cap`), a controller, or `total.mass`'));
       return undefined;
     }
-    kind = entry.kind as keyof typeof PROBE_QUANTITIES;
+    kind = entry.kind;
   }
   const allowed: readonly string[] = PROBE_QUANTITIES[kind];
   const law = kind === 'chamber' ? cx.chambers.get(element)?.wall.law : undefined;

@@ -65,6 +65,7 @@ export type Section =
   | 'feed'
   | 'cylinder'
   | 'controller'
+  | 'element'
   | 'simulate'
   | 'expect';
 
@@ -453,6 +454,41 @@ export const PORT_START: KindTable = {
   ],
 };
 
+// ---- element kinds read from their table alone -------------------------------------------
+
+/**
+ * An element kind that needs no reading code of its own: the netlist section `key` maps names to
+ * entries whose keys are the table's parameters (a `name` parameter names a chamber, a reservoir
+ * or `ambient`). Its element lives in src/elements/ and is made by elements/registry.ts; see
+ * DEVELOPERS.md, "How to add an element kind".
+ */
+export interface ElementTable extends KindTable {
+  section: 'element';
+  /** The netlist section, e.g. `leaks`. */
+  key: string;
+  /** Quantities its channels offer to expectations (`<name>.<quantity>`), with their dimensions. */
+  probes: Readonly<Record<string, Dimension>>;
+  /** It exchanges gas with the surroundings: a group of chambers it touches is open. */
+  boundary?: boolean;
+}
+
+export const LEAK: ElementTable = {
+  kind: 'leak',
+  section: 'element',
+  key: 'leaks',
+  doc: 'a fixed leak: a sharp orifice from a chamber to the surroundings (compressible nozzle flow, choked and subsonic)',
+  probes: { flow: 'mass-flow', lost: 'mass' },
+  boundary: true,
+  params: [
+    p('from', 'name', 'the chamber that leaks'),
+    p('diameter', 'length', 'orifice diameter', { bounds: POSITIVE }),
+    opt('discharge-coefficient', 'dimensionless', 'discharge coefficient Cd (about 0.6 for a sharp-edged hole, common practice)', { default: 0.6, bounds: { gt: 0, le: 1 } }),
+  ],
+};
+
+/** Element kinds read from their table alone, in the order their sections are read. */
+export const ELEMENT_TABLES: ElementTable[] = [LEAK];
+
 // ---- top level -----------------------------------------------------------------------------
 
 export const AMBIENT: KindTable = {
@@ -556,6 +592,7 @@ export const TOP: KindTable = {
     opt('feeds', 'structure', 'feeds by name', { shape: 'feeds' }),
     opt('cylinders', 'structure', 'cylinders by name', { shape: 'cylinders' }),
     opt('controllers', 'structure', 'controllers by name', { shape: 'controllers' }),
+    ...ELEMENT_TABLES.map((k) => opt(k.key, 'structure', `${k.kind}s by name`, { shape: k.key })),
     p('simulate', 'structure', 'duration and solver settings', { shape: 'simulate' }),
     opt('expect', 'structure', 'checks for CI', { shape: 'expect' }),
   ],
@@ -565,7 +602,7 @@ export const TOP: KindTable = {
 export const ALL_TABLES: KindTable[] = [
   TOP, AMBIENT, CUSTOM_GAS, VISCOSITY, CHAMBER, ...WALL_LAWS, START, LIMITS, RESERVOIR, LINE, VALVE,
   ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, REGULATES, SCHEDULE_STEP, FEED, CONTROLLER, OUTPUT_LIMITS, CYLINDER, DEAD_VOLUME, SPRING, FRICTION,
-  MOUNTING, CYLINDER_START, PORT_START, SIMULATE, EXPECT, NEAR, SETTLES,
+  MOUNTING, CYLINDER_START, PORT_START, ...ELEMENT_TABLES, SIMULATE, EXPECT, NEAR, SETTLES,
 ];
 
 /** The table of a wall law, or undefined. */
@@ -573,8 +610,8 @@ export function wallLaw(kind: string): KindTable | undefined {
   return WALL_LAWS.find((w) => w.kind === kind);
 }
 
-/** Probe quantities by element kind. */
-export const PROBE_QUANTITIES = {
+/** Probe quantities by element kind (kinds read from their table bring their own). */
+export const PROBE_QUANTITIES: Readonly<Record<string, readonly string[]>> = {
   chamber: ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch'],
   line: ['flow', 'reynolds'],
   valve: ['flow', 'reynolds'],
@@ -582,4 +619,5 @@ export const PROBE_QUANTITIES = {
   port: ['pressure', 'gauge', 'volume', 'mass', 'temperature'],
   controller: ['output', 'error'],
   total: ['mass'],
-} as const;
+  ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, Object.keys(k.probes)])),
+};

@@ -5,12 +5,14 @@
  */
 import { didYouMean } from '../diag/did-you-mean.js';
 import { IDENTIFIER, type Checker, type Where } from './checker.js';
+import { ELEMENT_TABLES } from './kinds.js';
 import type { YMap, YNode } from './yaml-types.js';
 
-export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'cylinder' | 'controller';
+/** Built-in kinds, and kinds read from their table alone (kinds.ts: ELEMENT_TABLES). */
+export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'cylinder' | 'controller' | (string & {});
 /** What a name can stand for: an element, or one side of a cylinder (`clamp.cap`, `clamp.rod`). */
 export type NameKind = ElementKind | 'port';
-export const SECTIONS: Record<ElementKind, string> = {
+export const SECTIONS: Readonly<Record<string, string>> = {
   chamber: 'chambers',
   reservoir: 'reservoirs',
   line: 'lines',
@@ -18,6 +20,7 @@ export const SECTIONS: Record<ElementKind, string> = {
   feed: 'feeds',
   cylinder: 'cylinders',
   controller: 'controllers',
+  ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, k.key])),
 };
 export const AMBIENT = 'ambient';
 /** A cylinder's side as a node: `<cylinder>.cap` or `<cylinder>.rod`. */

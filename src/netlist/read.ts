@@ -14,7 +14,8 @@ import { Checker } from './checker.js';
 import { drivenValves, readController } from './controllers.js';
 import { readExpect, readSimulate } from './expect.js';
 import { namedGas } from './gases.js';
-import { AMBIENT, CUSTOM_GAS, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
+import { AMBIENT, CUSTOM_GAS, ELEMENT_TABLES, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
+import { readElement } from './elements.js';
 import { collectNames, registerPorts, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
 import { readPressureSeries } from './time-series.js';
 import type { ChamberSpec, ControllerSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
@@ -82,7 +83,7 @@ function readGas(ck: Checker, root: YMap): GasSpec {
 /** The element sections as maps, their names registered. */
 function collectSections(ck: Checker, root: YMap, names: Names): Record<ElementKind, NameEntry[]> {
   const out = {} as Record<ElementKind, NameEntry[]>;
-  for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
+  for (const kind of Object.keys(SECTIONS)) {
     const key = SECTIONS[kind];
     const node = ck.get(root, key);
     const map = node ? ck.map(node, `\`${key}\``, `\`${key}\` maps names to definitions, e.g. \`${key}:\\n  name_1: {...}\``, true) : undefined;
@@ -114,7 +115,7 @@ function readReservoir(ck: Checker, entry: NameEntry, duration?: number): Reserv
  */
 function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, NameEntry[]>): void {
   const touched = new Set<string>();
-  for (const key of [SECTIONS.line, SECTIONS.valve, SECTIONS.feed]) {
+  for (const key of [SECTIONS.line, SECTIONS.valve, SECTIONS.feed, ...ELEMENT_TABLES.map((k) => k.key)]) {
     const section = ck.get(root, key);
     if (section?.kind !== 'map') continue;
     for (const element of section.entries) {
@@ -127,7 +128,7 @@ function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, N
   for (const c of sections.chamber) {
     if (!touched.has(c.name)) {
       ck.error(c.where, 'unconnected-chamber', `chamber \`${c.name}\` is not connected to anything`,
-        'connect it with a line, a valve or a feed, or remove it (to keep it sealed, join it to `ambient` by a valve with `initially: closed`)');
+        'connect it with a line, a valve, a feed or another element, or remove it (to keep it sealed, join it to `ambient` by a valve with `initially: closed`)');
     }
   }
 }
@@ -185,11 +186,13 @@ export function readNetlistTree(tree: YamlTree, source: string, file: string): R
   for (const v of valves) if (driven.has(v.name)) { carriesDriven.add(v.name); if (v.inLine) carriesDriven.add(v.inLine); }
   const controllers = defined(sections.controller.map((e) => readController(ck, e, names, driven, { names, chambers: chamberMap, duration: simulate?.duration }, carriesDriven)));
   const cylinders = defined(sections.cylinder.map((e) => readCylinder(ck, e, heat as NetlistDoc['heat'])));
+  const elements = defined(ELEMENT_TABLES.flatMap((k) => sections[k.kind].map((e) => readElement(ck, e, k, names))));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {
     const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, cylinder: cylinders, controller: controllers };
-    for (const kind of Object.keys(SECTIONS) as ElementKind[]) {
+    for (const k of ELEMENT_TABLES) read[k.kind] = elements.filter((e) => e.kind === k.kind);
+    for (const kind of Object.keys(SECTIONS)) {
       const got = new Set(read[kind].map((x) => x.name)); // a set: ten thousand chambers are read
       for (const e of sections[kind]) {
         if (!got.has(e.name)) ck.error(e.where, 'invalid-element', `${kind} \`${e.name}\` could not be read`, 'check its keys and values');
@@ -218,6 +221,7 @@ export function readNetlistTree(tree: YamlTree, source: string, file: string): R
     feeds,
     cylinders,
     controllers,
+    ...(elements.length ? { elements } : {}),
     simulate,
     expect,
     defaulted: ck.defaulted.slice(),

@@ -6,7 +6,7 @@
  */
 import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
 import {
-  AMBIENT, CHAMBER, CHECK, CONTROLLER, CUSTOM_GAS, CYLINDER, CYLINDER_START, DEAD_VOLUME, EXPECT, FEED, FRICTION, GAS_NAMES, LIMITS,
+  AMBIENT, CHAMBER, CHECK, CONTROLLER, CUSTOM_GAS, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, EXPECT, FEED, FRICTION, GAS_NAMES, LIMITS,
   LINE, MOUNTING, NEAR, OUTPUT_LIMITS, PORT_START, REGULATES, RELIEF, RESERVOIR, SCHEDULE_STEP, SETTLES, SIMULATE, SPRING, START, TOP, VALVE,
   VALVE_OPERATIONS, VALVE_RATINGS, VISCOSITY, WALL_LAWS,
   type Bounds, type KindTable, type ParamSpec,
@@ -141,6 +141,7 @@ function shapes(): Record<string, () => Schema> {
         { type: 'array', minItems: 1, items: pair(timeValue, quantity('force', 'Force'), '[time, force]') },
       ],
     }),
+    ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.key, () => namedMap(objectOf(k), `${k.doc[0].toUpperCase()}${k.doc.slice(1)}, by name.`)])),
     simulate: () => objectOf(SIMULATE),
     expect: () => ({ type: 'array', description: 'Checks for CI.', items: objectOf(EXPECT) }),
     at: () => ({ description: 'A time or `end`.', anyOf: [{ const: 'end' }, timeValue] }),

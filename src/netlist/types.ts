@@ -185,11 +185,12 @@ export interface SimulateSpec {
   maxWall?: number;        // s
 }
 
+/** Quantities of the built-in kinds; kinds read from their table bring their own (kinds.ts). */
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
   | 'flow' | 'reynolds'
   | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated'
-  | 'output' | 'error';
+  | 'output' | 'error' | (string & {});
 
 export interface Probe {
   /** Element name (a cylinder's side: `clamp.cap`), or 'total' with quantity 'mass'. */
@@ -223,6 +224,17 @@ export type ExpectSpec =
   /** Every chamber's pressure and volume, or with `probe` that one probe, stay within band of their final values after `within`. */
   | { kind: 'settles'; name: string; within: number; band: number; probe?: Probe; pos: SourcePos };
 
+/**
+ * An element of a kind read from its table alone (kinds.ts: ELEMENT_TABLES): its parameters as
+ * the table reads them (SI numbers, names as text), by parameter name.
+ */
+export interface ElementSpec {
+  kind: string;
+  name: string;
+  values: Record<string, unknown>;
+  pos: SourcePos;
+}
+
 export interface NetlistDoc {
   file: string;
   /** The source text, kept for reports. */
@@ -239,6 +251,8 @@ export interface NetlistDoc {
   feeds: FeedSpec[];
   cylinders: CylinderSpec[];
   controllers: ControllerSpec[];
+  /** Elements of kinds read from their table alone. */
+  elements?: ElementSpec[];
   simulate: SimulateSpec;
   expect: ExpectSpec[];
   /** Dotted netlist paths of optional parameters that took their default (e.g. `lines.supply.roughness`). */

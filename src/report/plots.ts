@@ -11,6 +11,7 @@ import { chartSvg, styleAt, type ChartBand, type ChartEvent, type ChartPoint, ty
 import { sigText } from './svg.js';
 import { MAX_DIAGRAM_CHAMBERS, networkDiagram } from './diagram.js';
 import { chamberStyles, channel, flowPaths } from './report-data.js';
+import { measuredFigures } from './measured-plots.js';
 
 export interface Figure {
   /** Short name, also the file name without `.svg`. */
@@ -358,5 +359,6 @@ export function reportFigures(input: ReportInput, opts: FigureOptions = {}): Fig
       series: c.series.length,
     });
   }
+  figs.push(...measuredFigures(input, opts));
   return figs;
 }

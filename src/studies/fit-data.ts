@@ -53,11 +53,13 @@ interface Column {
   offset: number;
 }
 
-function diag(file: string, line: number, column: number, code: string, message: string, hint: string): Diagnostic {
+/** An error diagnostic of a data file. */
+export function dataDiag(file: string, line: number, column: number, code: string, message: string, hint: string): Diagnostic {
   return { code, severity: 'error', message, file, line, column, path: [], hint };
 }
 
-function splitCells(line: string, delimiter: string): { text: string; column: number }[] {
+/** The cells of a CSV line with their 1-based columns (quotes around a cell removed). */
+export function splitCells(line: string, delimiter: string): { text: string; column: number }[] {
   const out: { text: string; column: number }[] = [];
   let start = 0;
   for (;;) {
@@ -88,7 +90,7 @@ export function readBenchCsv(text: string, file: string, geometry: BenchGeometry
   const errors: Diagnostic[] = [];
   const notes: string[] = [];
   const headerAt = lines.findIndex((l) => l.trim() !== '' && !l.trimStart().startsWith('#'));
-  if (headerAt < 0) return { ok: false, diagnostics: [diag(file, 1, 1, 'data-empty', 'the file has no data', 'start with a header such as `volume [mL],gauge [kPa]`, then one row per reading')] };
+  if (headerAt < 0) return { ok: false, diagnostics: [dataDiag(file, 1, 1, 'data-empty', 'the file has no data', 'start with a header such as `volume [mL],gauge [kPa]`, then one row per reading')] };
   const header = lines[headerAt];
   const delimiter = header.includes('\t') ? '\t' : header.includes(';') && !header.includes(',') ? ';' : ',';
   const cells = splitCells(header, delimiter);
@@ -101,7 +103,7 @@ export function readBenchCsv(text: string, file: string, geometry: BenchGeometry
     const name = (m?.[1] ?? cell.text).trim();
     const unit = (m?.[2] ?? m?.[3] ?? '').trim();
     const kind = classify(name);
-    const at = (message: string, hint: string): void => { errors.push(diag(file, headerAt + 1, cell.column, 'data-header', message, hint)); };
+    const at = (message: string, hint: string): void => { errors.push(dataDiag(file, headerAt + 1, cell.column, 'data-header', message, hint)); };
     if (kind === undefined || kind === 'time') {
       if (kind === undefined) notes.push(`column \`${cell.text}\` ignored`);
       return;
@@ -131,8 +133,8 @@ export function readBenchCsv(text: string, file: string, geometry: BenchGeometry
     if (!q.ok) { at(`column \`${cell.text}\`: ${q.message}`, q.hint); return; }
     pressure = { kind, col: { index, header: cell.text, column: cell.column, factor: q.value, offset: reference === 'abs' ? -geometry.ambient : 0 } };
   });
-  if (!errors.length && !size) errors.push(diag(file, headerAt + 1, 1, 'data-header', 'no column gives the size of the sample', 'name one column `volume [mL]`, `stretch [-]` or `radius [mm]`'));
-  if (!errors.length && !pressure) errors.push(diag(file, headerAt + 1, 1, 'data-header', 'no column gives the pressure', 'name one column `gauge [kPa]` or `pressure [kPa abs]`'));
+  if (!errors.length && !size) errors.push(dataDiag(file, headerAt + 1, 1, 'data-header', 'no column gives the size of the sample', 'name one column `volume [mL]`, `stretch [-]` or `radius [mm]`'));
+  if (!errors.length && !pressure) errors.push(dataDiag(file, headerAt + 1, 1, 'data-header', 'no column gives the pressure', 'name one column `gauge [kPa]` or `pressure [kPa abs]`'));
   if (errors.length || !size || !pressure) return { ok: false, diagnostics: errors };
 
   const rows: BenchRow[] = [];
@@ -145,7 +147,7 @@ export function readBenchCsv(text: string, file: string, geometry: BenchGeometry
     const c = splitCells(line, delimiter);
     const need = Math.max(sz.col.index, pr.col.index) + 1;
     const bad = (column: number, message: string, hint: string): void => {
-      if (errors.length < MAX_ROW_ERRORS) errors.push(diag(file, i + 1, column, 'data-row', message, hint));
+      if (errors.length < MAX_ROW_ERRORS) errors.push(dataDiag(file, i + 1, column, 'data-row', message, hint));
       else more++;
     };
     if (c.length < need) { bad(1, `line ${i + 1} has ${c.length} value${c.length === 1 ? '' : 's'}, fewer than the ${need} the header needs`, `give every row a value for \`${sz.col.header}\` and \`${pr.col.header}\``); continue; }
@@ -165,8 +167,8 @@ export function readBenchCsv(text: string, file: string, geometry: BenchGeometry
     if (!(s > 0)) { bad(c[sz.col.index].column, `the ${sz.kind} \`${c[sz.col.index].text}\` is not positive`, 'sizes must be positive'); continue; }
     rows.push({ line: i + 1, stretch, gauge: p });
   }
-  if (more) errors.push(diag(file, 0, 0, 'data-row', `and ${more} more bad row${more === 1 ? '' : 's'}`, 'fix the rows above first'));
+  if (more) errors.push(dataDiag(file, 0, 0, 'data-row', `and ${more} more bad row${more === 1 ? '' : 's'}`, 'fix the rows above first'));
   if (errors.length) return { ok: false, diagnostics: errors };
-  if (rows.length === 0) return { ok: false, diagnostics: [diag(file, headerAt + 1, 1, 'data-empty', 'the file has a header but no rows', 'add one row per reading')] };
+  if (rows.length === 0) return { ok: false, diagnostics: [dataDiag(file, headerAt + 1, 1, 'data-empty', 'the file has a header but no rows', 'add one row per reading')] };
   return { ok: true, value: { rows, size: sz.kind, columns: { size: sz.col.header, pressure: pr.col.header }, notes }, warnings: [] };
 }

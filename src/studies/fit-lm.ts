@@ -118,19 +118,24 @@ function project(x: Float64Array, o: LmOptions): void {
   }
 }
 
-/** Minimises ½‖r(x)‖² from x0. Never throws for a bad problem: the status says what happened. */
-export function levenbergMarquardt(p: LmProblem, x0: ArrayLike<number>, options: LmOptions = {}): LmResult {
+/** What the iteration asks of its caller: the residuals or the Jacobian at a point (filled into `out`). */
+export type LmRequest = { kind: 'residuals' | 'jacobian'; x: Float64Array; out: Float64Array };
+
+/**
+ * The iteration itself as a generator: it yields each evaluation it needs and receives whether
+ * it succeeded, so one algorithm serves a synchronous problem (levenbergMarquardt) and one whose
+ * evaluations run elsewhere, e.g. simulations on worker threads (levenbergMarquardtAsync).
+ */
+export function* lmIterate(m: number, n: number, x0: ArrayLike<number>, options: LmOptions = {}): Generator<LmRequest, LmResult, boolean> {
   const o = { ...DEFAULTS, ...options };
-  const { m, n } = p;
   const x = Float64Array.from(x0);
   project(x, o);
   const r = new Float64Array(m);
   const J = new Float64Array(m * n);
-  const jac = (at: Float64Array, out: Float64Array): boolean => (p.jacobian ? p.jacobian(at, out) : finiteJacobian(p, at, out));
   const done = (status: LmStatus, iterations: number): LmResult => ({
     x, status, converged: status === 'gradient' || status === 'step' || status === 'reduction', iterations, cost: 0.5 * sumSquares(r), r, J,
   });
-  if (!p.residuals(x, r) || !jac(x, J)) return done('not-evaluable', 0);
+  if (!(yield { kind: 'residuals', x, out: r }) || !(yield { kind: 'jacobian', x, out: J })) return done('not-evaluable', 0);
 
   const A = new Float64Array(n * n);
   const g = new Float64Array(n);
@@ -175,7 +180,7 @@ export function levenbergMarquardt(p: LmProblem, x0: ArrayLike<number>, options:
     if (norm(h) <= o.xtol * (norm(x) + o.xtol)) return done('step', k);
     let predicted = 0; // L(0) − L(h) = ½ hᵀ(μDh − g)
     for (let j = 0; j < n; j++) predicted += 0.5 * h[j] * (mu * D[j] * h[j] - g[j]);
-    const ok = p.residuals(xNew, rNew);
+    const ok: boolean = yield { kind: 'residuals', x: xNew, out: rNew };
     const FNew = ok ? 0.5 * sumSquares(rNew) : Infinity;
     const rho = ok && predicted > 0 ? (F - FNew) / predicted : -1;
     if (rho > 0) {
@@ -183,7 +188,7 @@ export function levenbergMarquardt(p: LmProblem, x0: ArrayLike<number>, options:
       x.set(xNew);
       r.set(rNew);
       F = FNew;
-      if (!jac(x, J)) return done('not-evaluable', k);
+      if (!(yield { kind: 'jacobian', x, out: J })) return done('not-evaluable', k);
       normalEquations(J, r, m, n, A, g);
       for (let j = 0; j < n; j++) D[j] = Math.max(D[j], A[j * n + j]);
       mu *= Math.max(1 / 3, 1 - (2 * rho - 1) ** 3);
@@ -197,6 +202,38 @@ export function levenbergMarquardt(p: LmProblem, x0: ArrayLike<number>, options:
     }
   }
   return done('max-iterations', o.maxIterations);
+}
+
+/** Minimises ½‖r(x)‖² from x0. Never throws for a bad problem: the status says what happened. */
+export function levenbergMarquardt(p: LmProblem, x0: ArrayLike<number>, options: LmOptions = {}): LmResult {
+  const it = lmIterate(p.m, p.n, x0, options);
+  let step = it.next(true);
+  while (!step.done) {
+    const q = step.value;
+    const ok = q.kind === 'residuals' ? p.residuals(q.x, q.out) : p.jacobian ? p.jacobian(q.x, q.out) : finiteJacobian(p, q.x, q.out);
+    step = it.next(ok);
+  }
+  return step.value;
+}
+
+/** A problem whose evaluations are asynchronous (simulations on worker threads). */
+export interface AsyncLmProblem {
+  m: number;
+  n: number;
+  residuals(x: Float64Array, r: Float64Array): Promise<boolean>;
+  jacobian(x: Float64Array, J: Float64Array): Promise<boolean>;
+}
+
+/** levenbergMarquardt for a problem with asynchronous evaluations: the same iteration. */
+export async function levenbergMarquardtAsync(p: AsyncLmProblem, x0: ArrayLike<number>, options: LmOptions = {}): Promise<LmResult> {
+  const it = lmIterate(p.m, p.n, x0, options);
+  let step = it.next(true);
+  while (!step.done) {
+    const q = step.value;
+    const ok = q.kind === 'residuals' ? await p.residuals(q.x, q.out) : await p.jacobian(q.x, q.out);
+    step = it.next(ok);
+  }
+  return step.value;
 }
 
 /**

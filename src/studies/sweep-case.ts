@@ -10,7 +10,7 @@ import { mapOverrideDiagnostics, overrideValue, readWithOverrides, splitPath, ty
 import { readNetlistTree } from '../netlist/read.js';
 import { parseYamlTree } from '../netlist/yaml-tree.js';
 import type { YamlTree } from '../netlist/yaml-types.js';
-import type { RunResult } from '../transient/results.js';
+import { cylinderSummary, type RunResult } from '../transient/results.js';
 import type { CaseSpec, ParamValue } from './sweep-spec.js';
 import { simulate } from '../transient/transient.js';
 
@@ -36,6 +36,18 @@ export interface ChamberOutcome {
   peak_gauge: number;
 }
 
+/** What a sweep reports of each cylinder (SI). */
+export interface CylinderOutcome {
+  /** Final position, m. */
+  position: number;
+  /** Largest speed, m/s. */
+  peak_speed: number;
+  /** The first completed stroke's duration, s, or null. */
+  stroke_time: number | null;
+  /** Largest impact speed at a stop, m/s, or null when it never reached one. */
+  impact_speed: number | null;
+}
+
 export interface CaseResult {
   index: number;
   group: number;
@@ -54,6 +66,8 @@ export interface CaseResult {
   settling_time: number | null;
   expectations: { name: string; passed: boolean; actual: number }[];
   chambers: Record<string, ChamberOutcome>;
+  /** Present when the netlist has cylinders. */
+  cylinders?: Record<string, CylinderOutcome>;
   /** (final − initial − inflow)/initial, the run's mass balance. */
   mass_drift: number | null;
   /** Warnings of this case that the unmodified netlist does not have (limits exceeded, ...). */
@@ -157,6 +171,17 @@ export class CaseRunner {
         chambers[c.name] = { gauge: s.final.gauge, volume: s.final.volume, stretch: s.final.stretch ?? null, peak_gauge: s.peak.gauge };
       }
     }
+    const cylinders: Record<string, CylinderOutcome> = {};
+    if (completed) {
+      for (const c of model.cylinders) {
+        const s = cylinderSummary(r, c.name);
+        if (!s) continue;
+        cylinders[c.name] = {
+          position: s.final.position, peak_speed: Math.abs(s.peak.velocity), stroke_time: s.stroke_time,
+          impact_speed: s.impacts.length ? Math.max(...s.impacts.map((i) => Math.abs(i.velocity))) : null,
+        };
+      }
+    }
     const names = model.chambers.map((c) => c.name);
     const end = completed ? outcomeOf(r, names) : { outcome: null, settling_time: null };
     return {
@@ -168,6 +193,7 @@ export class CaseRunner {
       settling_time: end.settling_time,
       expectations: r.expectations.map((e) => ({ name: e.name, passed: e.passed, actual: e.actual })),
       chambers,
+      ...(model.cylinders.length ? { cylinders } : {}),
       mass_drift: r.mass.drift,
       warnings: [...m.warnings.map(formatDiagnostic), ...r.warnings],
     };

@@ -14,18 +14,18 @@ import type { Diagnostic } from '../diag/diagnostic.js';
 import { CaseRunner, type CaseResult } from './sweep-case.js';
 import type { CaseSpec, ParamValue } from './sweep-spec.js';
 
-/** Where the bundled worker may be, relative to the module holding this code. */
+/** Where a bundled worker of src/studies may be, relative to the module holding this code. */
 const WORKER_CANDIDATES = [
-  './studies/sweep-worker.js', // from dist/index.js or a chunk in dist/
-  './sweep-worker.js', // from a bundle in dist/studies/
-  '../studies/sweep-worker.js', // from dist/cli/
-  '../../dist/studies/sweep-worker.js', // from src/studies/ (tests)
+  './studies/NAME.js', // from dist/index.js or a chunk in dist/
+  './NAME.js', // from a bundle in dist/studies/
+  '../studies/NAME.js', // from dist/cli/
+  '../../dist/studies/NAME.js', // from src/studies/ (tests)
 ];
 
 /** The worker script, or undefined when it cannot be found (the pool then runs in-thread). */
-export function workerScript(): URL | undefined {
+export function workerScript(name = 'sweep-worker'): URL | undefined {
   for (const rel of WORKER_CANDIDATES) {
-    const url = new URL(rel, import.meta.url);
+    const url = new URL(rel.replace('NAME', name), import.meta.url);
     if (url.protocol === 'file:' && existsSync(fileURLToPath(url))) return url;
   }
   return undefined;

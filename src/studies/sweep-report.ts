@@ -7,7 +7,7 @@
  */
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { display, type DisplayKind } from '../units/display.js';
-import type { CaseResult, ChamberOutcome } from './sweep-case.js';
+import type { CaseResult, ChamberOutcome, CylinderOutcome } from './sweep-case.js';
 import type { ParamValue } from './sweep-spec.js';
 import { summarise, wilson, type NumericSummary, type Proportion } from './sweep-stats.js';
 import { keepLargest } from '../transient/select.js';
@@ -48,6 +48,13 @@ const CHAMBER_FIELDS: { field: keyof ChamberOutcome; unit: string; display: Disp
   { field: 'peak_gauge', unit: 'Pa', display: 'gauge' },
 ];
 
+const CYLINDER_FIELDS: { field: keyof CylinderOutcome; unit: string }[] = [
+  { field: 'position', unit: 'm' },
+  { field: 'peak_speed', unit: 'm/s' },
+  { field: 'stroke_time', unit: 's' },
+  { field: 'impact_speed', unit: 'm/s' },
+];
+
 function finite(x: number | null | undefined): number {
   return typeof x === 'number' ? x : NaN;
 }
@@ -79,6 +86,9 @@ export function summariseCases(study: Study, cases: readonly CaseResult[]): Swee
       if (f.field === 'stretch' && !hasField(cases, name, 'stretch')) continue;
       numeric.push({ key: `${name}.${f.field}`, unit: f.unit, ...summarise(cases.map((c) => finite(c.chambers[name]?.[f.field]))) });
     }
+  }
+  for (const name of study.cylinders ?? []) {
+    for (const f of CYLINDER_FIELDS) numeric.push({ key: `${name}.${f.field}`, unit: f.unit, ...summarise(cases.map((c) => finite(c.cylinders?.[name]?.[f.field]))) });
   }
   numeric.push({ key: 'settling_time', unit: 's', ...summarise(cases.map((c) => finite(c.settling_time))) });
   const cat: CategoricalField[] = [];
@@ -135,6 +145,7 @@ function caseJson(study: Study, c: CaseResult): CaseResult {
     settling_time: c.settling_time,
     expectations: c.expectations.map((e) => ({ name: e.name, passed: e.passed, actual: e.actual })),
     chambers,
+    ...(c.cylinders ? { cylinders: c.cylinders } : {}),
     mass_drift: c.mass_drift,
     warnings: [...c.warnings],
   };
@@ -193,6 +204,13 @@ export function sweepCsv(r: SweepResult): string {
       head.push(`${name}.${f.field} [${f.unit}]`);
     }
   }
+  const cylinderCols: { name: string; field: keyof CylinderOutcome }[] = [];
+  for (const name of study.cylinders ?? []) {
+    for (const f of CYLINDER_FIELDS) {
+      cylinderCols.push({ name, field: f.field });
+      head.push(`${name}.${f.field} [${f.unit}]`);
+    }
+  }
   head.push('mass drift [-]', 'message');
   const lines = [head.map(field).join(',')];
   for (const c of cases) {
@@ -202,6 +220,7 @@ export function sweepCsv(r: SweepResult): string {
     const passed = c.expectations.filter((e) => e.passed).length;
     row.push(String(passed), String(c.expectations.length - passed));
     for (const col of chamberCols) row.push(num(c.chambers[col.name]?.[col.field] as number | null | undefined));
+    for (const col of cylinderCols) row.push(num(c.cylinders?.[col.name]?.[col.field]));
     row.push(num(c.mass_drift), field(c.message));
     lines.push(row.join(','));
   }

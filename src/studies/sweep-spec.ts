@@ -32,7 +32,7 @@ const MAX_RANGE_POINTS = 100_000;
 export type VaryKind = 'list' | 'range' | 'normal' | 'uniform' | 'tolerance';
 
 /** Maps x in one unit to SI: si = offset + factor·x (affine for °C and °F). */
-interface UnitMap { unit: string; reference?: PressureReference; anr?: boolean; offset: number; factor: number; siLabel: string; base: number[] }
+export interface UnitMap { unit: string; reference?: PressureReference; anr?: boolean; offset: number; factor: number; siLabel: string; base: number[] }
 
 export interface Distribution {
   kind: 'normal' | 'uniform';
@@ -99,7 +99,7 @@ function sameBase(a: number[], b: number[]): boolean {
   return a.length === b.length && a.every((x, i) => x === b[i]);
 }
 
-function unitMap(v: ScalarValue): UnitMap {
+export function unitMap(v: ScalarValue): UnitMap {
   if (v.unit === '%') return { unit: '%', offset: 0, factor: 0.01, siLabel: '-', base: v.base };
   if (v.unit === '') return { unit: '', offset: 0, factor: 1, siLabel: '-', base: v.base };
   const dim = nameDimension(v.base);

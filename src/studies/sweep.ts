@@ -31,6 +31,8 @@ export interface Study {
   groups: number;
   cases: number;
   chambers: string[];
+  /** Present when the netlist has cylinders. */
+  cylinders?: string[];
   expectations: string[];
 }
 
@@ -168,6 +170,7 @@ function planSweep(opts: SweepOptions): Result<PreparedSweep> {
     groups: plan.groups,
     cases: plan.cases,
     chambers: model.value.chambers.map((c) => c.name),
+    ...(model.value.cylinders.length ? { cylinders: model.value.cylinders.map((c) => c.name) } : {}),
     expectations: model.value.expect.map((e) => e.name),
   };
   return { ok: true, value: { plan, study, indices: shardIndices(plan.cases, opts.shard) }, warnings: [...doc.warnings, ...model.warnings] };

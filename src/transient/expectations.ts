@@ -28,6 +28,7 @@
  * Numerical Recipes, 3rd ed. (2007), §10.2; vertex of the interpolating parabola, ibid. §10.3,
  * eq. 10.3.1.
  */
+import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import type { ExpectSpec, ProbeQuantity } from '../netlist/types.js';
 import type { DenseOutput } from '../solve/types.js';
 import type { DisplayKind } from '../units/display.js';
@@ -92,18 +93,6 @@ function unitFor(kind: DisplayKind, magnitude: number): Shown {
     case 'energy': return { scale: 1, offset: 0, unit: ' J' };
     case 'stretch':
     case 'reynolds': return { scale: 1, offset: 0, unit: '' };
-  }
-}
-
-/** How a probe quantity is shown (a controller's error in SI: its dimension is that of what it measures). */
-function displayKindOf(q: ProbeQuantity): DisplayKind {
-  switch (q) {
-    case 'output': return 'opening';
-    case 'error': return 'reynolds';
-    case 'stroke-time': return 'time';
-    case 'impact-velocity': return 'velocity';
-    case 'dissipated': return 'energy';
-    default: return q;
   }
 }
 
@@ -188,6 +177,19 @@ class NodeSet {
   constructor(width: number) {
     this.rows = Array.from({ length: NODES }, () => new Float64Array(width));
   }
+}
+
+/** How a probe quantity is shown: built-in quantities by name, a kind's own by its dimension (kinds.ts). */
+function displayKindOf(q: string): DisplayKind {
+  // a controller's output is an opening; its error is shown in SI (the dimension of what it measures)
+  if (q === 'output') return 'opening';
+  if (q === 'stroke-time') return 'time';
+  if (q === 'impact-velocity') return 'velocity';
+  if (q === 'dissipated') return 'energy';
+  const named: readonly string[] = ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch', 'flow', 'reynolds', 'time', 'position', 'velocity', 'energy'];
+  if (named.includes(q)) return q as DisplayKind;
+  const dim = ELEMENT_TABLES.find((k) => q in k.probes)?.probes[q];
+  return dim === 'mass-flow' ? 'flow' : dim === 'mass' || dim === 'volume' || dim === 'temperature' || dim === 'time' ? dim : dim === 'pressure' ? 'pressure' : 'reynolds';
 }
 
 export class ExpectationMonitor {
@@ -417,7 +419,7 @@ export class ExpectationMonitor {
     }
     const stat = 'over' in s.when ? `${s.when.stat} of ` : '';
     const gauge = q === 'gauge';
-    const kind: DisplayKind = displayKindOf(q);
+    const kind: DisplayKind = q === 'stroke-time' ? 'time' : q === 'impact-velocity' ? 'velocity' : q === 'dissipated' ? 'energy' : displayKindOf(q);
     // pressures are compared absolute and shown (and reported) in the probe's reference
     const ref = (x: number): number => (gauge ? x - this.pa : x);
     const actual = ref(v);

@@ -118,7 +118,7 @@ export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEven
   const groups = chamberGroups(model, everConducts, (k) => model.feeds[k].initially > 0 || model.feeds[k].steps.some((s) => s.open > 0));
   return groups.map((g): GroupOutcome => {
     const names = g.chambers.map((c) => model.chambers[c].name);
-    const closed = g.reservoirs.length === 0 && g.feeds.length === 0;
+    const closed = g.reservoirs.length === 0 && g.feeds.length === 0 && !g.boundary;
     const base = { chambers: names, closed, band: SETTLE_BAND };
     if (times.length < 4) {
       return { ...base, outcome: 'moving', settling_time: null, evidence: 'too few samples to judge' };

@@ -112,9 +112,22 @@ export interface ReportInput {
   equilibriaNote?: string;
   /** plenum's version, for the report's footer. */
   version?: string;
+  /** Measured channels to overlay (`plenum report --data`). */
+  measured?: MeasuredOverlay[];
+}
+
+/** One measured channel of a recording with the simulated values at its times (dense output). SI, as the channel. */
+export interface MeasuredOverlay {
+  file: string;
+  /** Probe key `<element>.<quantity>`. */
+  key: string;
+  times: number[];
+  values: number[];
+  simulated: number[];
 }
 
 export interface ReportInputOptions {
+  measured?: MeasuredOverlay[];
   equilibria?: EquilibriumMark[];
   equilibriaNote?: string;
   version?: string;
@@ -281,6 +294,7 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
     topology: { chambers, reservoirs, lines, valves, feeds, cylinders },
     walls,
     equilibria: options.equilibria,
+    ...(options.measured ? { measured: options.measured } : {}),
     equilibriaNote: options.equilibriaNote,
     version: options.version,
   };

@@ -108,6 +108,8 @@ export interface RunResult {
   /** How each group of chambers ends the run (always set by `simulate`). */
   outcomes?: GroupOutcome[];
   trace: Trace;
+  /** Channel values at the times of `SimulateOptions.probe` (probed[c][k]), from the dense output. */
+  probed?: Float64Array[];
   /** Ambient pressure (Pa) used for gauge values, for printing. */
   ambient: number;
 }

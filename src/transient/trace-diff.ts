@@ -13,8 +13,8 @@
 
 /** A run as `plenum diff` reads it. Traces are per channel; the summary is flat. */
 export interface TraceFile {
-  /** What the file was: a baseline, a CSV trace, or a result JSON (summary only). */
-  kind: 'baseline' | 'csv' | 'result';
+  /** What the file was: a baseline, a CSV trace, a result JSON (summary only), or a bench recording. */
+  kind: 'baseline' | 'csv' | 'result' | 'measured';
   file: string;
   netlist?: string;
   status?: string;

@@ -9,6 +9,7 @@ import { odex } from '../solve/odex.js';
 import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
 import { ExpectationMonitor } from './expectations.js';
+import { TimeProbe, type ProbeRequest } from './probe-times.js';
 import { diagnoseFault } from './fault.js';
 import type { ChamberSummary, ElementSections, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
@@ -19,6 +20,8 @@ export interface SimulateOptions {
   interrupt?: () => string | null;
   /** Called now and then with the simulated time reached. */
   progress?: (t: number, tEnd: number) => void;
+  /** Channels to read at given times on the dense output (calibration); see RunResult.probed. */
+  probe?: ProbeRequest;
 }
 
 /**
@@ -57,6 +60,10 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   // expectations are judged on the dense output inside every step, not on samples
   const monitor = new ExpectationMonitor(model.expect, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) },
     model.chambers.map((c) => c.name), model.pa);
+  const probe = options.probe ? new TimeProbe(options.probe, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) }) : undefined;
+  const onStep = probe && monitor.needsSteps
+    ? (a: number, b: number, d: Parameters<typeof monitor.step>[2]): void => { monitor.step(a, b, d); probe.step(a, b, d); }
+    : probe ? probe.step : monitor.needsSteps ? monitor.step : undefined;
   // every element's summaries (peaks, finals), tracked at samples and step ends
   const summaries = sys.elements.flatMap((e) => e.summaries?.((key) => keys.get(key)!) ?? []);
   let lastProgress = 0;
@@ -80,7 +87,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     // auto: an explicit start hands over to the stiff method if it meets a kink it cannot pass
     fallback: model.simulate.method === 'auto' && integrator === odex ? rosenbrock : undefined,
     tEnd: duration, y0, sample, observe,
-    onStep: monitor.needsSteps ? monitor.step : undefined,
+    onStep,
     maxSteps: model.simulate.maxSteps ?? DEFAULT_MAX_STEPS,
     maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
     interrupt: options.interrupt,
@@ -149,6 +156,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     ...(fault ? { fault } : {}),
     outcomes: classifyOutcomes(model, trace, sys.log),
     trace,
+    ...(probe ? { probed: probe.values } : {}),
     ambient: model.pa,
   };
 }

@@ -63,11 +63,11 @@ describe('plenum check', () => {
     expect(fail).toHaveLength(1);
     expect(fail[0]).toContain(`${f}:${line}:5`);
     expect(fail[0]).toMatch(/finger\.gauge at t = 350 ms is [\d.]+ kPa gauge; expected above 400 kPa gauge/);
-    expect(r.out).toMatch(/check: 4 expectations in 2 netlists: 3 passed, 1 failed; 0 invalid netlists, 0 simulations did not complete/);
+    expect(r.out).toMatch(/check: 5 expectations in 2 netlists: 4 passed, 1 failed; 0 invalid netlists, 0 simulations did not complete/);
     const root = junit(report);
-    expect(root.attrs).toMatchObject({ tests: '4', failures: '1', errors: '0' });
+    expect(root.attrs).toMatchObject({ tests: '5', failures: '1', errors: '0' });
     const suite = children(root, 'testsuite')[1];
-    expect(suite.attrs).toMatchObject({ name: f, tests: '2', failures: '1' });
+    expect(suite.attrs).toMatchObject({ name: f, tests: '3', failures: '1' });
     const failed = children(suite, 'testcase').filter((c) => children(c, 'failure').length);
     expect(failed).toHaveLength(1);
     expect(failed[0].attrs.name).toBe('the finger reaches gripping pressure within 300 ms of the valve opening');
