@@ -19,6 +19,7 @@ import type { Gas } from '../physics/gas.js';
 import type { EventfulProblem } from '../solve/driver.js';
 import type { Model } from '../model/types.js';
 import type { SparsePattern } from '../linalg/sparse-pattern.js';
+import { EventLog } from './event-log.js';
 import type { Assembly, Channel, Element, ElementEvent, LoggedEvent, StateSlot } from '../elements/contract.js';
 import { K, Nodes } from '../elements/nodes.js';
 import { createElements } from '../elements/registry.js';
@@ -47,7 +48,7 @@ export class NetworkSystem implements EventfulProblem {
   readonly slots: StateSlot[] = [];
   readonly breakpoints: number[];
   readonly events: ElementEvent[];
-  readonly log: LoggedEvent[] = [];
+  readonly log = new EventLog();
   /**
    * Gas nodes with states (chambers, in order): the slot of their mass, temperature and third
    * column (−1 absent). Analyses of rest states and fault diagnosis read chambers through them.
@@ -264,6 +265,11 @@ export class NetworkSystem implements EventfulProblem {
     this.evaluate(t, y);
     const ev = this.events;
     for (let k = 0; k < ev.length; k++) out[k] = ev[k].value();
+  }
+
+  /** An event that only logs (an extremum passed, a limit exceeded): it never changes the rhs. */
+  eventLogsOnly(k: number): boolean {
+    return this.events[k].logsOnly === true;
   }
 
   eventDirection(k: number): number {

@@ -55,3 +55,15 @@ export function internalError(file: string, e: unknown, seconds: number): Netlis
     diagnostics: [], expectations: [], unjudged: [], warnings: [], seconds,
   };
 }
+
+/**
+ * A netlist whose check ran out of memory in its worker thread: an error case like a
+ * simulation that could not complete; the other netlists carry on.
+ */
+export function outOfMemory(file: string, heapMb: number, seconds: number): NetlistCheck {
+  return {
+    file, status: 'failed',
+    message: `ran out of memory (the worker's heap of ${heapMb} MB) and was stopped; the other netlists were checked: reduce the number of samples (a longer \`sample\`) or split the network`,
+    diagnostics: [], expectations: [], unjudged: [], warnings: [], seconds,
+  };
+}

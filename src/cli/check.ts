@@ -15,8 +15,10 @@ import { performance } from 'node:perf_hooks';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import { formatDiagnostic, junitXml, type NetlistCheck } from '../index.js';
-import { checkNetlist, internalError, NEXT, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { heapLimit } from '../transient/trace-memory.js';
+import { checkNetlist, internalError, NEXT, outOfMemory, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
+import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
+import { printable, printableOutput } from '../diag/text.js';
 
 export interface CheckOptions { junit?: string; annotations?: boolean; jobs?: string; quiet?: boolean }
 
@@ -51,9 +53,12 @@ function parseJobs(text: string | undefined, n: number): number {
   return Math.min(j, n);
 }
 
+/** Diagnostics printed (and annotated) per netlist; the rest are counted. */
+const MAX_DIAGNOSTICS = 50;
+
 // ---- CI log annotations (the `::error file=…::message` workflow-command syntax) ----------------
 
-const escData = (s: string): string => s.replace(/%/g, '%25').replace(/\r/g, '%0D').replace(/\n/g, '%0A');
+const escData = (s: string): string => printableOutput(s.replace(/%/g, '%25').replace(/\r/g, '%0D').replace(/\n/g, '%0A'));
 const escProp = (s: string): string => escData(s).replace(/:/g, '%3A').replace(/,/g, '%2C');
 
 function annotation(level: 'error' | 'warning', file: string, line: number, column: number, title: string, message: string): string {
@@ -63,7 +68,7 @@ function annotation(level: 'error' | 'warning', file: string, line: number, colu
 
 function annotations(c: NetlistCheck): string[] {
   const out: string[] = [];
-  for (const d of c.diagnostics) out.push(annotation(d.severity, d.file, d.line, d.column, `plenum: ${d.code}`, `${d.message}${d.hint ? ` (hint: ${d.hint})` : ''}`));
+  for (const d of c.diagnostics.slice(0, MAX_DIAGNOSTICS)) out.push(annotation(d.severity, d.file, d.line, d.column, `plenum: ${d.code}`, `${d.message}${d.hint ? ` (hint: ${d.hint})` : ''}`));
   if (c.status === 'failed') out.push(annotation('error', c.file, 0, 0, 'plenum: simulation did not complete', c.message));
   for (const e of c.expectations) if (!e.passed) out.push(annotation('error', e.file, e.line, e.column, `expectation failed: ${e.name}`, e.message));
   for (const w of c.warnings) out.push(annotation('warning', c.file, 0, 0, 'plenum: warning', w));
@@ -75,12 +80,16 @@ function annotations(c: NetlistCheck): string[] {
 function lines(c: NetlistCheck, quiet: boolean): string[] {
   const out: string[] = [];
   const where = (x: { file: string; line: number; column: number }): string => `${x.file}:${x.line}:${x.column}`;
+  const shown = c.diagnostics.slice(0, MAX_DIAGNOSTICS);
+  const more = c.diagnostics.length - shown.length;
   if (c.status === 'invalid') {
     out.push(`ERROR ${c.file}  invalid netlist: ${c.message}`);
-    for (const d of c.diagnostics) out.push(...formatDiagnostic(d).split('\n').map((l) => `      ${l}`));
+    for (const d of shown) out.push(...formatDiagnostic(d).split('\n').map((l) => `      ${l}`));
+    if (more > 0) out.push(`      ... and ${more} more problems not shown`);
     return out;
   }
-  if (!quiet) for (const d of c.diagnostics) out.push(`warn  ${formatDiagnostic(d).replace(/\n\s*/g, ' ')}`);
+  if (!quiet) for (const d of shown) out.push(`warn  ${formatDiagnostic(d).replace(/\n\s*/g, ' ')}`);
+  if (!quiet && more > 0) out.push(`warn  ${c.file}  ... and ${more} more warnings not shown`);
   if (c.status === 'failed') {
     out.push(`ERROR ${c.file}  ${c.message}`);
     if (!quiet) for (const u of c.unjudged) out.push(`skip  ${where(u)}  ${u.name} — not judged: the simulation did not complete`);
@@ -120,16 +129,25 @@ function tally(checks: NetlistCheck[], jobs: number, seconds: number): string {
   return `check: ${plural(all.length + unjudged, 'expectation')} in ${plural(checks.length, 'netlist')}: ${judged}; ${trouble} (${plural(jobs, 'job')}, ${seconds.toFixed(2)} s)`;
 }
 
+/**
+ * Heap of a check worker, MB: this process's own heap limit (so a worker may use as much as
+ * a lone run), or PLENUM_CHECK_WORKER_HEAP_MB (for tests of a worker that runs out).
+ */
+function workerHeapMb(): number {
+  const env = Number(process.env.PLENUM_CHECK_WORKER_HEAP_MB);
+  return Number.isFinite(env) && env >= 16 ? env : Math.round(heapLimit() / 1024 / 1024);
+}
+
 // ---- running --------------------------------------------------------------------------------
 
-type Deliver = (index: number, check: NetlistCheck) => void;
+export type Deliver = (index: number, check: NetlistCheck) => void;
 
 /**
  * Checks the netlists on the main thread and on `workers` worker threads at once. All take
  * the next index from a shared counter; the main thread starts at once while the workers load,
  * so a short list is not slower than running alone.
  */
-async function runAll(files: string[], workers: number, entry: string | undefined, control: SharedArrayBuffer, deliver: Deliver): Promise<void> {
+export async function runAll(files: string[], workers: number, entry: string | undefined, control: SharedArrayBuffer, deliver: Deliver): Promise<void> {
   const ctl = new Int32Array(control);
   let done = 0;
   let finished: () => void = () => undefined;
@@ -138,8 +156,12 @@ async function runAll(files: string[], workers: number, entry: string | undefine
     deliver(index, check);
     if (++done === files.length) finished();
   };
+  // each worker gets a heap limit of its own: a netlist that exhausts it ends that worker
+  // (ERR_WORKER_OUT_OF_MEMORY), not the process, and becomes an error case; without one, V8
+  // aborts the whole process (exit 134) and every other netlist's result is lost
+  const resourceLimits = { maxOldGenerationSizeMb: workerHeapMb() };
   for (let k = 0; k < workers && entry; k++) {
-    const w = new Worker(entry, { workerData: { files, control } satisfies CheckWorkerData });
+    const w = new Worker(entry, { workerData: { files, control } satisfies CheckWorkerData, resourceLimits });
     let current = -1;
     let started = 0;
     w.on('message', (m: CheckMessage) => {
@@ -152,7 +174,8 @@ async function runAll(files: string[], workers: number, entry: string | undefine
       if (current < 0) return;
       const i = current;
       current = -1;
-      settle(i, internalError(files[i], why, (performance.now() - started) / 1000));
+      const oom = (why as NodeJS.ErrnoException)?.code === 'ERR_WORKER_OUT_OF_MEMORY';
+      settle(i, oom ? outOfMemory(files[i], resourceLimits.maxOldGenerationSizeMb, (performance.now() - started) / 1000) : internalError(files[i], why, (performance.now() - started) / 1000));
     };
     w.on('error', lost);
     w.on('exit', (code) => { if (code !== 0) lost(new Error(`worker thread exited with code ${code}`)); });
@@ -178,6 +201,8 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
   const files = expand(args);
   if (!files.length) throw new UsageError('no netlists given');
   if (opts.junit && files.some((f) => samePath(f, opts.junit!))) throw new UsageError(`refusing to overwrite the netlist ${opts.junit} with the JUnit report`);
+  if (opts.junit === '-') throw new UsageError('--junit needs a file name');
+  checkOutputPaths(files, { '--junit': opts.junit });
   const entry = workerFile();
   const jobs = entry ? parseJobs(opts.jobs, files.length) : 1;
   const quiet = Boolean(opts.quiet);
@@ -193,7 +218,7 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
     results[index] = check;
     while (printed < files.length && results[printed]) {
       const c = results[printed]!;
-      const text = [...lines(c, quiet), ...(opts.annotations ? annotations(c) : [])];
+      const text = [...lines(c, quiet).map(printable), ...(opts.annotations ? annotations(c) : [])];
       if (text.length) process.stdout.write(text.join('\n') + '\n');
       printed++;
     }
@@ -206,12 +231,6 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
 
   const checks = results as NetlistCheck[];
   process.stdout.write(tally(checks, jobs, (performance.now() - started) / 1000) + '\n');
-  if (opts.junit) {
-    try {
-      writeAtomic(opts.junit, junitXml(checks));
-    } catch (e) {
-      throw new UsageError(`cannot write the JUnit report ${opts.junit} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
-    }
-  }
+  if (opts.junit) writeOutput(opts.junit, junitXml(checks), '--junit');
   return checkExitCode(checks);
 }

@@ -3,7 +3,7 @@
  * `run --csv`, or result JSON from `run --json`), prints the largest deviations and exits 0
  * within tolerance, 1 outside, 2 when a file cannot be read or the two have nothing in common.
  */
-import { readFileSync } from 'node:fs';
+import { readInputFile } from './netlist-file.js';
 import { alignToMeasured, diffTraces, formatDiagnostic, measuredTrace, readTrace, type DiffOptions, type TraceFile } from '../index.js';
 import { DEFAULT_RTOL, QUANTITY_CLASSES, type Deviation, type QuantityClass, type Tolerance } from '../transient/trace-diff.js';
 import { didYouMean } from '../diag/did-you-mean.js';
@@ -25,13 +25,7 @@ const DIMENSION_OF_UNIT: Record<string, Dimension> = {
 };
 
 function load(file: string): TraceFile {
-  let text: string;
-  try {
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: cannot read (${code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a directory' : code ?? String(e)})`);
-  }
+  const text = readInputFile(file, 'the trace');
   const r = readTrace(text, file);
   if (r.ok && !(r.value.kind === 'csv' && r.value.channels.some((c) => !SI_UNITS.has(c.unit)))) return r.value;
   // not plenum's own trace: a bench recording (units of its own, comments, gaps)
@@ -58,7 +52,7 @@ function nonNegative(text: string, what: string): number {
 /** An absolute tolerance in the unit of a quantity (`50 Pa`, `0.1 kPa`, `1 mg`; a bare number is SI). */
 function absolute(text: string, unit: string): QuantityResult {
   if (unit === 'Pa') return parsePressureDifference(text);
-  const dim = DIMENSION_OF_UNIT[unit];
+  const dim = Object.hasOwn(DIMENSION_OF_UNIT, unit) ? DIMENSION_OF_UNIT[unit] : undefined;
   return parseQuantity(text, dim ?? 'dimensionless');
 }
 

@@ -1,7 +1,7 @@
 /** `plenum equilibria NETLIST`: every rest state, its stability, and where the transient goes. */
 import { equilibriaJson, equilibriaText, findEquilibria, type GasSource, type Model, type ValveState } from '../index.js';
 import { loadOrExit } from './load.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
 
 export interface EquilibriaCliOptions {
   valves?: string;
@@ -52,15 +52,12 @@ export function equilibriaCommand(file: string, opts: EquilibriaCliOptions): num
     maxCombinations = Number(opts.maxCombinations);
     if (!Number.isInteger(maxCombinations) || maxCombinations < 1) throw new UsageError(`--max-combinations must be a positive whole number, not \`${opts.maxCombinations}\``);
   }
-  if (opts.json && opts.json !== '-' && samePath(opts.json, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
+  checkOutputPaths(file, { '--json': opts.json });
   const model = loadOrExit(file);
   refuseLargeGroup(model, file, MAX_GROUP_CHAMBERS, 'plenum equilibria',
     'the stability of its equilibria is a dense eigenvalue problem that grows with the cube of that number (about two minutes at the limit)');
   const result = findEquilibria(model, { valves, gas, transient: opts.transient !== false, maxCombinations });
   if (!opts.quiet) (opts.json === '-' ? process.stderr : process.stdout).write(equilibriaText(result));
-  if (opts.json) {
-    const text = equilibriaJson(result);
-    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
-  }
+  emitOutputs([{ path: opts.json, text: () => equilibriaJson(result), what: '--json' }]);
   return result.status === 'ok' ? 0 : 3;
 }

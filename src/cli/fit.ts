@@ -1,11 +1,11 @@
 /** `plenum fit DATA.csv --wall LAW --radius R --thickness T`: fit a wall law to bench data. */
-import { readFileSync, statSync } from 'node:fs';
+import { readInputFile } from './netlist-file.js';
 import { formatDiagnostic } from '../diag/diagnostic.js';
 import { FIT_LAWS, fitJson, fitResidualCsv, fitText, fitWall, readBenchCsv, type FitLaw } from '../index.js';
 import { listChoices, didYouMean } from '../diag/did-you-mean.js';
 import { parseAmbientPressure } from '../units/pressure.js';
 import { parseQuantity } from '../units/quantity.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
 
 export interface FitCliOptions { wall: string; radius: string; thickness: string; ambient?: string; json?: string; csv?: string; quiet?: boolean }
 
@@ -17,10 +17,7 @@ function length(text: string, option: string): number {
 }
 
 export function fitCommand(file: string, opts: FitCliOptions): number {
-  for (const out of [opts.csv, opts.json]) {
-    if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the data ${file} with an output file`);
-  }
-  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  checkOutputPaths([file], { '--csv': opts.csv, '--json': opts.json });
   if (!(FIT_LAWS as readonly string[]).includes(opts.wall)) {
     const hint = didYouMean(opts.wall, FIT_LAWS) ?? `choose ${listChoices(FIT_LAWS)}`;
     throw new UsageError(`--wall ${opts.wall}: not a wall law that can be fitted\n  hint: ${hint}`);
@@ -33,15 +30,7 @@ export function fitCommand(file: string, opts: FitCliOptions): number {
     if (!q.ok) throw new UsageError(`--ambient ${opts.ambient}: ${q.message}\n  hint: ${q.hint}`);
     ambient = q.value;
   }
-  let text: string;
-  try {
-    if (statSync(file).isDirectory()) throw new UsageError(`${file}: is a directory, expected a CSV file`);
-    text = readFileSync(file, 'utf8');
-  } catch (e) {
-    if (e instanceof UsageError) throw e;
-    const code = (e as NodeJS.ErrnoException).code;
-    throw new UsageError(`${file}: cannot read the data (${code === 'ENOENT' ? 'no such file' : code ?? String(e)})`);
-  }
+  const text = readInputFile(file, 'the data');
   const data = readBenchCsv(text, file, { radius, ambient });
   if (!data.ok) {
     const n = data.diagnostics.length;
@@ -52,14 +41,10 @@ export function fitCommand(file: string, opts: FitCliOptions): number {
   const r = report.value;
   const toStdout = opts.json === '-' || opts.csv === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(fitText(r));
-  if (opts.json) {
-    const t = fitJson(r);
-    if (opts.json === '-') process.stdout.write(t); else writeAtomic(opts.json, t);
-  }
-  if (opts.csv) {
-    const t = fitResidualCsv(r);
-    if (opts.csv === '-') process.stdout.write(t); else writeAtomic(opts.csv, t);
-  }
+  emitOutputs([
+    { path: opts.json, text: () => fitJson(r), what: '--json' },
+    { path: opts.csv, text: () => fitResidualCsv(r), what: '--csv' },
+  ]);
   const converged = [r.inflation, r.deflation].every((f) => !f || f.converged);
   return converged ? 0 : 3;
 }

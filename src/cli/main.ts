@@ -5,7 +5,17 @@
  * simulation could not be completed.
  */
 import { Command, CommanderError } from 'commander';
+import { printableOutput } from '../diag/text.js';
 import { UsageError } from './io.js';
+
+// Nothing from a netlist reaches the terminal raw: the strings plenum composes escape the
+// input they quote (src/diag/text.ts); as a last line of defence every string written to the
+// terminal has its control characters escaped too (line breaks, tabs and the progress
+// display's leading carriage return excepted).
+for (const stream of [process.stdout, process.stderr]) {
+  const write = stream.write.bind(stream) as (chunk: unknown, ...rest: unknown[]) => boolean;
+  stream.write = ((chunk: unknown, ...rest: unknown[]) => write(typeof chunk === 'string' ? printableOutput(chunk) : chunk, ...rest)) as typeof stream.write;
+}
 
 const VERSION = '0.1.0';
 

@@ -26,7 +26,7 @@ export type BoundedRead = { text: string } | { tooLarge: Diagnostic } | { unread
  * memory. Returns the text, the diagnostic for an input over the limit, or why the file cannot
  * be read (`ENOENT` as "no such file"; `directory` set for a directory).
  */
-export function readBounded(file: string): BoundedRead {
+export function readBounded(file: string, what = 'the netlist'): BoundedRead {
   let fd: number;
   try {
     fd = openSync(file, 'r');
@@ -56,8 +56,8 @@ export function readBounded(file: string): BoundedRead {
         return {
           tooLarge: {
             code: 'input-too-large', severity: 'error', file, line: 1, column: 1, path: [],
-            message: st.isFile() ? `the netlist is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
-            hint: 'split the network or generate a smaller netlist',
+            message: st.isFile() ? `${what} is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
+            hint: what === 'the netlist' ? 'split the network or generate a smaller netlist' : `plenum reads inputs up to ${limit}`,
           },
         };
       }
@@ -67,4 +67,15 @@ export function readBounded(file: string): BoundedRead {
   } finally {
     closeSync(fd);
   }
+}
+
+/**
+ * The text of an input file other than a netlist (bench data, a trace, a shard), read with the
+ * same limit; anything that cannot be read, or is too large, is a usage error naming it.
+ */
+export function readInputFile(file: string, what: string): string {
+  const r = readBounded(file, what);
+  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
+  if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; nothing was read`);
+  return r.text;
 }

@@ -4,12 +4,11 @@
  * Nothing is written when the netlist is invalid (exit 2); a run that stops early still gets
  * its report, saying so (exit 3).
  */
-import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { findEquilibria, formatDiagnostic, measuredOverlays, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
 import { readText } from './study-io.js';
 import { loadOrExit } from './load.js';
-import { checkOutputPaths, checkPlotsDir, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, checkPlotsDir, makePlotsDir, samePath, UsageError, writeOutputs, type OutputFile } from './io.js';
 
 export { checkPlotsDir };
 import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
@@ -25,19 +24,25 @@ export interface ReportOptions {
   data?: string[];
 }
 
-/** Writes one SVG a figure into `dir` (created if needed); returns the paths written. */
-export function writePlots(dir: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): string[] {
-  try {
-    mkdirSync(dir, { recursive: true });
-  } catch (e) {
-    throw new UsageError(`cannot create --plots ${dir} (${(e as NodeJS.ErrnoException).code ?? String(e)})`);
-  }
+/**
+ * The SVG files of the figures for `--plots DIR`, one a figure (none is written yet). The
+ * netlist is never among them: a figure that would land on it is refused (exit 2).
+ */
+export function plotFiles(dir: string, netlist: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): OutputFile[] {
   const figures = reportFigures(reportInput(model, result, { measured }), { standalone: true });
   return figures.map((f) => {
     const path = join(dir, `${f.id}.svg`);
-    writeOutput(path, f.svg, '--plots');
-    return path;
+    if (samePath(path, netlist)) throw new UsageError(`refusing to overwrite the netlist ${netlist} with the figure ${path} (--plots ${dir}); choose another directory`);
+    return { path, text: f.svg, what: '--plots' };
   });
+}
+
+/** Writes `files` and the figures of `--plots DIR` together (DIR is created if needed). */
+export function writeWithPlots(files: OutputFile[], plots: string | undefined, netlist: string, model: Model, result: RunResult, measured?: MeasuredOverlay[]): number {
+  const figures = plots ? plotFiles(plots, netlist, model, result, measured) : [];
+  if (plots) makePlotsDir(plots);
+  writeOutputs([...files, ...figures]);
+  return figures.length;
 }
 
 /**
@@ -89,9 +94,9 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
       : undefined);
     if (tty) process.stderr.write('\r\x1b[K');
     if (!opts.quiet) process.stdout.write(summaryText(result));
-    writeOutput(opts.out, reportHtml(reportInput(model, result, { version: opts.version, measured, ...restStates(model) })), '--out');
-    const plots = opts.plots ? writePlots(opts.plots, model, result, measured) : [];
-    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots.length ? `; ${plots.length} figures in ${opts.plots}` : ''}\n`);
+    const html = reportHtml(reportInput(model, result, { version: opts.version, measured, ...restStates(model) }));
+    const plots = writeWithPlots([{ path: opts.out, text: html, what: '--out' }], opts.plots, file, model, result, measured);
+    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots ? `; ${plots} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
       return 3;

@@ -13,6 +13,8 @@ import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
 import type { RunResult } from '../transient/results.js';
 import type { Model } from '../model/types.js';
+import { CsvFile } from './csv-file.js';
+import { UsageError } from './io.js';
 
 /** Index of the stop flag in the shared control array. */
 export const STOP_FLAG = 0;
@@ -28,11 +30,13 @@ export interface RunWorkerData {
    * is sent: copying a large trace between threads costs seconds (10 000 chambers: 1.4 s).
    */
   keepTrace?: boolean;
+  /** A new file to write the CSV trace into as the samples are taken (see csv-file.ts). */
+  csvPath?: string;
 }
 
 export type RunWorkerMessage =
   | { kind: 'progress'; t: number; tEnd: number }
-  | { kind: 'result'; result: RunResult }
+  | { kind: 'result'; result: RunResult; csvError?: string }
   | { kind: 'error'; message: string };
 
 /** Where the bundled worker may be, relative to the module holding this code. */
@@ -86,8 +90,8 @@ export async function simulateInterruptibly(model: Model, stop: Interrupter, pro
 export interface StartedSimulation {
   /** The result; `model` (loaded on this thread from the same text) is used only without a worker. */
   result(model: Model): Promise<RunResult>;
-  /** Stops the worker (when this thread found the netlist invalid). */
-  cancel(): void;
+  /** Stops the worker (when this thread found the netlist invalid); resolves once it has stopped. */
+  cancel(): Promise<void>;
 }
 
 /**
@@ -96,18 +100,23 @@ export interface StartedSimulation {
  * readings overlap on a machine with two cores instead of following each other, which for a
  * large netlist saves seconds (docs/dev-performance.md).
  */
-export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void, keepTrace = true): StartedSimulation {
+export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void, keepTrace = true, csvPath?: string): StartedSimulation {
   const entry = workerFile();
+  const csvFailed = (code: string): UsageError => new UsageError(`cannot write the CSV trace (${code}); nothing was written`);
   if (!entry) {
     return {
       result: async (model) => {
         const { simulate } = await import('../transient/transient.js');
-        return simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress });
+        const csv = csvPath ? new CsvFile(csvPath) : undefined;
+        const r = simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress, samples: csv });
+        const error = csv?.close();
+        if (error) throw csvFailed(error);
+        return r;
       },
-      cancel: () => {},
+      cancel: async () => {},
     };
   }
-  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress), keepTrace };
+  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress), keepTrace, csvPath };
   const worker = new Worker(entry, { workerData: data });
   const done = new Promise<RunResult>((resolve, reject) => {
     let settled = false;
@@ -118,12 +127,12 @@ export function startSimulation(source: string, file: string, stop: Interrupter,
     };
     worker.on('message', (m: RunWorkerMessage) => {
       if (m.kind === 'progress') progress?.(m.t, m.tEnd);
-      else if (m.kind === 'result') finish(() => resolve(m.result));
+      else if (m.kind === 'result') finish(() => (m.csvError ? reject(csvFailed(m.csvError)) : resolve(m.result)));
       else finish(() => reject(new Error(m.message)));
     });
     worker.on('error', (e) => finish(() => reject(e)));
     worker.on('exit', (code) => finish(() => reject(new Error(`the simulation thread ended (code ${code}) without a result`))));
   });
   done.catch(() => {}); // observed by `result`; a cancelled run's rejection is not an error
-  return { result: () => done, cancel: () => { void worker.terminate(); } };
+  return { result: () => done, cancel: async () => { await worker.terminate(); } };
 }

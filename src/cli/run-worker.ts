@@ -13,9 +13,10 @@ import { parentPort, workerData } from 'node:worker_threads';
 import { simulate } from '../transient/transient.js';
 import { buildModel } from '../model/build.js';
 import { readNetlist } from '../netlist/read.js';
+import { CsvFile } from './csv-file.js';
 import { STOP_FLAG, type RunWorkerData, type RunWorkerMessage } from './run-thread.js';
 
-const { source, file, control, progress, keepTrace } = workerData as RunWorkerData;
+const { source, file, control, progress, keepTrace, csvPath } = workerData as RunWorkerData;
 const flag = new Int32Array(control);
 const post = (m: RunWorkerMessage): void => parentPort!.postMessage(m);
 
@@ -24,10 +25,13 @@ const model = doc.ok ? buildModel(doc.value) : undefined;
 if (!model?.ok) {
   post({ kind: 'error', message: 'the netlist did not load in the worker thread although it did on the main thread' });
 } else {
+  const csv = csvPath ? new CsvFile(csvPath) : undefined;
   const result = simulate(model.value, {
+    samples: csv,
     interrupt: () => (Atomics.load(flag, STOP_FLAG) ? 'interrupted (Ctrl-C)' : null),
     progress: progress ? (t, tEnd) => post({ kind: 'progress', t, tEnd }) : undefined,
   });
   // the trace's values stay here unless the caller writes them (see RunWorkerData.keepTrace)
-  post({ kind: 'result', result: keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result });
+  const csvError = csv?.close();
+  post({ kind: 'result', result: keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result, ...(csvError ? { csvError } : {}) });
 }

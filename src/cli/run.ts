@@ -5,7 +5,9 @@
  * first, and the reader, the model and the reports are loaded while it starts (for a small
  * netlist the start-up is most of the run; docs/dev-performance.md).
  */
-import { checkOutputPaths, checkPlotsDir, samePath, UsageError, writeOutput } from './io.js';
+import { rmSync } from 'node:fs';
+import type { RunResult } from '../transient/results.js';
+import { checkOutputPaths, checkPlotsDir, samePath, stagingPath, UsageError, type OutputFile } from './io.js';
 import { readNetlistFile } from './netlist-file.js';
 import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
 
@@ -35,32 +37,62 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     : undefined;
   // The worker starts on the text while this thread reads it too (see startSimulation).
   const text = readNetlistFile(file);
-  const keepTrace = Boolean(opts.csv || opts.plots || opts.baseline);
-  const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace) : undefined;
-  let model;
+  // a CSV file is written by the simulating thread as the samples are taken, into the temporary
+  // file that is renamed into place with the other outputs (csv-file.ts); standard output, a
+  // device or a pipe gets the text at the end
+  const csvTemp = opts.csv && opts.csv !== '-' ? stagingPath(opts.csv, '--csv') : undefined;
+  const keepTrace = Boolean((opts.csv && !csvTemp) || opts.plots || opts.baseline);
+  const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace, csvTemp) : undefined;
+  let handedOver = false;
+  // a second Ctrl-C ends the process at once: the partial CSV must not be left behind
+  const onExit = (): void => { if (csvTemp) rmSync(csvTemp, { force: true }); };
+  if (csvTemp) process.once('exit', onExit);
   try {
-    const { loadOrExit } = await import('./load.js');
-    model = loadOrExit(file);
-  } catch (e) {
-    started?.cancel();
-    throw e;
-  }
-  const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
-  if (tty) process.stderr.write('\r\x1b[K');
-  const { baselineJson, resultJson, summaryText, traceCsv } = await import('../index.js');
+    let model;
+    try {
+      const { loadOrExit } = await import('./load.js');
+      model = loadOrExit(file);
+      if (opts.csv && !csvTemp) {
+        // the CSV text of the history costs memory too: refuse what cannot be written
+        const { formatDiagnostic, traceMemoryDiagnostic } = await import('../index.js');
+        const d = traceMemoryDiagnostic(model, { csv: true });
+        if (d) {
+          process.stderr.write(formatDiagnostic(d) + '\n');
+          throw new UsageError(`1 error in ${file}; nothing was simulated or written`);
+        }
+      }
+    } catch (e) {
+      await started?.cancel();
+      throw e;
+    }
+    const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
+    if (tty) process.stderr.write('\r\x1b[K');
+    const { baselineJson, resultJson, summaryText, traceCsv } = await import('../index.js');
 
-  const toStdout = opts.json === '-' || opts.csv === '-';
-  if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(summaryText(result));
-  if (opts.json) {
-    const text = resultJson(result);
-    if (opts.json === '-') process.stdout.write(text); else writeOutput(opts.json, text, '--json');
+    const toStdout = opts.json === '-' || opts.csv === '-';
+    if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(summaryText(result));
+    // every output is made first and written together: a failure leaves none of them written
+    const files: OutputFile[] = [];
+    let stdout: string | undefined;
+    const add = (path: string | undefined, make: () => string, what: string): void => {
+      if (!path) return;
+      if (path === '-') stdout = make(); else files.push({ path, text: make(), what });
+    };
+    add(opts.json, () => resultJson(result), '--json');
+    if (csvTemp) files.push({ path: opts.csv!, staged: csvTemp, what: '--csv' });
+    else add(opts.csv, () => traceCsv(result.trace), '--csv');
+    add(opts.baseline, () => baselineJson(result), '--baseline');
+    handedOver = true; // writeOutputs removes the staged file if anything fails
+    (await import('./report.js')).writeWithPlots(files, opts.plots, file, model, result);
+    if (stdout !== undefined) process.stdout.write(stdout);
+    return finish(result, opts);
+  } finally {
+    process.off('exit', onExit);
+    if (csvTemp && !handedOver) rmSync(csvTemp, { force: true });
   }
-  if (opts.csv) {
-    const text = traceCsv(result.trace);
-    if (opts.csv === '-') process.stdout.write(text); else writeOutput(opts.csv, text, '--csv');
-  }
-  if (opts.baseline) writeOutput(opts.baseline, baselineJson(result), '--baseline');
-  if (opts.plots) (await import('./report.js')).writePlots(opts.plots, model, result);
+}
+
+function finish(result: RunResult, opts: RunOptions): number {
   if (result.status === 'failed') {
     const written = [opts.json, opts.csv, opts.baseline].some((o) => o && o !== '-') ? '; the results up to then were written' : '';
     process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s${written}: ${result.message}\n`);

@@ -1,6 +1,6 @@
 /** Small helpers shared by the calibrate and size commands: numbers, files, progress on a terminal. */
 import { UsageError } from './io.js';
-import { readBounded } from './netlist-file.js';
+import { readInputFile } from './netlist-file.js';
 
 export function wholeNumber(text: string | undefined, option: string, min: number): number | undefined {
   if (text === undefined) return undefined;
@@ -12,10 +12,7 @@ export function wholeNumber(text: string | undefined, option: string, min: numbe
 
 /** A file read with the netlist size limit (a huge file or a device is refused). */
 export function readText(file: string, what: string): string {
-  const r = readBounded(file);
-  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
-  if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; ${r.tooLarge.hint}`);
-  return r.text;
+  return readInputFile(file, what);
 }
 
 /**

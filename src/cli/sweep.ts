@@ -1,8 +1,8 @@
 /** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
 import { formatDiagnostic } from '../diag/diagnostic.js';
 import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
-import { readBounded } from './netlist-file.js';
+import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
+import { readInputFile } from './netlist-file.js';
 
 export interface SweepCliOptions {
   vary: string[];
@@ -33,24 +33,13 @@ function parseShard(text: string | undefined): Shard | undefined {
   return { index, count };
 }
 
-/** A netlist or study file, read with the netlist size limit (a huge file or a device is refused). */
-function readText(file: string, what: string): string {
-  const r = readBounded(file);
-  if ('unreadable' in r) throw new UsageError(r.directory ? `${file}: is a directory, expected ${what}` : `${file}: cannot read ${what} (${r.unreadable})`);
-  if ('tooLarge' in r) throw new UsageError(`${file}: ${r.tooLarge.message}; ${r.tooLarge.hint}`);
-  return r.text;
-}
-
 export async function sweepCommand(file: string, opts: SweepCliOptions): Promise<number> {
-  for (const out of [opts.csv, opts.json]) {
-    if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
-  }
-  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json });
   const samples = wholeNumber(opts.samples, '--samples', 1);
   const seed = wholeNumber(opts.seed, '--seed', 0);
   const jobs = wholeNumber(opts.jobs, '--jobs', 1);
   const shard = parseShard(opts.shard);
-  const source = readText(file, 'the netlist');
+  const source = readInputFile(file, 'the netlist');
 
   const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
   const r = await runSweep({
@@ -71,13 +60,9 @@ export async function sweepCommand(file: string, opts: SweepCliOptions): Promise
   }
   const toStdout = opts.json === '-' || opts.csv === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(sweepSummaryText(result));
-  if (opts.json) {
-    const text = sweepJson(result);
-    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
-  }
-  if (opts.csv) {
-    const text = sweepCsv(result);
-    if (opts.csv === '-') process.stdout.write(text); else writeAtomic(opts.csv, text);
-  }
+  emitOutputs([
+    { path: opts.json, text: () => sweepJson(result), what: '--json' },
+    { path: opts.csv, text: () => sweepCsv(result), what: '--csv' },
+  ]);
   return 0;
 }

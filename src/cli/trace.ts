@@ -1,7 +1,7 @@
 /** `plenum trace NETLIST --vary PARAM --from A --to B`: branches of equilibria by continuation. */
 import { traceBranchesCsv, traceEquilibria, traceJson, traceText, type ValveState } from '../index.js';
 import { loadOrExit } from './load.js';
-import { samePath, UsageError, writeAtomic } from './io.js';
+import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
 import { refuseLargeGroup } from './equilibria.js';
 
 /**
@@ -40,10 +40,7 @@ export function traceCommand(file: string, opts: TraceCliOptions): number {
   }
   const valves = (opts.valves ?? 'end') as ValveState;
   if (!VALVES.includes(valves)) throw new UsageError(`--valves must be one of ${VALVES.join(', ')}, not \`${opts.valves}\``);
-  for (const out of [opts.csv, opts.json]) {
-    if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
-  }
-  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json });
   const maxStep = positive(opts.step, '--step', false);
   const interior = positive(opts.starts, '--starts', true);
   const model = loadOrExit(file);
@@ -53,13 +50,9 @@ export function traceCommand(file: string, opts: TraceCliOptions): number {
   if (!r.ok) throw new UsageError(`${r.message}\n  hint: ${r.hint}`);
   const toStdout = opts.csv === '-' || opts.json === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(traceText(r.value));
-  if (opts.json) {
-    const text = traceJson(r.value);
-    if (opts.json === '-') process.stdout.write(text); else writeAtomic(opts.json, text);
-  }
-  if (opts.csv) {
-    const text = traceBranchesCsv(r.value);
-    if (opts.csv === '-') process.stdout.write(text); else writeAtomic(opts.csv, text);
-  }
+  emitOutputs([
+    { path: opts.json, text: () => traceJson(r.value), what: '--json' },
+    { path: opts.csv, text: () => traceBranchesCsv(r.value), what: '--csv' },
+  ]);
   return r.value.status === 'ok' ? 0 : 3;
 }

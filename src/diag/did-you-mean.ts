@@ -6,27 +6,47 @@
  * (optimal string alignment) variant is used, which is enough for typing slips.
  */
 
-/** Restricted Damerau–Levenshtein distance between a and b (insert, delete, substitute, swap). */
-export function editDistance(a: string, b: string): number {
+/**
+ * Restricted Damerau–Levenshtein distance between a and b (insert, delete, substitute, swap).
+ * With `limit`, any distance above it is reported as limit + 1, and only the band of cells
+ * within `limit` of the diagonal is computed (Ukkonen's cut-off), so the cost is
+ * O(min(n, m)·limit) rather than O(n·m): a 100 000-character name costs as much as its length.
+ */
+let rows = new Int32Array(3 * 64);
+
+export function editDistance(a: string, b: string, limit = Infinity): number {
   const n = a.length;
   const m = b.length;
+  if (Math.abs(n - m) > limit) return limit + 1;
   if (n === 0) return m;
   if (m === 0) return n;
-  // Three rolling rows: two back (for transpositions), previous, current.
-  let prev2 = new Array<number>(m + 1).fill(0);
-  let prev = Array.from({ length: m + 1 }, (_, j) => j);
-  let cur = new Array<number>(m + 1).fill(0);
+  const big = 0x3fffffff;
+  const band = Number.isFinite(limit) ? limit : Math.max(n, m);
+  // Three rolling rows (two back for transpositions, previous, current), reused between calls.
+  if (rows.length < 3 * (m + 1)) rows = new Int32Array(3 * (m + 1) * 2);
+  let prev2 = rows.subarray(0, m + 1);
+  let prev = rows.subarray(m + 1, 2 * (m + 1));
+  let cur = rows.subarray(2 * (m + 1), 3 * (m + 1));
+  prev2.fill(big);
+  cur.fill(big);
+  for (let j = 0; j <= m; j++) prev[j] = j <= band ? j : big;
   for (let i = 1; i <= n; i++) {
-    cur[0] = i;
-    for (let j = 1; j <= m; j++) {
+    const lo = Math.max(1, i - band);
+    const hi = Math.min(m, i + band);
+    cur[lo - 1] = lo === 1 ? (i <= band ? i : big) : big;
+    let rowMin = cur[lo - 1];
+    for (let j = lo; j <= hi; j++) {
       const cost = a[i - 1] === b[j - 1] ? 0 : 1;
       let d = Math.min(prev[j] + 1, cur[j - 1] + 1, prev[j - 1] + cost);
       if (i > 1 && j > 1 && a[i - 1] === b[j - 2] && a[i - 2] === b[j - 1]) d = Math.min(d, prev2[j - 2] + 1);
       cur[j] = d;
+      if (d < rowMin) rowMin = d;
     }
+    if (hi < m) cur[hi + 1] = big;
+    if (rowMin > limit) return limit + 1;
     [prev2, prev, cur] = [prev, cur, prev2];
   }
-  return prev[m];
+  return prev[m] > limit ? limit + 1 : prev[m];
 }
 
 /** How many edits still count as a slip for a word of this length. */
@@ -36,22 +56,43 @@ function tolerance(length: number): number {
   return 3;
 }
 
+/** Words longer than this get no suggestion: nobody mistypes a name of this length by a slip. */
+const LONGEST_SUGGESTED = 200;
+/**
+ * Candidates compared by edit distance in one reading of a netlist (see `resetSuggestions`):
+ * 3 000 misspelt references among 3 000 names would be 9 million comparisons; past the budget only
+ * case-insensitive exact matches are suggested, so bad input cannot make the reader quadratic.
+ */
+const SUGGESTION_BUDGET = 300_000;
+let budget = SUGGESTION_BUDGET;
+
+/** Gives did-you-mean its full budget again (called once per netlist read). */
+export function resetSuggestions(): void {
+  budget = SUGGESTION_BUDGET;
+}
+
 /**
  * The candidates closest to `word`, best first. A case-insensitive exact match wins outright;
  * otherwise candidates within a length-dependent edit distance (case-insensitive) are kept.
+ * Only candidates of a length within that distance are compared, and only while the budget
+ * lasts.
  */
 export function closestMatches(word: string, candidates: Iterable<string>, max = 3): string[] {
   const lower = word.toLowerCase();
   const scored: { c: string; d: number }[] = [];
+  const tooLong = word.length > LONGEST_SUGGESTED;
   for (const c of new Set(candidates)) {
     if (c === word) continue;
-    const cl = c.toLowerCase();
-    if (cl === lower) {
+    if (c.length === word.length && c.toLowerCase() === lower) {
       scored.push({ c, d: 0 });
       continue;
     }
-    const d = editDistance(lower, cl);
-    if (d <= tolerance(Math.max(word.length, c.length))) scored.push({ c, d });
+    if (tooLong) continue;
+    const tol = tolerance(Math.max(word.length, c.length));
+    if (Math.abs(c.length - word.length) > tol || budget <= 0) continue;
+    budget--;
+    const d = editDistance(lower, c.toLowerCase(), tol);
+    if (d <= tol) scored.push({ c, d });
   }
   scored.sort((x, y) => x.d - y.d || x.c.localeCompare(y.c));
   const best = scored.length && scored[0].d === 0 ? scored.filter((s) => s.d === 0) : scored;

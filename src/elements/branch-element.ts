@@ -8,7 +8,7 @@
 import type { BranchModel } from '../model/types.js';
 import type { Schedule } from '../model/schedule.js';
 import { BranchState, type BranchFlow, type BranchPartials } from './branch.js';
-import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, LoggedEvent } from './contract.js';
+import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, EventSink } from './contract.js';
 import type { Nodes } from './nodes.js';
 
 /**
@@ -33,7 +33,7 @@ function fmtT(s: number): string {
 }
 
 /** Logs a schedule's ramps that start or end at t (`valve v1 opens (0 % → 100 %)`). */
-export function describeSchedule(t: number, noun: string, name: string, s: Schedule, log: LoggedEvent[]): void {
+export function describeSchedule(t: number, noun: string, name: string, s: Schedule, log: EventSink): void {
   const eps = 1e-12 * Math.max(1, Math.abs(t));
   const note = (what: string): void => { log.push({ t, what, kind: 'schedule', element: '' }); };
   for (const r of s.ramps) {
@@ -103,7 +103,7 @@ export class BranchElement extends BranchState implements Element {
     return this.schedule?.breakpoints ?? [];
   }
 
-  atBreakpoint(t: number, log: LoggedEvent[]): void {
+  atBreakpoint(t: number, log: EventSink): void {
     if (this.schedule) describeSchedule(t, 'valve', this.name, this.schedule, log);
   }
 

@@ -7,7 +7,7 @@
  */
 import type { ChamberModel } from '../model/types.js';
 import { ChamberState, type PressurePartials } from './chamber.js';
-import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, LoggedEvent, StateSlot } from './contract.js';
+import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, EventSink, StateSlot } from './contract.js';
 import { K, type Nodes } from './nodes.js';
 import { display } from '../units/display.js';
 
@@ -64,9 +64,11 @@ export class ChamberElement extends ChamberState implements Element {
 
   evaluate(_t: number, y: Float64Array): void {
     const T = this.T >= 0 ? y[this.T] : this.c.T0;
-    const h = this.h >= 0 ? y[this.h] : 1;
+    this.inM = y[this.m];
+    this.inT = T;
+    this.inH = this.h >= 0 ? y[this.h] : 1;
     const s = this.solved;
-    this.solve(y[this.m], T, h, s);
+    this.solveInputs(s);
     const nodes = this.nodes, i = this.node;
     nodes.p[i] = s.p;
     nodes.V[i] = s.V;
@@ -170,14 +172,14 @@ export class ChamberElement extends ChamberState implements Element {
   events(): ElementEvent[] {
     const c = this.c, n = this.nodes, i = this.node, name = this.name, pa = this.asm.pa;
     const out: ElementEvent[] = [];
-    const note = (log: LoggedEvent[], t: number, kind: string, what: string, warning?: boolean): void => {
+    const note = (log: EventSink, t: number, kind: string, what: string, warning?: boolean): void => {
       log.push(warning ? { t, what, kind, element: name, warning } : { t, what, kind, element: name });
     };
     for (const x of c.wall.extrema) {
       const word = x.kind === 'max' ? 'maximum' : 'minimum';
       const where = `${(x.p / 1000).toPrecision(4)} kPa gauge`;
       out.push({
-        kind: 'extremum', element: name,
+        kind: 'extremum', element: name, logsOnly: true,
         value: () => n.V[i] - x.V,
         direction: () => 0,
         fire: (t, rising, log) => {
@@ -191,7 +193,7 @@ export class ChamberElement extends ChamberState implements Element {
     const pLimit = c.limits.pressure;
     if (pLimit !== undefined) {
       out.push({
-        kind: 'limit-pressure', element: name,
+        kind: 'limit-pressure', element: name, logsOnly: true,
         value: () => n.p[i] - pLimit,
         direction: () => 1,
         fire: (t, _r, log) => {
@@ -203,7 +205,7 @@ export class ChamberElement extends ChamberState implements Element {
     const sLimit = c.limits.stretch;
     if (sLimit !== undefined && c.wall.sphere) {
       out.push({
-        kind: 'limit-stretch', element: name,
+        kind: 'limit-stretch', element: name, logsOnly: true,
         value: () => this.c.wall.stretch(n.V[i]) - sLimit,
         direction: () => 1,
         fire: (t, _r, log) => { note(log, t, 'limit-stretch', `${name} exceeds its stretch limit of ${sLimit}`, true); return false; },

@@ -75,6 +75,26 @@ export class ChamberState {
    * hysteresis blend h. Writes into out; NaN pressure when the state is outside the law.
    */
   solve(m: number, T: number, h: number, out: { p: number; V: number; kappa: number }): void {
+    this.inM = m;
+    this.inT = T;
+    this.inH = h;
+    this.solveInputs(out);
+  }
+
+  /**
+   * Inputs of `solveInputs` (mass, temperature, blend) and the warm Newton's mRT and result. The
+   * hot path sets them as fields rather than passing doubles to calls V8 may not inline, which
+   * would box each one (docs/dev-performance.md).
+   */
+  protected inM = Number.NaN;
+  protected inT = Number.NaN;
+  protected inH = Number.NaN;
+  private warmRT = Number.NaN;
+  private warmV = Number.NaN;
+
+  /** `solve` of the state in inM, inT, inH. */
+  protected solveInputs(out: { p: number; V: number; kappa: number }): void {
+    const m = this.inM, T = this.inT, h = this.inH;
     const c = this.c;
     if (c.wall.rigid) {
       out.V = c.wall.V0;
@@ -84,7 +104,8 @@ export class ChamberState {
     }
     if (this.wall.h !== undefined) this.wall.h = Math.min(1, Math.max(0, h));
     const mRT = m * this.gas.R * T;
-    let V = this.warmNewton(mRT);
+    this.warmRT = mRT;
+    let V = this.warmNewton() ? this.warmV : Number.NaN;
     if (Number.isNaN(V)) V = solveVolume(this.wall, this.pa, c.deadVolume, mRT, this.Vguess, this.lo, this.scratch);
     if (!Number.isFinite(V)) {
       out.V = Number.NaN; out.p = Number.NaN; out.kappa = Number.NaN;
@@ -102,31 +123,33 @@ export class ChamberState {
    * integration (the state moves little between evaluations): F(V) = (pa + Δp(V))(V + Vd) − mRT
    * is strictly increasing (checked at build), so a converging Newton sequence has found the one
    * root, and from a nearby start it converges quadratically. Stops once a step is below 1e-12 of
-   * the volume (even at a kink of a C¹ law the error is then at round-off). Returns NaN at any sign of trouble (a step
+   * the volume (even at a kink of a C¹ law the error is then at round-off); the volume goes to
+   * warmV. Returns false at any sign of trouble (a step
    * leaving the law's range, a non-positive slope, slow convergence): the caller then runs the
    * safeguarded solver (model/volume.ts), which also decides when no root exists.
    *
    * References: Press et al., Numerical Recipes, 3rd ed., §9.4 (Newton–Raphson, quadratic
    * convergence near a simple root).
    */
-  private warmNewton(mRT: number): number {
+  private warmNewton(): boolean {
     const { wall, pa, lo, scratch: s } = this;
+    const mRT = this.warmRT;
     const Vd = this.c.deadVolume;
     const Vmax = wall.Vmax;
     let V = this.Vguess;
-    if (!(V > lo && V < Vmax) || !(mRT >= 0)) return Number.NaN;
+    if (!(V > lo && V < Vmax) || !(mRT >= 0)) return false;
     for (let i = 0; i < WARM_NEWTON_ITER; i++) {
       wall.eval(V, s);
       const f = (pa + s.p) * (V + Vd) - mRT;
-      if (f === 0) return V;
+      if (f === 0) { this.warmV = V; return true; }
       const d = s.dpdV * (V + Vd) + (pa + s.p);
-      if (!(d > 0)) return Number.NaN;
+      if (!(d > 0)) return false;
       const next = V - f / d;
-      if (!(next > lo && next < Vmax)) return Number.NaN;
-      if (Math.abs(next - V) <= WARM_NEWTON_TOL * (V + Vd)) return next;
+      if (!(next > lo && next < Vmax)) return false;
+      if (Math.abs(next - V) <= WARM_NEWTON_TOL * (V + Vd)) { this.warmV = next; return true; }
       V = next;
     }
-    return Number.NaN;
+    return false;
   }
 
   /**

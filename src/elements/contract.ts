@@ -54,6 +54,9 @@ export interface Channel { key: string; unit: string }
 /** An entry of the run log; `warning` marks one the run repeats among its warnings. */
 export interface LoggedEvent { t: number; what: string; kind: string; element: string; warning?: boolean }
 
+/** Where elements log (the system's bounded EventLog, or any array). */
+export interface EventSink { push(e: LoggedEvent): unknown }
+
 /** A state event an element declares. */
 export interface ElementEvent {
   /** Kind of event (`relief`, `check`, `extremum`, `limit-pressure`, ...), as logged. */
@@ -69,9 +72,15 @@ export interface ElementEvent {
    * state at the event, which an event may change (a piston stopping at its end stop); the
    * integration restarts from it.
    */
-  fire(t: number, rising: boolean, log: LoggedEvent[], y?: Float64Array): boolean;
+  fire(t: number, rising: boolean, log: EventSink, y?: Float64Array): boolean;
   /** Sets the mode the event controls as it stands at the start (after an evaluation). */
-  settle?(t: number, log: LoggedEvent[]): void;
+  settle?(t: number, log: EventSink): void;
+  /**
+   * True for an event that only logs (an extremum passed, a limit exceeded): firing it never
+   * changes the rhs, so the driver neither restarts nor shortens the step for it, and counts
+   * rather than logs its repetitions when it chatters.
+   */
+  readonly logsOnly?: boolean;
 }
 
 /** A summary of one element for the run result, e.g. `chambers.cell_a` or `valves.v1`. */
@@ -129,7 +138,7 @@ export interface Element {
   /** Times where its rhs has a kink or jump (the driver restarts there). */
   breakpoints?(): number[];
   /** Logs what happens at a breakpoint t (a schedule starting or ending a ramp). */
-  atBreakpoint?(t: number, log: LoggedEvent[]): void;
+  atBreakpoint?(t: number, log: EventSink): void;
   /** False when its rhs depends on t explicitly somewhere in [t0, t1]. */
   timeInvariant?(t0: number, t1: number): boolean;
   events?(): ElementEvent[];

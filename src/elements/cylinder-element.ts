@@ -13,7 +13,7 @@
  */
 import type { CylinderModel } from '../model/cylinder.js';
 import { display } from '../units/display.js';
-import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, LoggedEvent, StateSlot } from './contract.js';
+import type { Assembly, Channel, Element, ElementEvent, ElementSummary, EventSink, JacobianReserve, StateSlot } from './contract.js';
 import { CYLINDER_EVENTS, CylinderState } from './cylinder.js';
 import { K, type Nodes } from './nodes.js';
 import { summarizeCylinder, type CylinderSummary } from './cylinder-summary.js';
@@ -213,7 +213,7 @@ export class CylinderElement implements Element {
       element: this.name,
       value: () => st.eventValue(kind, this.xNow, this.vNow),
       direction: () => CylinderState.direction(kind),
-      fire: (t: number, _rising: boolean, log: LoggedEvent[], y?: Float64Array): boolean => {
+      fire: (t: number, _rising: boolean, log: EventSink, y?: Float64Array): boolean => {
         if (!y) throw new Error('a cylinder event needs the state to change it');
         const s = { x: y[this.x], v: y[this.v], W: y[this.W] };
         const what = st.fire(kind, t, s);
@@ -223,7 +223,7 @@ export class CylinderElement implements Element {
       },
       // the first event settles the piston's mode at the start (once per run)
       ...(i === 0 ? {
-        settle: (t: number, log: LoggedEvent[]): void => {
+        settle: (t: number, log: EventSink): void => {
           st.settle(t, this.xNow);
           this.stuckAtStart = st.stop === 0 && !st.moving;
           if (st.moving) log.push({ t, what: `cylinder ${this.name} starts to move at once, ${st.slide > 0 ? 'extending' : 'retracting'}`, kind: 'cylinder', element: this.name });

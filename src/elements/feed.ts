@@ -9,7 +9,7 @@
 import type { FeedModel } from '../model/types.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import { describeSchedule, scheduleStill } from './branch-element.js';
-import type { Assembly, Element, JacobianReserve, LoggedEvent } from './contract.js';
+import type { Assembly, Element, EventSink, JacobianReserve } from './contract.js';
 import { curveFlow } from '../physics/regulator.js';
 import { K, type Nodes } from './nodes.js';
 
@@ -72,7 +72,7 @@ export class FeedElement implements Element {
     return this.schedule.breakpoints;
   }
 
-  atBreakpoint(t: number, log: LoggedEvent[]): void {
+  atBreakpoint(t: number, log: EventSink): void {
     describeSchedule(t, 'feed', this.name, this.schedule, log);
   }
 

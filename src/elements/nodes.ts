@@ -132,7 +132,8 @@ export class Nodes {
   between(dydt: Float64Array, from: number, to: number, f: { mdot: number }): void {
     const q = f.mdot;
     const Tup = q >= 0 ? this.T[from] : this.T[to];
-    this.transfer(dydt, this.rows[from * K], this.hasState(from) ? from : -1, this.rows[to * K], this.hasState(to) ? to : -1, q, Tup);
+    const cols = this.cols;
+    this.transfer(dydt, this.rows[from * K], cols[from * K] >= 0 ? from : -1, this.rows[to * K], cols[to * K] >= 0 ? to : -1, q, Tup);
   }
 
   // ---- jacobian of transfers ---------------------------------------------------------------
@@ -189,7 +190,7 @@ export class Nodes {
    */
   transferJacobian(h: number, a: number, c: number, fp: FlowPartials, values: Float64Array): void {
     const { lRows: rows, lCols: cols, lPos: pos, rc, cd, dp } = this;
-    const sa = this.hasState(a), sc = this.hasState(c);
+    const sa = this.cols[a * K] >= 0, sc = this.cols[c * K] >= 0;
     const Ta = this.T[a], Tc = this.T[c];
     const q = fp.q;
     cd.fill(0);

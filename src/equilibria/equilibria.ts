@@ -130,7 +130,7 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
   else if (gas === 'end' && endMasses) masses = endMasses;
   else masses = Float64Array.from(model.chambers.map((c) => c.m0));
   if (gas === 'start' && !options.masses) {
-    const closing = model.branches.filter((b, k) => b.valve?.operation.kind === 'schedule' && everConducts(b)
+    const closing = model.branches.filter((b, k) => b.valve?.operation.kind === 'schedule' && everConducts(b) && b.from.kind !== 'port' && b.to.kind !== 'port'
       && (setup.model.branches[k].valve!.operation as { initially: number }).initially === 0);
     if (closing.length) notes.push(`${closing.map((b) => b.name).join(', ')} ${closing.length === 1 ? 'is' : 'are'} shut at rest but open during the run: each side is given the gas it holds at the start (use --gas end for the split the transient leaves)`);
     const fedAtStart = model.feeds.some((f) => f.initially > 0 || f.steps.length > 0);

@@ -105,7 +105,16 @@ function volumeOnSegment(wall: WallLaw, seg: Segment, g: number, s: WallPoint): 
 export function restSetup(model: Model, valves: ValveState): RestSetup {
   const notes: string[] = [];
   const t = model.simulate.duration;
+  // A branch to a cylinder side carries no gas at rest when that side has no other way out (the
+  // common case); the chamber analysis takes it as shut and says so (cylinder-rest.ts analyses
+  // the cylinders themselves).
+  const toPort = (b: BranchModel): boolean => b.from.kind === 'port' || b.to.kind === 'port';
+  const portBranches = model.branches.filter(toPort).map((b) => b.hostLine ?? b.name);
+  if (portBranches.length) notes.push(`${portBranches.join(', ')} ${portBranches.length === 1 ? 'joins' : 'join'} a cylinder side and ${portBranches.length === 1 ? 'is' : 'are'} taken as passing no gas at rest (a side with one way in and out passes none in steady state); the chambers' stability leaves out the gas of the cylinder sides`);
   const branches = model.branches.map((b): BranchModel => {
+    if (toPort(b)) {
+      return { ...b, kind: 'valve', line: undefined, valve: { rating: { kind: 'orifice', diameter: 1e-3, dischargeCoefficient: 1 }, operation: { kind: 'schedule', initially: 0, steps: [] } } };
+    }
     const op = b.valve?.operation;
     if (!b.valve || !op || op.kind !== 'schedule') return b;
     const x = valves === 'open' ? 1 : valves === 'closed' ? 0 : scheduleEnd(op.initially, op.steps);

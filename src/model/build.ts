@@ -66,7 +66,19 @@ function volumeForPressure(wall: WallLaw, pa: number, pAbs: number, pos: SourceP
     const pa0 = s.p;
     wall.eval(ends[i + 1], s);
     const pb = s.p;
-    if (pa0 <= target && target <= pb) return volumeAtGauge(wall, target, ends[i], ends[i + 1]);
+    if (pa0 <= target && target <= pb) {
+      const V = volumeAtGauge(wall, target, ends[i], ends[i + 1]);
+      // a measured curve with a level stretch at the start pressure: every volume along it has
+      // that pressure, so the start volume is undetermined (as at a flat top)
+      wall.eval(V, s);
+      if (wall.kind === 'measured' && !(Math.abs(s.dpdV) * V > 1e-9 * Math.max(Math.abs(target), 1))) {
+        errs.push(diag(pos, 'start-unreachable',
+          `start pressure ${kPa(target)} gauge lies on a level part of the measured curve: the start volume would be undetermined`,
+          'start the chamber by volume or mass instead'));
+        return Number.NaN;
+      }
+      return V;
+    }
     if (pa0 > target) break; // a pressure maximum lies below the target
   }
   const max = wall.extrema.find((e) => e.kind === 'max');

@@ -6,7 +6,7 @@
  * `limits.<key>`, `temperature`, `heat-transfer`.
  */
 import { listChoices } from '../diag/did-you-mean.js';
-import { parsePressure, splitQualifier } from '../units/pressure.js';
+import { parsePressure, splitQualifier, MAX_GAS_PRESSURE, aboveMaxPressure } from '../units/pressure.js';
 import { parseQuantity } from '../units/quantity.js';
 import type { Checker, Where } from './checker.js';
 import { CHAMBER, LIMITS, SPHERE_LAWS, START, WALL_LAWS, wallLaw } from './kinds.js';
@@ -113,7 +113,8 @@ function readPointPressure(ck: Checker, pn: YNode, index: number): number | unde
     ck.error(pn, 'unit-dimension', `point ${index}: ${r.message}`, POINTS_HINT);
     return undefined;
   }
-  return ck.checked(pn, r, `the pressure of point ${index}`);
+  // the same highest pressure as every gas pressure (a gauge value plus the ambient)
+  return ck.checked(pn, r.ok && r.value + ck.ambientPa > MAX_GAS_PRESSURE ? aboveMaxPressure(String(v)) : r, `the pressure of point ${index}`);
 }
 
 function readWall(ck: Checker, map: YMap, law: string, fieldPos: Record<string, SourcePos>): WallSpec | undefined {

@@ -68,6 +68,7 @@ export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): 
   if (ck.get(map, 'max-wall') && v['max-wall'] === undefined) return undefined;
   const spec: SimulateSpec = { duration, method: v.method as SimulateSpec['method'], tolerance: v.tolerance as number };
   if (sample !== undefined) spec.sample = sample;
+  spec.samplePos = ck.sourcePos(ck.get(map, 'sample') ?? map);
   if (v['max-steps'] !== undefined) spec.maxSteps = v['max-steps'] as number;
   if (v['max-wall'] !== undefined) spec.maxWall = v['max-wall'] as number;
   return spec;

@@ -9,6 +9,6 @@ export const NAMED_GASES: Record<string, GasSpec> = GASES;
 
 /** A fresh copy of a named gas (callers may not share the table's objects). */
 export function namedGas(name: string): GasSpec | undefined {
-  const g = NAMED_GASES[name];
+  const g = Object.hasOwn(NAMED_GASES, name) ? NAMED_GASES[name] : undefined;
   return g ? { ...g, viscosity: { ...g.viscosity } } : undefined;
 }

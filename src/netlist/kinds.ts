@@ -5,6 +5,9 @@
  *
  * `default` is written as in a netlist and goes through the same parser as a given value.
  * `bounds` are in SI.
+ *
+ * Longer than 500 lines on purpose: it is plain data, one table per kind, and keeping every table
+ * in one file is what lets a reader see the whole netlist format (and a new kind add one entry).
  */
 import type { Dimension } from '../units/dimensions.js';
 

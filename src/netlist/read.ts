@@ -6,6 +6,8 @@
  * read against it), then simulate (expressions and expectations are checked against its
  * duration), then all names (so references may point forwards), then the elements.
  */
+import { boundDiagnostic } from '../diag/diagnostic.js';
+import { resetSuggestions } from '../diag/did-you-mean.js';
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { readFeed, readLine, readValve } from './branches.js';
 import { readChamber } from './chambers.js';
@@ -113,6 +115,9 @@ function readReservoir(ck: Checker, entry: NameEntry, duration?: number): Reserv
  * as written, from every entry of the sections, including entries with other errors (a bad or
  * duplicate name, a misspelt key), so that a slip elsewhere is not reported twice.
  */
+/** Keys of lines, valves and feeds that name a node. */
+const NODE_KEYS = new Set(['from', 'to', 'into']);
+
 function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, NameEntry[]>): void {
   const touched = new Set<string>();
   for (const key of [SECTIONS.line, SECTIONS.valve, SECTIONS.feed, ...ELEMENT_TABLES.map((k) => k.key)]) {
@@ -121,6 +126,8 @@ function checkConnected(ck: Checker, root: YMap, sections: Record<ElementKind, N
     for (const element of section.entries) {
       if (element.value.kind !== 'map') continue;
       for (const e of element.value.entries) {
+        // only the keys that name a node (a chamber named `open` is not joined by `initially: open`)
+        if (!NODE_KEYS.has(e.key)) continue;
         if (e.value.kind === 'scalar' && typeof e.value.value === 'string') touched.add(e.value.value.trim());
       }
     }
@@ -148,6 +155,12 @@ export function readNetlist(source: string, file: string): Result<NetlistDoc> {
 
 /** readNetlist on a tree already parsed from `source` (or edited from one: see override.ts). */
 export function readNetlistTree(tree: YamlTree, source: string, file: string): Result<NetlistDoc> {
+  resetSuggestions();
+  const r = readChecked(tree, source, file);
+  return r.ok ? { ...r, warnings: r.warnings.map(boundDiagnostic) } : { ok: false, diagnostics: r.diagnostics.map(boundDiagnostic) };
+}
+
+function readChecked(tree: YamlTree, source: string, file: string): Result<NetlistDoc> {
   if (!tree.root) return { ok: false, diagnostics: tree.diagnostics };
   const ck = new Checker(file);
   ck.diagnostics.push(...tree.diagnostics);

@@ -16,7 +16,7 @@ const SCHEDULE_HINT = 'write e.g. `schedule: [{ at: 1 s, open: 100%, over: 50 ms
 
 /** `open`, `closed`, `40%` or 0..1 → 0..1. */
 export function readOpening(ck: Checker, node: YNode, what: string): number | undefined {
-  if (node.kind === 'scalar' && typeof node.value === 'string' && node.value.trim() in OPENING_WORDS) {
+  if (node.kind === 'scalar' && typeof node.value === 'string' && Object.hasOwn(OPENING_WORDS, node.value.trim())) {
     return OPENING_WORDS[node.value.trim()];
   }
   return ck.fraction(node, what);

@@ -183,6 +183,8 @@ export interface SimulateSpec {
   tolerance: number;       // relative
   maxSteps?: number;
   maxWall?: number;        // s
+  /** Where `sample` was written (or the `simulate` section when it was not), for diagnostics about the output grid. */
+  samplePos?: SourcePos;
 }
 
 /** Quantities of the built-in kinds; kinds read from their table bring their own (kinds.ts). */

@@ -98,7 +98,7 @@ function fromYamlError(file: string, e: YAMLError, warning: boolean, source: str
   const pos = quote !== undefined ? lineColumn(source, quote) : at ? { line: at.line, column: at.col } : { line: 1, column: 1 };
   const code = e.code === 'DUPLICATE_KEY' ? 'duplicate-key' : e.code === 'TAG_RESOLVE_FAILED' || warning ? 'yaml-tag' : 'yaml-syntax';
   if (quote !== undefined) return diag(file, code, pos, `the quoted text opened here (\`${source[quote]}\`) is never closed`, 'close the quote on the same line');
-  const hint = YAML_HINTS[e.code] ?? 'check the YAML syntax near here';
+  const hint = (Object.hasOwn(YAML_HINTS, e.code) ? YAML_HINTS[e.code] : undefined) ?? 'check the YAML syntax near here';
   return diag(file, code, pos, yamlMessage(e), hint);
 }
 

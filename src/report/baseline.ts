@@ -36,7 +36,8 @@ const UNIT_OF_LAST: Record<string, string> = {
 
 /** The unit of a summary key, from its last part. */
 export function summaryUnit(key: string): string {
-  return UNIT_OF_LAST[key.slice(key.lastIndexOf('.') + 1)] ?? '-';
+  const last = key.slice(key.lastIndexOf('.') + 1);
+  return Object.hasOwn(UNIT_OF_LAST, last) ? UNIT_OF_LAST[last] : '-';
 }
 
 function round(x: number, digits = DIGITS): number | null {

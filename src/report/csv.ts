@@ -11,13 +11,24 @@ function num(x: number): string {
   return String(Number(x.toPrecision(12)));
 }
 
+/** The header line of the CSV trace (no line break). */
+export function csvHeader(channels: readonly { key: string; unit: string }[]): string {
+  return ['time [s]', ...channels.map((c) => `${c.key} [${c.unit}]`)].join(',');
+}
+
+/** One row of the CSV trace (no line break): the time, then every channel's value. */
+export function csvRow(t: number, values: ArrayLike<number>): string {
+  let s = num(t);
+  for (let c = 0; c < values.length; c++) s += `,${num(values[c])}`;
+  return s;
+}
+
 export function traceCsv(trace: Trace): string {
-  const head = ['time [s]', ...trace.channels.map((c) => `${c.key} [${c.unit}]`)].join(',');
-  const lines = [head];
+  const lines = [csvHeader(trace.channels)];
+  const row = new Float64Array(trace.channels.length);
   for (let k = 0; k < trace.times.length; k++) {
-    const row = [num(trace.times[k])];
-    for (let c = 0; c < trace.channels.length; c++) row.push(num(trace.values[c][k]));
-    lines.push(row.join(','));
+    for (let c = 0; c < trace.channels.length; c++) row[c] = trace.values[c][k];
+    lines.push(csvRow(trace.times[k], row));
   }
   return lines.join('\n') + '\n';
 }

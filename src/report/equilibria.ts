@@ -5,6 +5,7 @@ import type { ChamberRest, EquilibriaResult } from '../equilibria/equilibria.js'
 import type { TraceResult } from '../equilibria/continuation.js';
 import { display, significant } from '../units/display.js';
 import { nameList } from './table.js';
+import { printable } from '../diag/text.js';
 
 /** JSON has no Infinity/NaN: write them as null. */
 function json(value: unknown): string {
@@ -35,7 +36,7 @@ const TALL_MAX_EQUILIBRIA = 12;
 /** The printed summary of `plenum equilibria`. */
 export function equilibriaText(r: EquilibriaResult): string {
   const out: string[] = [];
-  out.push(`${r.title}  (${r.file})`);
+  out.push(`${printable(r.title)}  (${printable(r.file)})`);
   const valves = r.valves === 'end' ? 'valves as at the end of their schedules' : `valves ${r.valves}`;
   out.push(`${valves}; gas as held at the ${r.gas === 'start' ? 'start' : 'end of the transient'}; ${r.message}`);
   for (const g of r.groups) {
@@ -127,7 +128,7 @@ export function traceText(r: TraceResult): string {
   const out: string[] = [];
   const u = r.parameter.unit ? ` ${r.parameter.unit}` : '';
   const v = (x: number): string => `${+x.toPrecision(6)}${u}`;
-  out.push(`${r.title}  (${r.file})`);
+  out.push(`${printable(r.title)}  (${printable(r.file)})`);
   out.push(`${r.parameter.vary} from ${v(r.parameter.from)} to ${v(r.parameter.to)}: ${r.message}`);
   out.push('');
   for (const b of r.branches) {

@@ -338,6 +338,10 @@ export function reportHtml(input: ReportInput): string {
     ? h('ol', { class: 'events' }, ...r.events.map((e, i) => h('li', { class: /exceeds its/.test(e.what) ? 'warn' : undefined, id: `event-${i + 1}` },
       h('span', { class: 'n' }, String(i + 1)), h('span', { class: 't' }, esc(display(e.t, 'time'))), h('span', {}, esc(e.what)))))
     : '<p>No events.</p>';
+  const omitted = r.events_omitted
+    ? h('p', { class: 'meta' }, esc(`${r.events_omitted} more events between the first ${r.events.length / 2} and the last ${r.events.length / 2} are not listed; all events by element: `
+      + (r.event_counts ?? []).map((c) => `${c.element || 'schedules'} ${c.kind} ${c.count} (${display(c.first, 'time')} to ${display(c.last, 'time')})`).join('; ')))
+    : '';
   const checks = r.expectations.length
     ? table(['expectation', 'result', 'actual', 'where'], r.expectations.map((e) => [
       `<b>${esc(e.name)}</b><br><span class="meta">${esc(e.message)}</span>`,
@@ -372,7 +376,7 @@ export function reportHtml(input: ReportInput): string {
       h('h3', {}, 'Lines and valves'), pathTable(input),
       boundaryTable(input) ? h('h3', {}, 'Boundaries') + boundaryTable(input) : '',
       h('h3', {}, 'Mass balance'), mass),
-    h('section', { id: 'events' }, h('h2', {}, 'Events'), h('p', { class: 'meta' }, 'The numbers match the marks on the top edge of the time charts.'), events),
+    h('section', { id: 'events' }, h('h2', {}, 'Events'), h('p', { class: 'meta' }, 'The numbers match the marks on the top edge of the time charts.'), events, omitted),
     h('section', { id: 'checks' }, h('h2', {}, 'Expectations'), checks),
     h('section', { id: 'warnings' }, h('h2', {}, 'Warnings and safety'), warnings, safetyNotes()),
     h('section', { id: 'solver' }, h('h2', {}, 'Solver'), h('p', {}, esc(r.message)), solver),

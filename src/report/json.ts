@@ -14,6 +14,7 @@ export function resultJson(r: RunResult): string {
     ...r.sections,
     mass: r.mass,
     events: r.events,
+    ...(r.events_omitted ? { events_omitted: r.events_omitted, event_counts: r.event_counts } : {}),
     warnings: r.warnings,
     expectations: r.expectations.map((e) => ({ name: e.name, passed: e.passed, actual: e.actual, message: e.message })),
     ...(r.fault ? { fault: r.fault } : {}),

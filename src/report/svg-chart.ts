@@ -342,7 +342,8 @@ export function chartSvg(spec: ChartSpec, options: RenderOptions = {}): string {
       tag('line', { x1: x, y1: top - 5, x2: x, y2: top, stroke: color, 'stroke-width': 1 }),
     ));
   }
-  if (evLines.length) parts.push(tag('g', { class: 'event-lines' }, ...evLines));
+  // joined, not spread: a spread of many thousand arguments overflows the call stack
+  if (evLines.length) parts.push(tag('g', { class: 'event-lines' }, evLines.join('')));
 
   // series
   const serSvg: string[] = [];
@@ -438,7 +439,7 @@ export function chartSvg(spec: ChartSpec, options: RenderOptions = {}): string {
     }, l.text));
   }
   if (lblSvg.length) parts.push(tag('g', { class: 'end-labels' }, ...lblSvg));
-  if (evTags.length) parts.push(tag('g', { class: 'events' }, ...evTags));
+  if (evTags.length) parts.push(tag('g', { class: 'events' }, evTags.join('')));
   if (offScale.length) {
     parts.push(text({ x: left + pw, y: unitRowY, 'font-size': 10.5, fill: LIMIT, 'text-anchor': 'end' }, `above the plotted range: ${offScale.join('; ')}`));
   }

@@ -2,6 +2,7 @@
 import type { RunResult } from '../transient/results.js';
 import { keepLargest } from '../transient/select.js';
 import { display } from '../units/display.js';
+import { printable } from '../diag/text.js';
 
 function table(head: string[], rows: string[][]): string {
   const w = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
@@ -43,7 +44,7 @@ function flatFields(s: Record<string, unknown>, prefix = ''): [string, string][]
 
 export function summaryText(r: RunResult): string {
   const out: string[] = [];
-  out.push(`${r.title}  (${r.file})`);
+  out.push(`${printable(r.title)}  (${printable(r.file)})`);
   out.push(`${r.status === 'completed' ? 'completed' : 'FAILED'}: ${r.message}`);
   out.push(`solver ${r.stats.method}: ${r.stats.steps} steps (${r.stats.rejected} rejected), ${r.stats.rhs} rhs, ${r.stats.jacobians} jacobians, ${r.stats.wall_ms} ms`);
   out.push('');
@@ -99,7 +100,12 @@ export function summaryText(r: RunResult): string {
     out.push('events:');
     const shown = r.events.slice(0, 40);
     for (const e of shown) out.push(`  ${display(e.t, 'time').padStart(10)}  ${e.what}`);
-    if (r.events.length > shown.length) out.push(`  ... and ${r.events.length - shown.length} more (see --json)`);
+    const more = r.events.length - shown.length + (r.events_omitted ?? 0);
+    if (more > 0) out.push(`  ... and ${more} more (see --json)`);
+    if (r.events_omitted) {
+      const top = [...(r.event_counts ?? [])].sort((a, b) => b.count - a.count).slice(0, 5);
+      out.push(`  events by element: ${top.map((c) => `${c.element || 'schedules'} ${c.kind} ${c.count}`).join(', ')}${(r.event_counts?.length ?? 0) > top.length ? ', ...' : ''}`);
+    }
     out.push('');
   }
   const m = r.mass;
@@ -114,7 +120,7 @@ export function summaryText(r: RunResult): string {
   if (r.expectations.length) {
     out.push('');
     const pass = r.expectations.filter((e) => e.passed).length;
-    for (const e of r.expectations) out.push(`  ${e.passed ? 'pass' : 'FAIL'}  ${e.name}: ${e.message}${e.passed ? '' : `  (${e.file}:${e.line}:${e.column})`}`);
+    for (const e of r.expectations) out.push(`  ${e.passed ? 'pass' : 'FAIL'}  ${printable(e.name)}: ${printable(e.message)}${e.passed ? '' : `  (${e.file}:${e.line}:${e.column})`}`);
     out.push(`expectations: ${pass} passed, ${r.expectations.length - pass} failed`);
   }
   return out.join('\n') + '\n';

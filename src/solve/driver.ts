@@ -23,7 +23,16 @@ export interface EventfulProblem extends OdeProblem {
   eventDirection(k: number): number;
   /** Applies event k at t (state y). Returns true if the rhs changed (the integrator must restart). */
   fireEvent(k: number, t: number, y: Float64Array, rising: boolean): boolean;
+  /**
+   * Optional: true for an event that only logs (an extremum passed, a limit exceeded): it never
+   * changes the rhs, so the driver neither restarts nor shortens the step for it, and may leave
+   * out its repetitions when it chatters (see CHATTER_FIRINGS).
+   */
+  eventLogsOnly?(k: number): boolean;
 }
+
+/** A log-only event that chattered: it fired `count` times more than were logged, between `from` and `to`. */
+export interface EventChatter { k: number; count: number; from: number; to: number }
 
 export interface DriverOptions {
   integrator: Integrator;
@@ -43,9 +52,17 @@ export interface DriverOptions {
   onStep?(tOld: number, tNew: number, dense: DenseOutput): void;
   maxSteps?: number;
   maxWallMs?: number;
+  /**
+   * When the wall-time budget started (ms since the epoch, as Date.now()); default: when
+   * `drive` is called. A caller that prepares the run (the system, the choice of method) passes
+   * its own start so that the budget covers that work too.
+   */
+  wallStart?: number;
   /** Polled once a step; a string stops the run with that message (e.g. Ctrl-C). */
   interrupt?: () => string | null;
   hMax?: number;
+  /** Called once for each burst of a chattering log-only event, when it ends or at the end of the run. */
+  onChatter?(c: EventChatter): void;
   /**
    * Integrator to continue with when the first one fails numerically (step-size collapse,
    * non-finite values, singular matrix): `method: auto` starts explicit and falls back to the
@@ -68,6 +85,14 @@ export interface DriverResult {
 }
 
 const ILLINOIS_ITER = 100;
+/**
+ * A log-only event that fires more than this many times within CHATTER_SPAN of the run's
+ * duration, counted from the first firing of the burst, chatters: its further firings in the
+ * burst are counted, not logged (a thin membrane hovering at its pressure minimum crossed it a
+ * million times within 1e-12 s, each a restart of the integrator, before this limit).
+ */
+const CHATTER_FIRINGS = 20;
+const CHATTER_SPAN = 1e-3;
 /** Gaps to the next stop below this many doubles (relative to t) are not integrated (the integrators' own floor is 10). */
 const ROUND_OFF_GAP = 16 * 2.220446049250313e-16;
 
@@ -76,7 +101,10 @@ function locate(p: EventfulProblem, k: number, a: number, ga: number, b: number,
   dense: DenseOutput, yTmp: Float64Array, gTmp: Float64Array): number {
   let side = 0;
   for (let i = 0; i < ILLINOIS_ITER; i++) {
-    const c = (a * gb - b * ga) / (gb - ga);
+    let c = (a * gb - b * ga) / (gb - ga);
+    // the secant can land on an end once one end sits at the root within round-off (g = -1e-15
+    // at a, the other end far away): bisect then, so that b still closes in on the root
+    if (!(c > a && c < b)) c = 0.5 * (a + b);
     if (!(c > a && c < b)) break;
     dense(c, yTmp);
     p.eventValues(c, yTmp, gTmp);
@@ -141,7 +169,16 @@ function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Floa
     dense(tc, yTmp);
     p.eventValues(tc, yTmp, gTmp);
     const crossed = set.filter((k) => crosses(p, k, gA[k], gTmp[k]));
-    if (crossed.length === 0) break; // round-off at the root: keep hi
+    if (crossed.length === 0) {
+      // `locate` saw kBest on its crossed side at tc, but the value there is of the order of
+      // round-off and a re-evaluation can come out on the other side (a chamber's volume solve
+      // is warm-started from the last one, so the same point can differ in the last bits).
+      // The crossing is at tc: keeping hi fired it at the step's end instead, up to a whole
+      // step late (a relief valve set at 150 kPa gauge opened at 174 kPa, found by calibration).
+      hi = tc;
+      gAt.set(gTmp);
+      return { t: hi, crossed: [kBest] };
+    }
     hi = tc;
     gAt.set(gTmp);
     if (crossed.length === 1) return { t: hi, crossed };
@@ -151,7 +188,7 @@ function firstCrossings(p: EventfulProblem, cands: number[], a: number, gA: Floa
 }
 
 export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
-  const started = Date.now();
+  const started = o.wallStart ?? Date.now();
   const work = zeroWork();
   const n = p.n;
   let t = o.t0;
@@ -194,6 +231,27 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
     const why = o.interrupt?.();
     return why ? { cause: 'interrupted', message: `${why} at t = ${tNow.toPrecision(6)} s` } : null;
   };
+  // chatter of log-only events: the start of each event's current burst and its firings in it
+  const logged: number[] = [];
+  const MAX_PASSES = 4 + 2 * p.nEvents;
+  const burstFrom = new Float64Array(p.nEvents).fill(-Infinity);
+  const burstLast = new Float64Array(p.nEvents);
+  const burstCount = new Float64Array(p.nEvents);
+  const span = CHATTER_SPAN * (o.tEnd - o.t0);
+  const endBurst = (k: number): void => {
+    if (burstCount[k] > CHATTER_FIRINGS) o.onChatter?.({ k, count: burstCount[k] - CHATTER_FIRINGS, from: burstFrom[k], to: burstLast[k] });
+  };
+  /** Counts a firing of log-only event k at t; true when it chatters and is not to be logged. */
+  const chattering = (k: number, tk: number): boolean => {
+    if (tk - burstFrom[k] > span) {
+      endBurst(k);
+      burstFrom[k] = tk;
+      burstCount[k] = 0;
+    }
+    burstCount[k]++;
+    burstLast[k] = tk;
+    return burstCount[k] > CHATTER_FIRINGS;
+  };
   let h0: number | undefined;
   let failure: DriverResult | null = null;
   let integrator = o.integrator;
@@ -212,32 +270,55 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
       let budgetStop: Pick<DriverResult, 'cause' | 'message'> | null = null;
       const onStep = (tOld: number, tNew: number, yNew: Float64Array, dense: DenseOutput): boolean => {
         p.eventValues(tNew, yNew, gNew);
-        // the earliest qualifying crossing, and every event crossed by then
-        cands.length = 0;
-        for (let k = 0; k < p.nEvents; k++) if (crosses(p, k, gPrev[k], gNew[k])) cands.push(k);
-        let reported = false;
-        if (cands.length > 0) {
-          const first = firstCrossings(p, cands, tOld, gPrev, tNew, gNew, dense, yTmp, gTmp, gAt);
+        // the crossings in this step, earliest first: log-only events are fired where they
+        // cross and the search goes on in the rest of the step; an event that changes the rhs
+        // ends the step there (the integrator restarts at it)
+        let tA = tOld;
+        let reported = tOld; // the dense output is handed to onStep in pieces that tile the step
+        for (let pass = 0; ; pass++) {
+          cands.length = 0;
+          for (let k = 0; k < p.nEvents; k++) if (crosses(p, k, gPrev[k], gNew[k])) cands.push(k);
+          if (cands.length === 0) break;
+          const first = firstCrossings(p, cands, tA, gPrev, tNew, gNew, dense, yTmp, gTmp, gAt);
           const tFirst = first.t;
           emitSamples(tFirst, dense, false);
-          o.onStep?.(tOld, tFirst, dense);
-          reported = true;
+          if (tFirst > reported) {
+            o.onStep?.(reported, tFirst, dense);
+            reported = tFirst;
+          }
           dense(tFirst, yEv);
           let restart = false;
+          logged.length = 0;
           for (const k of first.crossed) {
-            if (p.fireEvent(k, tFirst, yEv, gAt[k] > gPrev[k])) restart = true;
+            const rising = gAt[k] > gPrev[k];
+            if (p.eventLogsOnly?.(k)) {
+              logged.push(k, rising ? 1 : -1);
+              if (chattering(k, tFirst)) continue;
+            }
+            if (p.fireEvent(k, tFirst, yEv, rising)) restart = true;
           }
           // every other event function is re-read at the event time, so a crossing later in
-          // this step is found again on the next step
+          // this step is found on the next pass (or the next step)
           p.eventValues(tFirst, yEv, gPrev);
-          if (restart || tFirst < tNew) {
+          // a log-only event's function is unchanged by firing: keep it on the side it crossed
+          // to, or round-off at the root (the dense output at the root against the step's end)
+          // makes the same crossing count again on the next step
+          for (let i = 0; i < logged.length; i += 2) {
+            const k = logged[i];
+            if (logged[i + 1] > 0 && !(gPrev[k] > 0)) gPrev[k] = Number.MIN_VALUE;
+            if (logged[i + 1] < 0 && !(gPrev[k] < 0)) gPrev[k] = -Number.MIN_VALUE;
+          }
+          if (restart || pass >= MAX_PASSES) {
             o.observe(tFirst, yEv, 'step');
             restartAt = tFirst;
             return false;
           }
+          if (tFirst >= tNew) break;
+          o.observe(tFirst, yEv, 'step');
+          tA = tFirst;
         }
         emitSamples(tNew, dense, true);
-        if (!reported) o.onStep?.(tOld, tNew, dense);
+        if (tNew > reported) o.onStep?.(reported, tNew, dense);
         o.observe(tNew, yNew, 'step');
         gPrev.set(gNew);
         budgetStop = budgetAt(tNew, stepsThisCall);
@@ -297,6 +378,7 @@ export function drive(p: EventfulProblem, o: DriverOptions): DriverResult {
       h0 = undefined;
     }
   }
+  for (let k = 0; k < p.nEvents; k++) endBurst(k);
   if (failure) return { ...failure, switchedAt };
   return { status: 'completed', cause: 'completed', message: `completed at t = ${o.tEnd} s`, t, y, work, switchedAt };
 }

@@ -12,6 +12,7 @@ import type { ParamValue } from './sweep-spec.js';
 import { summarise, wilson, type NumericSummary, type Proportion } from './sweep-stats.js';
 import { keepLargest } from '../transient/select.js';
 import type { Shard, Study, SweepResult } from './sweep.js';
+import { printable } from '../diag/text.js';
 
 export interface NumericField extends NumericSummary {
   key: string;
@@ -254,7 +255,7 @@ export function sweepSummaryText(r: SweepResult): string {
   const s = summariseCases(r.study, r.cases);
   const out: string[] = [];
   const shard = r.shard ? ` (shard ${r.shard.index}/${r.shard.count}: ${r.cases.length} of ${r.study.cases} cases)` : '';
-  out.push(`${r.study.title}: study ${r.study.id}, ${r.study.cases} cases${shard}`);
+  out.push(`${printable(r.study.title)}: study ${r.study.id}, ${r.study.cases} cases${shard}`);
   for (const c of s.categorical) {
     if (c.key === 'warnings' && c.values.length === 1 && c.values[0].value === 'none') continue;
     out.push(`  ${c.key}:`);
@@ -295,6 +296,61 @@ function fail(file: string, message: string, hint: string): { ok: false; diagnos
   return { ok: false, diagnostics: [{ code: 'merge', severity: 'error', message, file, line: 0, column: 0, path: [], hint }] };
 }
 
+type Shape = 'string' | 'number' | 'boolean' | 'int' | 'string?' | 'number?' | ((v: unknown) => string | null);
+
+const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+
+/** Where `v` departs from `shape` (a field name and what it should be), or null. */
+function misfit(v: unknown, shape: Record<string, Shape>): string | null {
+  if (!isObject(v)) return 'not an object';
+  for (const [key, want] of Object.entries(shape)) {
+    const x = v[key];
+    if (typeof want === 'function') {
+      const why = want(x);
+      if (why) return `\`${key}\` ${why}`;
+      continue;
+    }
+    const optional = want.endsWith('?');
+    const base = optional ? want.slice(0, -1) : want;
+    if (optional && x === null) continue;
+    const ok = base === 'int' ? Number.isSafeInteger(x) && (x as number) >= 0 : base === 'number' ? typeof x === 'number' || x === null : typeof x === base;
+    if (!ok) return `\`${key}\` is not ${base === 'int' ? 'a whole number' : `a ${base}`}${optional ? ' or null' : ''}`;
+  }
+  return null;
+}
+
+const listOf = (shape: Shape) => (v: unknown): string | null => {
+  if (!Array.isArray(v)) return 'is not a list';
+  for (let i = 0; i < v.length; i++) {
+    const why = typeof shape === 'string' ? misfit({ x: v[i] }, { x: shape }) : shape(v[i]);
+    if (why) return `[${i}]: ${why}`;
+  }
+  return null;
+};
+const objectOf = (shape: Record<string, Shape>) => (v: unknown): string | null => misfit(v, shape);
+const mapOf = (shape: Record<string, Shape>) => (v: unknown): string | null => {
+  if (!isObject(v)) return 'is not an object';
+  for (const [k, x] of Object.entries(v)) {
+    const why = misfit(x, shape);
+    if (why) return `.${k}: ${why}`;
+  }
+  return null;
+};
+
+const STUDY_SHAPE: Record<string, Shape> = {
+  id: 'string', netlist: objectOf({ file: 'string', sha256: 'string' }), title: 'string',
+  vary: listOf(objectOf({ path: 'string', values: 'string', kind: 'string', unit: 'string?' })),
+  seed: 'number?', samples: 'int', groups: 'int', cases: 'int', chambers: listOf('string'), expectations: listOf('string'),
+};
+const CASE_SHAPE: Record<string, Shape> = {
+  index: 'int', group: 'int', params: listOf(objectOf({ path: 'string', text: 'string', si: 'number?' })),
+  status: 'string', message: 'string', largest: 'string?', outcome: 'string?', settling_time: 'number?',
+  expectations: listOf(objectOf({ name: 'string', passed: 'boolean', actual: 'number?' })),
+  chambers: mapOf({ gauge: 'number?', volume: 'number?', stretch: 'number?', peak_gauge: 'number?' }),
+  mass_drift: 'number?', warnings: listOf('string'),
+};
+const SHARD_SHAPE: Record<string, Shape> = { index: 'int', count: 'int' };
+
 /** Reads a study JSON written by sweepJson (a shard or a whole study). */
 export function parseSweepJson(text: string, file: string): Result<SweepResult> {
   let j: unknown;
@@ -307,6 +363,11 @@ export function parseSweepJson(text: string, file: string): Result<SweepResult> 
   if (!o || typeof o !== 'object' || o.kind !== 'plenum-sweep' || o.format !== 1 || !o.study || !Array.isArray(o.cases)) {
     return fail(file, 'not a study written by `plenum sweep --json`', 'give the files `plenum sweep --json` wrote');
   }
+  const bad = misfit(o.study, STUDY_SHAPE) ?? (o.shard !== undefined ? misfit(o.shard, SHARD_SHAPE) : null);
+  if (bad) return fail(file, `is not a study as \`plenum sweep --json\` writes it: ${o.shard !== undefined && !misfit(o.study, STUDY_SHAPE) ? 'shard' : 'study'}: ${bad}`, 'give the files `plenum sweep --json` wrote, unedited');
+  if (o.shard && !(o.shard.index >= 1 && o.shard.index <= o.shard.count)) return fail(file, `is shard ${o.shard.index}/${o.shard.count}, which cannot be`, 'give the files `plenum sweep --json` wrote, unedited');
+  const badCase = listOf(objectOf(CASE_SHAPE))(o.cases);
+  if (badCase) return fail(file, `is not a study as \`plenum sweep --json\` writes it: cases${badCase}`, 'give the files `plenum sweep --json` wrote, unedited');
   const value: SweepResult = o.shard ? { study: o.study, shard: o.shard, cases: o.cases } : { study: o.study, cases: o.cases };
   return { ok: true, value, warnings: [] };
 }

@@ -112,7 +112,14 @@ function logSlope(times: number[], d: number[], t0: number): number {
 }
 
 /** Classifies how each group of chambers ends the recorded transient. */
-export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEvent[]): GroupOutcome[] {
+/** How often an element logged an event with one wording, and when first and last (see EventLog). */
+export interface OutcomeEventCount { element: string; kind: string; what: string; count: number; first: number; last: number }
+
+/**
+ * `events`: the events of the run; `counts`, when the run kept only some of its events, every
+ * event counted (a valve's openings are then taken from the counts).
+ */
+export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEvent[], counts?: OutcomeEventCount[]): GroupOutcome[] {
   const times = trace.times;
   const col = new Map(trace.channels.map((c, i) => [c.key, i] as const));
   const groups = chamberGroups(model, everConducts, (k) => model.feeds[k].initially > 0 || model.feeds[k].steps.some((s) => s.open > 0));
@@ -134,14 +141,22 @@ export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEven
       return kind === 'relief' || kind === 'check';
     }).map((b) => b.name));
     for (const v of valves) {
-      const opens = events.filter((e) => e.element === v && (e.kind === 'relief' || e.kind === 'check') && / opens/.test(e.what)).map((e) => e.t);
-      if (opens.length < 3) continue;
-      const period = (opens[opens.length - 1] - opens[0]) / (opens.length - 1);
-      const recent = opens[opens.length - 1] >= tEnd - Math.max(0.25 * (tEnd - times[0]), 2 * period);
+      const isOpen = (e: { element: string; kind: string; what: string }): boolean => e.element === v && (e.kind === 'relief' || e.kind === 'check') && / opens/.test(e.what);
+      let n = 0;
+      let first = Infinity;
+      let last = -Infinity;
+      if (counts) {
+        for (const c of counts) if (isOpen(c)) { n += c.count; first = Math.min(first, c.first); last = Math.max(last, c.last); }
+      } else {
+        for (const e of events) if (isOpen(e)) { n++; first = Math.min(first, e.t); last = Math.max(last, e.t); }
+      }
+      if (n < 3) continue;
+      const period = (last - first) / (n - 1);
+      const recent = last >= tEnd - Math.max(0.25 * (tEnd - times[0]), 2 * period);
       if (recent) {
         return {
           ...base, outcome: 'oscillating', settling_time: null, period,
-          evidence: `valve ${v} opened ${opens.length} times, the last at ${display(opens[opens.length - 1], 'time')} (period ≈ ${display(period, 'time')})`,
+          evidence: `valve ${v} opened ${n} times, the last at ${display(last, 'time')} (period ≈ ${display(period, 'time')})`,
         };
       }
     }

@@ -84,6 +84,9 @@ export interface RunFault {
   likely: string;
 }
 
+/** How many events of one kind an element logged, and when first and last (s). */
+export interface EventTally { element: string; kind: string; count: number; first: number; last: number }
+
 export interface RunResult {
   format: 1;
   title: string;
@@ -100,7 +103,15 @@ export interface RunResult {
   /** Rows of the printed table for those sections, where the elements give them (not in JSON). */
   rows?: Record<string, Record<string, [string, string][]>>;
   mass: { initial: number; final: number; through_boundaries: number; drift: number };
+  /**
+   * The events in time order: all of them, or, in a run with more than 1 000, the first 500 and
+   * the last 500 (see `events_omitted` and `event_counts`).
+   */
   events: { t: number; what: string }[];
+  /** Events left out of `events` (between the first and the last ones kept); absent when none. */
+  events_omitted?: number;
+  /** When events were left out: every event counted by element and kind, with its first and last time. */
+  event_counts?: EventTally[];
   warnings: string[];
   expectations: ExpectationResult[];
   /** Set when the run stopped early (status `failed`): the element, the time and a likely cause. */

@@ -3,15 +3,16 @@
  */
 import type { Model } from '../model/types.js';
 import { NetworkSystem } from '../assemble/system.js';
-import { drive } from '../solve/driver.js';
+import { drive, type EventChatter } from '../solve/driver.js';
 import { rosenbrock } from '../solve/rosenbrock.js';
 import { odex } from '../solve/odex.js';
 import type { Integrator } from '../solve/types.js';
 import { display } from '../units/display.js';
+import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import { ExpectationMonitor } from './expectations.js';
 import { TimeProbe, type ProbeRequest } from './probe-times.js';
 import { diagnoseFault } from './fault.js';
-import type { ChamberSummary, ElementSections, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
+import type { ChamberSummary, ElementSections, EventTally, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
 import { classifyOutcomes } from './outcome.js';
 
@@ -20,6 +21,11 @@ export interface SimulateOptions {
   interrupt?: () => string | null;
   /** Called now and then with the simulated time reached. */
   progress?: (t: number, tEnd: number) => void;
+  /**
+   * Receives the sampled history as it is taken (e.g. to stream the CSV to disk): `begin` once
+   * with the channels, then `sample` at every sample time with the channel values.
+   */
+  samples?: { begin(channels: readonly { key: string; unit: string }[]): void; sample(t: number, row: Float64Array): void };
   /** Channels to read at given times on the dense output (calibration); see RunResult.probed. */
   probe?: ProbeRequest;
 }
@@ -45,6 +51,26 @@ export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array)
     : { integrator: odex, name: 'odex', why: `auto: non-stiff (ρ(J)·duration ≈ ${Math.round(rho * model.simulate.duration)})` };
 }
 
+/** A log-only event that chattered, in words: which element, which crossing, how often, when. */
+function chatterWarning(sys: NetworkSystem, c: EventChatter): string {
+  const e = sys.events[c.k];
+  // the wording the event logged last (e.g. `pod passes its pressure minimum (1.2 kPa gauge)`)
+  const said = sys.log.counts().filter((n) => n.element === e.element && n.kind === e.kind).pop()?.what ?? `${e.element} ${e.kind}`;
+  return `${e.element} chatters: \`${said}\` ${c.count} more times between t = ${display(c.from, 'time')} and ${display(c.to, 'time')}, not logged one by one (the state hovers at the crossing)`;
+}
+
+/** Event counts by element and kind (the wording merged), in order of first occurrence. */
+function tallyByElement(counts: readonly { element: string; kind: string; count: number; first: number; last: number }[]): EventTally[] {
+  const by = new Map<string, EventTally>();
+  for (const c of counts) {
+    const key = `${c.element}\u0000${c.kind}`;
+    const t = by.get(key);
+    if (!t) by.set(key, { element: c.element, kind: c.kind, count: c.count, first: c.first, last: c.last });
+    else { t.count += c.count; t.first = Math.min(t.first, c.first); t.last = Math.max(t.last, c.last); }
+  }
+  return [...by.values()];
+}
+
 export function simulate(model: Model, options: SimulateOptions = {}): RunResult {
   const started = Date.now();
   const sys = new NetworkSystem(model);
@@ -55,6 +81,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const sample = model.simulate.sample ?? duration / DEFAULT_SAMPLES;
   const channels = sys.channels();
   const nch = channels.length;
+  options.samples?.begin(channels);
   const keys = new Map(channels.map((c, i) => [c.key, i] as const));
   const trace = { channels, times: [] as number[], values: channels.map(() => [] as number[]) };
   // expectations are judged on the dense output inside every step, not on samples
@@ -68,12 +95,14 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const summaries = sys.elements.flatMap((e) => e.summaries?.((key) => keys.get(key)!) ?? []);
   let lastProgress = 0;
 
+  const chatter: EventChatter[] = [];
   const row = new Float64Array(nch);
   const observe = (t: number, y: Float64Array, kind: 'sample' | 'step'): void => {
     sys.observe(t, y, row);
     if (kind === 'sample') {
       trace.times.push(t);
       for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
+      options.samples?.sample(t, row);
     }
     for (let s = 0; s < summaries.length; s++) summaries[s].track(t, row);
     if (options.progress && Date.now() - lastProgress > 100) {
@@ -90,7 +119,9 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     onStep,
     maxSteps: model.simulate.maxSteps ?? DEFAULT_MAX_STEPS,
     maxWallMs: model.simulate.maxWall !== undefined ? model.simulate.maxWall * 1000 : undefined,
+    wallStart: started,
     interrupt: options.interrupt,
+    onChatter: (c) => { chatter.push(c); },
   });
   const method = r.switchedAt !== undefined ? `${chosen}, then rodas from t = ${+r.switchedAt.toPrecision(6)} s` : chosen;
 
@@ -119,18 +150,29 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const initial = sys.totalMass(y0);
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
-  const drift = (final - initial - through) / initial;
+  // relative to the larger of the gas held at the start and the gas that came in or left: a
+  // feed into a nearly empty chamber made the start mass alone a divisor near zero (drift ∞)
+  const scale = Math.max(initial, Math.abs(through));
+  const drift = scale > 0 ? (final - initial - through) / scale : 0;
 
   const warnings: string[] = [];
-  const seen = new Set<string>();
-  for (const e of sys.log) {
-    if (e.warning && !seen.has(e.what)) {
-      seen.add(e.what);
-      warnings.push(`${e.what} at t = ${display(e.t, 'time')}: it may burst or yield; see the safety notes`);
+  const counts = sys.log.counts();
+  for (const c of counts) {
+    if (c.warning) {
+      warnings.push(`${c.what} at t = ${display(c.first, 'time')}: it may burst or yield; see the safety notes`);
     }
   }
+  for (const c of chatter) warnings.push(chatterWarning(sys, c));
   if (Math.abs(drift) > DRIFT_WARN) warnings.push(`mass balance drift ${drift.toExponential(2)} exceeds ${DRIFT_WARN}: results may be inaccurate`);
   for (const s of summaries) if (s.warnings) warnings.push(...s.warnings());
+  // a pressure past any physical range (a runaway supply expression, a stiff wall squeezed):
+  // the run completes, but its numbers mean nothing, and it must not pass silently
+  for (const [name, c] of Object.entries(chambers as unknown as Record<string, ChamberSummary>)) {
+    const peak = c.peak.gauge + model.pa;
+    if (!(peak <= MAX_GAS_PRESSURE)) {
+      warnings.push(`${name} reached ${Number.isFinite(peak) ? `${peak.toExponential(2)} Pa absolute` : 'a pressure that is not a finite number'} at t = ${display(c.peak.at, 'time')}, above ${MAX_GAS_PRESSURE / 1e6} MPa: past the range of plenum's gas and wall laws, so the results are not physical; check the supply pressures, the units and the wall parameters`);
+    }
+  }
 
   const expectations = r.status === 'completed'
     ? monitor.results(r.t, yEnd)
@@ -150,11 +192,12 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     ...(Object.keys(more).length ? { sections: more } : {}),
     ...(Object.keys(rows).length ? { rows } : {}),
     mass: { initial, final, through_boundaries: through, drift },
-    events: sys.log.map((e) => ({ t: e.t, what: e.what })),
+    events: sys.log.entries().map((e) => ({ t: e.t, what: e.what })),
+    ...(sys.log.omitted > 0 ? { events_omitted: sys.log.omitted, event_counts: tallyByElement(counts) } : {}),
     warnings,
     expectations,
     ...(fault ? { fault } : {}),
-    outcomes: classifyOutcomes(model, trace, sys.log),
+    outcomes: classifyOutcomes(model, trace, sys.log.entries(), sys.log.omitted > 0 ? counts : undefined),
     trace,
     ...(probe ? { probed: probe.values } : {}),
     ambient: model.pa,

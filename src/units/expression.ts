@@ -213,7 +213,7 @@ function compileNode(node: RawNode): Out {
     case 'FunctionNode':
       return compileFunction(node);
     default:
-      return refuse(NODE_REFUSALS[node.type] ?? `\`${node.type}\` is not allowed in an expression`);
+      return refuse((Object.hasOwn(NODE_REFUSALS, node.type) ? NODE_REFUSALS[node.type] : undefined) ?? `\`${node.type}\` is not allowed in an expression`);
   }
 }
 

@@ -74,7 +74,7 @@ export function parsePressure(text: string | number, ambientPa: number): Pressur
     return fail('out-of-range', `\`${text.trim()}\` is below vacuum (${kiloPascal(abs)} absolute)`, `the lowest possible pressure is 0 kPa abs = ${kiloPascal(-ambientPa)} gauge`);
   }
   if (abs > MAX_GAS_PRESSURE) {
-    return fail('out-of-range', `\`${text.trim()}\` is above ${MAX_GAS_PRESSURE / 1e6} MPa absolute, the highest gas pressure plenum accepts`, 'check the unit prefix and the exponent');
+    return aboveMaxPressure(text);
   }
   return { ok: true, abs, gauge: abs - ambientPa, reference };
 }
@@ -97,8 +97,14 @@ export function parseAmbientPressure(text: string | number): QuantityResult {
   return q;
 }
 
+/** The refusal of a pressure above MAX_GAS_PRESSURE: one wording for every pressure plenum reads. */
+export function aboveMaxPressure(text: string): ValueError {
+  return fail('out-of-range', `\`${text.trim()}\` is above ${MAX_GAS_PRESSURE / 1e6} MPa absolute, the highest gas pressure plenum accepts`, 'check the unit prefix and the exponent');
+}
+
 /**
  * A pressure difference (a check valve's cracking pressure, a tolerance): a plain pressure;
+ * bounded by the highest gas pressure like every pressure a gas can have or exert.
  * `gauge`, `psig`, `barg` and `psid` are accepted as meaning the same, `abs` is refused.
  */
 export function parsePressureDifference(text: string | number): QuantityResult {
@@ -109,5 +115,6 @@ export function parsePressureDifference(text: string | number): QuantityResult {
   if (reference === 'abs') {
     return fail('pressure-reference', `\`${text.trim()}\` is a difference of pressures and cannot be absolute`, `write a plain pressure, e.g. \`${body.trim()}\``);
   }
-  return parseQuantity(body, 'pressure');
+  const r = parseQuantity(body, 'pressure');
+  return r.ok && Math.abs(r.value) > MAX_GAS_PRESSURE ? aboveMaxPressure(text) : r;
 }

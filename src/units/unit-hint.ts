@@ -41,7 +41,8 @@ function prefixedUnitNames(): string[] {
 
 /** A hint for an unknown unit token, or undefined when nothing is close. */
 export function unknownUnitHint(token: string): string | undefined {
-  if (token in KNOWN_MISTAKES) return KNOWN_MISTAKES[token];
+  // own keys only: `constructor` or `toString` must not find Object's methods
+  if (Object.hasOwn(KNOWN_MISTAKES, token)) return KNOWN_MISTAKES[token];
   // Case slips first: an exact case-insensitive match is almost surely what was meant.
   const lower = token.toLowerCase();
   const sameLetters = prefixedUnitNames().filter((n) => n.toLowerCase() === lower);

@@ -78,7 +78,46 @@ function generated(): { name: string; content: string | Buffer; expected: Expect
       content: BASE + Array.from({ length: 5000 }, (_, i) => `junk_key_${i}: 1\n`).join(''),
       expected: { code: 'unknown-key', line: 10, column: 1 },
     },
+    // did-you-mean on hostile names: it must stay linear (these took 2 min, 71 s and 52 s, and
+    // the last printed 16 MB, when every unknown name was compared in full with every name)
+    { name: 'g14-long-names.yaml', content: longNames(), expected: { code: 'unconnected-chamber', line: 3, column: 3 } },
+    { name: 'g15-misspelt-references.yaml', content: misspeltReferences(3000), expected: { code: 'unknown-reference', line: 3004, column: 27 } },
+    { name: 'g16-huge-unknown-key.yaml', content: BASE + 'k'.repeat(MAX_SOURCE_BYTES - 2048) + ': 1\n', expected: { code: 'unknown-key', line: 10, column: 1 } },
+    // YAML escapes carrying terminal control sequences and CI workflow commands
+    {
+      name: 'g17-control-characters.yaml',
+      content: 'format: 1\ntitle: "\\e[31m::warning file=x::owned\\n::error::forged\\r"\n' + BASE.slice('format: 1\n'.length) + '"\\e[2J\\n::error::forged": 1\n',
+      expected: { code: 'unknown-key', line: 11, column: 1 },
+    },
   ];
+}
+
+/** Two chambers with 100 000-character names and a line naming a third, one letter off. */
+function longNames(): string {
+  const a = 'a'.repeat(100_000);
+  const b = 'b'.repeat(100_000);
+  return `format: 1
+chambers:
+  ${a}: { wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }
+  ${b}: { wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }
+lines:
+  link:
+    from: ${a.slice(1)}c
+    to: ${b}
+    diameter: 2 mm
+    length: 1 m
+simulate: { duration: 1 s }
+`;
+}
+
+/** `n` chambers in a chain whose lines all name chambers that do not exist, each one letter off. */
+function misspeltReferences(n: number): string {
+  const out = ['format: 1', 'chambers:'];
+  for (let i = 0; i < n; i++) out.push(`  cell_${i}: { wall: rigid, volume: 1 L, start: { pressure: 0 kPa gauge } }`);
+  out.push('lines:');
+  for (let i = 0; i < n; i++) out.push(`  l${i}: { from: cell_${i}, to: cel_${(i + 1) % n}, diameter: 2 mm, length: 1 m }`);
+  out.push('simulate: { duration: 1 s }', '');
+  return out.join('\n');
 }
 
 function plenum(args: string[]): Promise<Omit<Outcome, 'outDir'>> {
@@ -163,6 +202,29 @@ describe('the corpus of malformed netlists', () => {
     expect(err.match(/: error \[/g)).toHaveLength(50);
     expect(err).toContain('... and 4950 more problems not shown');
     expect(err).toContain('5000 errors in');
+  });
+
+  it('clips a huge unknown key in its message: a few lines, not megabytes', () => {
+    const file = relative(ROOT, join(tmp, 'generated', 'g16-huge-unknown-key.yaml'));
+    const err = outcomes.get(file)!.err;
+    expect(err.length).toBeLessThan(20_000);
+    expect(err).toMatch(/characters\)/);
+  });
+
+  it('prints 50 of 3 000 misspelt references, counts the rest', () => {
+    const file = relative(ROOT, join(tmp, 'generated', 'g15-misspelt-references.yaml'));
+    const err = outcomes.get(file)!.err;
+    expect(err.match(/: error \[/g)).toHaveLength(50);
+    expect(err).toContain('did you mean `cell_1`');
+    expect(err).toMatch(/\.\.\. and \d+ more problems not shown/);
+  });
+
+  it('escapes control characters and breaks up CI workflow commands from the netlist', () => {
+    const file = relative(ROOT, join(tmp, 'generated', 'g17-control-characters.yaml'));
+    const err = outcomes.get(file)!.err;
+    expect(err).not.toMatch(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f]/);
+    expect(err).not.toMatch(/^::/m);
+    expect(err).toContain('\\x1b[2J\\n::error::forged');
   });
 
   it('reports an alias bomb once, with the number of aliases', () => {

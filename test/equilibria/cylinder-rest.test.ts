@@ -1,4 +1,5 @@
 /** Rest positions of cylinders and their stability with the load's dynamics (equilibria/cylinder-rest.ts). */
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { cylinderSummary } from '../../src/transient/results.js';
 import { findEquilibria } from '../../src/equilibria/equilibria.js';
@@ -101,5 +102,16 @@ simulate: { duration: 0.5 s }
     expect(a.rests.map((e) => [e.where, e.stable])).toEqual([['full stroke', true]]);
     expect(b.rests).toEqual([]);
     expect(b.note).toContain('compliant chamber');
+  });
+
+  it('chambers joined to cylinder sides: the branches to the sides pass no gas at rest, and the transient reaches the rest found', () => {
+    const model = modelFromText(readFileSync('networks/clamp-stroke.yaml', 'utf8'), 'networks/clamp-stroke.yaml');
+    const r = findEquilibria(model);
+    expect(r.equilibria.length).toBe(1);
+    expect(Math.abs(r.equilibria[0].chambers.hose_a.gauge)).toBeLessThan(1e-6);
+    expect(r.equilibria[0].chambers.hose_b.gauge).toBeCloseTo(6e5, 3);
+    expect(r.transient?.reached).toBe(0);
+    expect(r.notes.some((n) => n.includes('a_throttle, a_check, b_throttle, b_check join a cylinder side'))).toBe(true);
+    expect(r.cylinders![0].rests.map((e) => e.where)).toEqual(['retracted stop']);
   });
 });

@@ -47,7 +47,17 @@ function checkDiagnostics(ds: Diagnostic[], text: string): void {
   }
 }
 
-function checkRun(r: RunResult, text: string, tally: Tally): void {
+/**
+ * Slack allowed past a wall-time budget (docs/robustness.md): the step under way is finished,
+ * then diagnosis and summaries run; for these small networks a fraction of a second, so 2 s is
+ * generous (a machine shared with other jobs included) and a run far past it is a finding.
+ */
+const WALL_SLACK_MS = 2000;
+
+function checkRun(r: RunResult, text: string, tally: Tally, maxWall?: number): void {
+  if (maxWall !== undefined && r.stats.wall_ms > maxWall * 1000 + WALL_SLACK_MS) {
+    fail(`the run took ${r.stats.wall_ms} ms against max-wall = ${maxWall} s`, text);
+  }
   if (r.status === 'completed') {
     tally.completed++;
     if (!(Math.abs(r.mass.drift) < 1e-9)) fail(`mass drift ${r.mass.drift}`, text);
@@ -72,7 +82,7 @@ export function validNetworksRun(tally: Tally): fc.IProperty<[{ text: string; ch
       fail(`a generated netlist was rejected:\n${m.diagnostics.map((d) => `${d.line}:${d.column} ${d.code} ${d.message}`).join('\n')}`, text);
     }
     tally.accepted++;
-    checkRun(simulate(m.model), text, tally);
+    checkRun(simulate(m.model), text, tally, m.model.simulate.maxWall);
   });
 }
 
@@ -89,6 +99,6 @@ export function mutantsAreHandled(tally: Tally): fc.IProperty<[{ text: string; c
     tally.accepted++;
     const s = m.model.simulate;
     const model: Model = { ...m.model, simulate: { ...s, maxSteps: Math.min(s.maxSteps ?? Infinity, MUTANT_BUDGET.maxSteps), maxWall: Math.min(s.maxWall ?? Infinity, MUTANT_BUDGET.maxWall) } };
-    checkRun(simulate(model), damaged, tally);
+    checkRun(simulate(model), damaged, tally, model.simulate.maxWall);
   });
 }

@@ -144,7 +144,9 @@ describe('readNetlist: a netlist using every key of format 1', () => {
   });
 
   it('reads simulate', () => {
-    expect(doc.simulate).toEqual({ duration: 5, sample: 0.001, method: 'implicit', tolerance: 1e-7, maxSteps: 100000, maxWall: 30 });
+    const { samplePos, ...simulate } = doc.simulate;
+    expect(simulate).toEqual({ duration: 5, sample: 0.001, method: 'implicit', tolerance: 1e-7, maxSteps: 100000, maxWall: 30 });
+    expect(samplePos?.path).toEqual(['simulate', 'sample']);
   });
 
   it('reads every kind of expectation with SI values (pressures absolute)', () => {
@@ -184,7 +186,9 @@ simulate: { duration: 1 s }
     expect(doc.gas.name).toBe('air');
     expect(doc.ambient).toEqual({ pressure: 101325, temperature: expect.closeTo(293.15, 12) });
     expect(doc.heat).toBe('isothermal');
-    expect(doc.simulate).toEqual({ duration: 1, method: 'auto', tolerance: 1e-6 });
+    const { samplePos, ...simulate } = doc.simulate;
+    expect(simulate).toEqual({ duration: 1, method: 'auto', tolerance: 1e-6 });
+    expect(samplePos?.path).toEqual(['simulate']);
     expect(doc.lines[0].roughness).toBe(0);
     expect(doc.valves[0].operation).toEqual({ kind: 'schedule', initially: 0, steps: [{ at: 1, open: 1, over: 0 }] });
     expect(doc.valves[0].rating).toMatchObject({ subsonicIndex: 0.5 });
