@@ -1,7 +1,7 @@
 /**
  * plenum as a library: read a netlist, build a model, simulate, and render results.
  *
- *   import { loadModel, simulate, resultJson } from 'plenum';
+ *   import { loadModel, simulate, resultJson, formatDiagnostic } from 'plenum';
  *   const m = loadModel(text, 'rig.yaml');
  *   if (!m.ok) console.error(m.diagnostics.map(formatDiagnostic).join('\n'));
  *   else console.log(resultJson(simulate(m.value)));
@@ -16,7 +16,7 @@ export type { Diagnostic, Result } from './diag/diagnostic.js';
 export { formatDiagnostic } from './diag/diagnostic.js';
 export type { NetlistDoc } from './netlist/types.js';
 export type { Model } from './model/types.js';
-export type { RunResult, Trace, ExpectationResult } from './transient/results.js';
+export type { RunResult, Trace, ExpectationResult, ChamberSummary, LineSummary, ValveSummary, RunStats } from './transient/results.js';
 export type { RunFault } from './transient/results.js';
 export { readNetlist } from './netlist/read.js';
 export { netlistJsonSchema } from './netlist/schema.js';
@@ -49,7 +49,7 @@ export { reportInput, type ReportInput, type ReportInputOptions, type Equilibriu
 export { reportHtml } from './report/html.js';
 export { reportFigures, type Figure, type FigureOptions } from './report/plots.js';
 export {
-  findEquilibria, restSetup, groupEquilibria, groupStability,
+  findEquilibria, openDuringRun, restSetup, groupEquilibria, groupStability,
   type EquilibriaOptions, type EquilibriaResult, type NetworkEquilibrium, type GroupResult, type GroupEquilibrium,
   type ChamberRest, type TransientMatch, type ValveState, type GasSource,
 } from './equilibria/equilibria.js';

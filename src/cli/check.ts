@@ -14,10 +14,11 @@ import { join } from 'node:path';
 import { performance } from 'node:perf_hooks';
 import { fileURLToPath } from 'node:url';
 import { Worker } from 'node:worker_threads';
+import { globSync } from 'tinyglobby';
 import { formatDiagnostic, junitXml, type NetlistCheck } from '../index.js';
 import { heapLimit } from '../transient/trace-memory.js';
 import { checkNetlist, internalError, NEXT, outOfMemory, STOP, type CheckMessage, type CheckWorkerData } from './check-one.js';
-import { checkOutputPaths, samePath, UsageError, writeOutput } from './io.js';
+import { checkOutputPaths, emit, samePath, toStdout, UsageError } from './io.js';
 import { printable, printableOutput } from '../diag/text.js';
 
 export interface CheckOptions { junit?: string; annotations?: boolean; jobs?: string; quiet?: boolean }
@@ -31,13 +32,28 @@ function workerFile(): string | undefined {
   return undefined;
 }
 
-/** A directory stands for the netlists in it (*.yaml, *.yml, sorted); duplicates are dropped. */
+/** Characters that make an argument a glob pattern (when no file has that very name). */
+const GLOB_MAGIC = /[*?[\]{}]/;
+
+/**
+ * A directory stands for the netlists in it (*.yaml, *.yml, sorted); a quoted glob pattern
+ * (`'networks/*.yaml'`, or with `**` for every depth) for the files it matches, sorted, as a shell would
+ * expand it (tinyglobby, so that Windows shells and quoted patterns in CI scripts work the same);
+ * duplicates are dropped. A pattern that matches nothing is a usage error.
+ */
 function expand(args: string[]): string[] {
   const out: string[] = [];
   const push = (f: string): void => { if (!out.some((o) => samePath(o, f))) out.push(f); };
   for (const a of args) {
     let dir = false;
-    try { dir = statSync(a).isDirectory(); } catch { /* reported when read */ }
+    let exists = false;
+    try { const st = statSync(a); exists = true; dir = st.isDirectory(); } catch { /* reported when read */ }
+    if (!exists && GLOB_MAGIC.test(a)) {
+      const matched = globSync(a, { onlyFiles: true, expandDirectories: false, dot: false }).sort();
+      if (!matched.length) throw new UsageError(`${a}: no file matches this pattern`);
+      for (const f of matched) push(f);
+      continue;
+    }
     if (!dir) { push(a); continue; }
     const inside = readdirSync(a).filter((f) => /\.ya?ml$/i.test(f)).sort();
     if (!inside.length) throw new UsageError(`${a}: the directory holds no netlists (*.yaml)`);
@@ -200,8 +216,9 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
   const started = performance.now();
   const files = expand(args);
   if (!files.length) throw new UsageError('no netlists given');
-  if (opts.junit && files.some((f) => samePath(f, opts.junit!))) throw new UsageError(`refusing to overwrite the netlist ${opts.junit} with the JUnit report`);
-  if (opts.junit === '-') throw new UsageError('--junit needs a file name');
+  // with the JUnit report on standard output (`--junit -`) the lines and the tally go to stderr
+  const log = toStdout({ '--junit': opts.junit }) ? process.stderr : process.stdout;
+  if (opts.junit && opts.junit !== '-' && files.some((f) => samePath(f, opts.junit!))) throw new UsageError(`refusing to overwrite the netlist ${opts.junit} with the JUnit report`);
   checkOutputPaths(files, { '--junit': opts.junit });
   const entry = workerFile();
   const jobs = entry ? parseJobs(opts.jobs, files.length) : 1;
@@ -219,7 +236,7 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
     while (printed < files.length && results[printed]) {
       const c = results[printed]!;
       const text = [...lines(c, quiet).map(printable), ...(opts.annotations ? annotations(c) : [])];
-      if (text.length) process.stdout.write(text.join('\n') + '\n');
+      if (text.length) log.write(text.join('\n') + '\n');
       printed++;
     }
   };
@@ -230,7 +247,7 @@ export async function checkCommand(args: string[], opts: CheckOptions): Promise<
   }
 
   const checks = results as NetlistCheck[];
-  process.stdout.write(tally(checks, jobs, (performance.now() - started) / 1000) + '\n');
-  if (opts.junit) writeOutput(opts.junit, junitXml(checks), '--junit');
+  log.write(tally(checks, jobs, (performance.now() - started) / 1000) + '\n');
+  if (opts.junit) emit(opts.junit, junitXml(checks), '--junit');
   return checkExitCode(checks);
 }

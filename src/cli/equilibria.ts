@@ -44,8 +44,9 @@ export function largestJoinedGroup(model: Model): number {
 export function equilibriaCommand(file: string, opts: EquilibriaCliOptions): number {
   const valves = (opts.valves ?? 'end') as ValveState;
   if (!VALVES.includes(valves)) throw new UsageError(`--valves must be one of ${VALVES.join(', ')}, not \`${opts.valves}\``);
-  const gas = (opts.gas ?? 'start') as GasSource;
-  if (!GAS.includes(gas)) throw new UsageError(`--gas must be start or end, not \`${opts.gas}\``);
+  // default: the end of the run for a network open to reservoirs or feeds (findEquilibria)
+  const gas = (opts.gas ?? (opts.transient === false ? 'start' : undefined)) as GasSource | undefined;
+  if (gas !== undefined && !GAS.includes(gas)) throw new UsageError(`--gas must be start or end, not \`${opts.gas}\``);
   if (gas === 'end' && opts.transient === false) throw new UsageError('--gas end needs the transient; drop --no-transient');
   let maxCombinations: number | undefined;
   if (opts.maxCombinations !== undefined) {

@@ -39,6 +39,8 @@ export function fitCommand(file: string, opts: FitCliOptions): number {
   const report = fitWall(data.value, opts.wall as FitLaw, { radius, thickness }, file);
   if (!report.ok) throw new UsageError(report.diagnostics.map(formatDiagnostic).join('\n'));
   const r = report.value;
+  // a law that does not describe the data is said on stderr too, whatever goes to stdout
+  for (const w of r.warnings) process.stderr.write(`plenum: warning: ${w}\n`);
   const toStdout = opts.json === '-' || opts.csv === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(fitText(r));
   emitOutputs([

@@ -280,3 +280,33 @@ export function makePlotsDir(dir: string): void {
     throw new UsageError(`cannot create --plots ${dir} (${errCode(e)}); nothing was written`);
   }
 }
+
+/**
+ * `-` as an output file means standard output. At most one output of a command may go there;
+ * returns true when one does (the command's own summary then goes to standard error).
+ */
+export function toStdout(outputs: Record<string, string | undefined>): boolean {
+  const dash = Object.entries(outputs).filter(([, v]) => v === '-').map(([k]) => k);
+  if (dash.length > 1) throw new UsageError(`only one of ${dash.join(' and ')} can go to standard output (-)`);
+  return dash.length === 1;
+}
+
+/** Writes a command's output: to standard output for `-`, else whole to the file (writeOutput). */
+export function emit(path: string, text: string, what: string): void {
+  if (path === '-') process.stdout.write(text);
+  else writeOutput(path, text, what);
+}
+
+/**
+ * A reader that closes the pipe early (`plenum schema | head -1`) is not an error: further
+ * output is dropped and the command ends with its usual exit status, without the EPIPE stack
+ * trace Node prints for an unhandled stream error.
+ */
+export function quietOnClosedPipe(): void {
+  for (const stream of [process.stdout, process.stderr]) {
+    stream.on('error', (e: NodeJS.ErrnoException) => {
+      if (e.code === 'EPIPE' || e.code === 'ERR_STREAM_DESTROYED') return;
+      throw e;
+    });
+  }
+}

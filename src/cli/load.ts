@@ -1,7 +1,7 @@
 /** Reads a netlist file for a command: diagnostics printed, exit 2 on any error. */
 import { formatDiagnostic, loadModel, type Diagnostic, type Model } from '../index.js';
 import { UsageError } from './io.js';
-import { readNetlistFile } from './netlist-file.js';
+import { netlistName, readNetlistFile } from './netlist-file.js';
 
 export { readNetlistFile };
 
@@ -15,15 +15,23 @@ function printDiagnostics(ds: readonly Diagnostic[]): void {
   if (shown.length) process.stderr.write(shown.join('\n') + '\n');
 }
 
-export function loadOrExit(file: string): Model {
-  const read = readNetlistFile(file);
-  const m = 'text' in read ? loadModel(read.text, file) : { ok: false as const, diagnostics: [read.tooLarge] };
+/**
+ * Reads (unless the caller already did: a pipe can be read only once), checks and builds a
+ * netlist; prints its warnings; on any error prints the diagnostics and throws a UsageError.
+ */
+export function loadOrExit(file: string, read: ReturnType<typeof readNetlistFile> = readNetlistFile(file)): Model {
+  return loadWithWarnings(file, read).model;
+}
+
+/** loadOrExit, also giving back the netlist's warnings (for reports that show them). */
+export function loadWithWarnings(file: string, read: ReturnType<typeof readNetlistFile> = readNetlistFile(file)): { model: Model; warnings: Diagnostic[] } {
+  const m = 'text' in read ? loadModel(read.text, netlistName(file)) : { ok: false as const, diagnostics: [read.tooLarge] };
   if (!m.ok) {
     const errs = m.diagnostics;
     const n = errs.filter((d) => d.severity === 'error').length;
     printDiagnostics(errs);
-    throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${file}; nothing was simulated or written`);
+    throw new UsageError(`${n} error${n === 1 ? '' : 's'} in ${netlistName(file)}; nothing was simulated or written`);
   }
   printDiagnostics(m.warnings);
-  return m.value;
+  return { model: m.value, warnings: m.warnings };
 }

@@ -6,7 +6,9 @@
  */
 import { Command, CommanderError } from 'commander';
 import { printableOutput } from '../diag/text.js';
-import { UsageError } from './io.js';
+import { quietOnClosedPipe, UsageError } from './io.js';
+
+quietOnClosedPipe();
 
 // Nothing from a netlist reaches the terminal raw: the strings plenum composes escape the
 // input they quote (src/diag/text.ts); as a last line of defence every string written to the
@@ -55,11 +57,11 @@ Examples:
 
 program.command('run')
   .description('simulate a netlist and print a summary; optionally write CSV and JSON')
-  .argument('<netlist>', 'netlist file (.yaml)')
+  .argument('<netlist>', 'netlist file (.yaml); - reads it from standard input')
   .option('--csv <file>', 'write the sampled time history as CSV (- for stdout)')
   .option('--json <file>', 'write the result summary as JSON (- for stdout)')
   .option('-q, --quiet', 'do not print the summary table')
-  .option('--baseline <file>', 'write a compact trace and summary for `plenum diff` (regression baselines)')
+  .option('--baseline <file>', 'write a compact trace and summary for `plenum diff` (regression baselines; - for stdout)')
   .option('--plots <dir>', 'write the figures (network, pressure–volume, time histories) as SVG files into this directory')
   .action(async (file: string, opts: { csv?: string; json?: string; quiet?: boolean; baseline?: string; plots?: string }) => {
     const { runCommand } = await import('./run.js');
@@ -68,8 +70,8 @@ program.command('run')
 
 program.command('check')
   .description('simulate netlists in parallel and judge their expectations (for CI): one line per expectation, a tally, exit 0/1/2/3')
-  .argument('<netlists...>', 'netlist files (.yaml), or directories of them')
-  .option('--junit <file>', 'write a JUnit XML report (one testsuite per netlist, one testcase per expectation)')
+  .argument('<netlists...>', 'netlist files (.yaml), directories of them, or quoted glob patterns (\'networks/*.yaml\')')
+  .option('--junit <file>', 'write a JUnit XML report (one testsuite per netlist, one testcase per expectation; - for stdout)')
   .option('--annotations', 'also print CI log annotations (`::error file=…,line=…::message`) for failures and warnings')
   .option('--jobs <n>', 'threads to use (default: the available cores; 1: the main thread only)')
   .option('-q, --quiet', 'print only failures, errors and the tally')
@@ -172,7 +174,7 @@ program.command('size')
 program.command('report')
   .description('simulate a netlist and write a self-contained HTML report (network, figures, tables, events, checks)')
   .argument('<netlist>', 'netlist file (.yaml)')
-  .option('-o, --out <file>', 'the HTML file to write')
+  .option('-o, --out <file>', 'the HTML file to write (- for stdout)')
   .option('--plots <dir>', 'also write the figures as SVG files into this directory')
   .option('--data <file>', 'a bench recording (CSV with `time [s]` and `<probe> [unit]` columns) to overlay, with a residual panel (repeatable)', (v: string, acc: string[]) => [...acc, v], [] as string[])
   .option('-q, --quiet', 'do not print the summary table')
@@ -185,7 +187,7 @@ program.command('equilibria')
   .description('find every equilibrium of the network for the gas it holds, its stability, and which one the transient reaches')
   .argument('<netlist>', 'netlist file (.yaml)')
   .option('--valves <state>', 'valves with a schedule: open, closed, or end (as at the end of their schedules)', 'end')
-  .option('--gas <source>', 'gas in each closed group: as held at the start, or at the end of the transient', 'start')
+  .option('--gas <source>', 'gas in each group: as held at the start, or at the end of the transient (default: end when a group exchanges gas with a reservoir or feed during the run, else start)')
   .option('--json <file>', 'write the equilibria as JSON (- for stdout)')
   .option('--no-transient', 'do not simulate to see which equilibrium the transient reaches')
   .option('--max-combinations <n>', 'branch combinations per group searched exhaustively before deflated Newton takes over (default 4096)')
@@ -226,6 +228,13 @@ program.command('kinds')
     const { kindsText } = await import('./kinds.js');
     process.stdout.write(kindsText(Boolean(opts.markdown)));
   });
+
+// no command at all is a usage error (exit 2), with the help on standard error
+if (process.argv.length <= 2) {
+  process.stderr.write(program.helpInformation());
+  process.stderr.write('plenum: no command given (run, check, report, ...); see above\n');
+  process.exit(2);
+}
 
 try {
   await program.parseAsync(process.argv);

@@ -7,6 +7,14 @@ import type { Diagnostic } from '../diag/diagnostic.js';
 import { MAX_SOURCE_BYTES, MAX_SOURCE_TEXT } from '../netlist/limits.js';
 import { UsageError } from './io.js';
 
+/** `-` names standard input (a netlist from a pipe); diagnostics then say `<stdin>`. */
+export const STDIN = '-';
+
+/** The name a netlist goes by in diagnostics and reports. */
+export function netlistName(file: string): string {
+  return file === STDIN ? '<stdin>' : file;
+}
+
 /**
  * The text of a netlist file for a command: `readBounded`, with a file that cannot be read at
  * all (missing, a directory, no permission) turned into a usage error.
@@ -24,12 +32,15 @@ export type BoundedRead = { text: string } | { tooLarge: Diagnostic } | { unread
  * The text of a file (a netlist or a study), read without ever holding more than the size limit
  * plus one chunk: a huge file, /dev/zero or an endless pipe is refused rather than read into
  * memory. Returns the text, the diagnostic for an input over the limit, or why the file cannot
- * be read (`ENOENT` as "no such file"; `directory` set for a directory).
+ * be read (`ENOENT` as "no such file"; `directory` set for a directory). `-` reads standard
+ * input (a pipe is read once, so the caller keeps the text).
  */
 export function readBounded(file: string, what = 'the netlist'): BoundedRead {
   let fd: number;
+  // /dev/stdin is read from the descriptor itself: reopening it fails for a socket (ENXIO)
+  const stdin = file === STDIN || file === '/dev/stdin';
   try {
-    fd = openSync(file, 'r');
+    fd = stdin ? 0 : openSync(file, 'r');
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     return { unreadable: code === 'ENOENT' ? 'no such file' : code ?? String(e), directory: false };
@@ -55,7 +66,7 @@ export function readBounded(file: string, what = 'the netlist'): BoundedRead {
         const limit = MAX_SOURCE_TEXT;
         return {
           tooLarge: {
-            code: 'input-too-large', severity: 'error', file, line: 1, column: 1, path: [],
+            code: 'input-too-large', severity: 'error', file: netlistName(file), line: 1, column: 1, path: [],
             message: st.isFile() ? `${what} is ${Math.max(st.size, total)} bytes, more than the limit of ${limit}` : `the input is longer than the limit of ${limit}`,
             hint: what === 'the netlist' ? 'split the network or generate a smaller netlist' : `plenum reads inputs up to ${limit}`,
           },
@@ -65,7 +76,7 @@ export function readBounded(file: string, what = 'the netlist'): BoundedRead {
     // invalid UTF-8 becomes U+FFFD, which the reader refuses as binary input
     return { text: Buffer.concat(chunks).toString('utf8') };
   } finally {
-    closeSync(fd);
+    if (!stdin) closeSync(fd);
   }
 }
 

@@ -5,10 +5,11 @@
  * its report, saying so (exit 3).
  */
 import { join } from 'node:path';
-import { findEquilibria, formatDiagnostic, measuredOverlays, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
+import { findEquilibria, formatDiagnostic, measuredOverlays, openDuringRun, reportFigures, reportHtml, reportInput, summaryText, type MeasuredOverlay, type Model, type RunResult } from '../index.js';
 import { readText } from './study-io.js';
-import { loadOrExit } from './load.js';
-import { checkOutputPaths, checkPlotsDir, makePlotsDir, samePath, UsageError, writeOutputs, type OutputFile } from './io.js';
+import { loadWithWarnings } from './load.js';
+import { checkOutputPaths, checkPlotsDir, makePlotsDir, samePath, toStdout, UsageError, writeOutputs, type OutputFile } from './io.js';
+import { progressLine, simulationProgress } from './progress.js';
 
 export { checkPlotsDir };
 import { interruptOnSigint, simulateInterruptibly } from './run-thread.js';
@@ -56,12 +57,16 @@ export function writeWithPlots(files: OutputFile[], plots: string | undefined, n
  */
 const EQUILIBRIA_MAX_CHAMBERS = 150;
 
-function restStates(model: Model): { equilibria?: ReturnType<typeof findEquilibria>['equilibria']; equilibriaNote?: string } {
+function restStates(model: Model, result: RunResult): { equilibria?: ReturnType<typeof findEquilibria>['equilibria']; equilibriaNote?: string; equilibriaGas?: 'start' | 'end' } {
   if (model.chambers.length > EQUILIBRIA_MAX_CHAMBERS) {
     return { equilibriaNote: `Equilibria are not marked for a network of more than ${EQUILIBRIA_MAX_CHAMBERS} chambers (this one has ${model.chambers.length}); \`plenum equilibria\` computes them.` };
   }
   try {
-    return { equilibria: findEquilibria(model, { transient: false }).equilibria };
+    // the gas the run ends with when it exchanged gas with reservoirs or feeds (as plenum
+    // equilibria does by default): marks for the start's gas can lie far from the trajectory
+    const end = openDuringRun(model) && result.status === 'completed';
+    const masses = end ? model.chambers.map((c) => result.chambers[c.name]?.final.mass ?? c.m0) : undefined;
+    return { equilibria: findEquilibria(model, { transient: false, gas: end ? 'end' : 'start', ...(masses ? { masses } : {}) }).equilibria, equilibriaGas: end ? 'end' : 'start' };
   } catch {
     return {};
   }
@@ -69,13 +74,14 @@ function restStates(model: Model): { equilibria?: ReturnType<typeof findEquilibr
 
 export async function reportCommand(file: string, opts: ReportOptions): Promise<number> {
   if (!opts.out) throw new UsageError('report needs --out FILE.html (where to write the report)');
-  if (opts.out === '-') throw new UsageError('--out needs a file name: the report is a file to open in a browser');
   checkOutputPaths(file, { '--out': opts.out });
+  // `--out -` writes the HTML to standard output (for a pipe); the summary then goes to stderr
+  const log = toStdout({ '--out': opts.out }) ? process.stderr : process.stdout;
   if (opts.plots) checkPlotsDir(opts.plots);
   // Ctrl-C stops the run; the report then covers what was computed (exit 3)
   const stop = interruptOnSigint();
   try {
-    const model = loadOrExit(file);
+    const { model, warnings: netlistWarnings } = loadWithWarnings(file);
     // recordings are checked before anything runs: bad data is exit 2 with nothing written
     let measured: MeasuredOverlay[] | undefined;
     if (opts.data?.length) {
@@ -88,15 +94,15 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
       measured = o.value.overlays;
       for (const note of o.value.notes) process.stderr.write(`plenum: note: ${note}\n`);
     }
-    const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
-    const result = await simulateInterruptibly(model, stop, tty
-      ? (t, tEnd) => process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `)
-      : undefined);
-    if (tty) process.stderr.write('\r\x1b[K');
-    if (!opts.quiet) process.stdout.write(summaryText(result));
-    const html = reportHtml(reportInput(model, result, { version: opts.version, measured, ...restStates(model) }));
-    const plots = writeWithPlots([{ path: opts.out, text: html, what: '--out' }], opts.plots, file, model, result, measured);
-    if (!opts.quiet) process.stdout.write(`\nreport written to ${opts.out}${plots ? `; ${plots} figures in ${opts.plots}` : ''}\n`);
+    const line = progressLine(opts.quiet);
+    const result = await simulateInterruptibly(model, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
+    line.clear();
+    if (!opts.quiet) log.write(summaryText(result));
+    const html = reportHtml(reportInput(model, result, { version: opts.version, measured, netlistWarnings: netlistWarnings.map(formatDiagnostic), ...restStates(model, result) }));
+    // `--out -`: the HTML goes to standard output (the summary went to stderr)
+    if (opts.out === '-') process.stdout.write(html);
+    const plots = writeWithPlots(opts.out === '-' ? [] : [{ path: opts.out, text: html, what: '--out' }], opts.plots, file, model, result, measured);
+    if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots ? `; ${plots} figures in ${opts.plots}` : ''}\n`);
     if (result.status === 'failed') {
       process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
       return 3;

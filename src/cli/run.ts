@@ -7,8 +7,9 @@
  */
 import { rmSync } from 'node:fs';
 import type { RunResult } from '../transient/results.js';
-import { checkOutputPaths, checkPlotsDir, samePath, stagingPath, UsageError, type OutputFile } from './io.js';
-import { readNetlistFile } from './netlist-file.js';
+import { checkOutputPaths, checkPlotsDir, samePath, stagingPath, toStdout, UsageError, type OutputFile } from './io.js';
+import { netlistName, readNetlistFile } from './netlist-file.js';
+import { progressLine, simulationProgress } from './progress.js';
 import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
 
 export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
@@ -17,7 +18,7 @@ export async function runCommand(file: string, opts: RunOptions): Promise<number
   for (const out of [opts.csv, opts.json, opts.baseline]) {
     if (out && out !== '-' && samePath(out, file)) throw new UsageError(`refusing to overwrite the netlist ${file} with an output file`);
   }
-  if (opts.csv === '-' && opts.json === '-') throw new UsageError('only one of --csv and --json can go to standard output (-)');
+  toStdout({ '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
   checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
   if (opts.plots) checkPlotsDir(opts.plots);
   // Ctrl-C is caught from here on: during the run it stops the simulation, which then
@@ -31,18 +32,17 @@ export async function runCommand(file: string, opts: RunOptions): Promise<number
 }
 
 async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupter): Promise<number> {
-  const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
-  const progress = tty
-    ? (t: number, tEnd: number): void => { process.stderr.write(`\r  simulating: t = ${t.toPrecision(4)} s of ${tEnd} s (${Math.floor((100 * t) / tEnd)} %)   `); }
-    : undefined;
-  // The worker starts on the text while this thread reads it too (see startSimulation).
+  const line = progressLine(opts.quiet);
+  const progress = line.active ? (t: number, tEnd: number): void => line.update(simulationProgress(t, tEnd)) : undefined;
+  // The worker starts on the text while this thread reads it too (see startSimulation). The
+  // text is read once: a netlist from a pipe (`-`, /dev/stdin) cannot be read twice.
   const text = readNetlistFile(file);
   // a CSV file is written by the simulating thread as the samples are taken, into the temporary
   // file that is renamed into place with the other outputs (csv-file.ts); standard output, a
   // device or a pipe gets the text at the end
   const csvTemp = opts.csv && opts.csv !== '-' ? stagingPath(opts.csv, '--csv') : undefined;
   const keepTrace = Boolean((opts.csv && !csvTemp) || opts.plots || opts.baseline);
-  const started = 'text' in text ? startSimulation(text.text, file, stop, progress, keepTrace, csvTemp) : undefined;
+  const started = 'text' in text ? startSimulation(text.text, netlistName(file), stop, progress, keepTrace, csvTemp) : undefined;
   let handedOver = false;
   // a second Ctrl-C ends the process at once: the partial CSV must not be left behind
   const onExit = (): void => { if (csvTemp) rmSync(csvTemp, { force: true }); };
@@ -51,7 +51,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     let model;
     try {
       const { loadOrExit } = await import('./load.js');
-      model = loadOrExit(file);
+      model = loadOrExit(file, text);
       if (opts.csv && !csvTemp) {
         // the CSV text of the history costs memory too: refuse what cannot be written
         const { formatDiagnostic, traceMemoryDiagnostic } = await import('../index.js');
@@ -66,11 +66,11 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
       throw e;
     }
     const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
-    if (tty) process.stderr.write('\r\x1b[K');
+    line.clear();
     const { baselineJson, resultJson, summaryText, traceCsv } = await import('../index.js');
 
-    const toStdout = opts.json === '-' || opts.csv === '-';
-    if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(summaryText(result));
+    const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
+    if (!opts.quiet) (stdoutTaken ? process.stderr : process.stdout).write(summaryText(result));
     // every output is made first and written together: a failure leaves none of them written
     const files: OutputFile[] = [];
     let stdout: string | undefined;

@@ -1,7 +1,8 @@
 /** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
 import { formatDiagnostic } from '../diag/diagnostic.js';
 import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
-import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
+import { checkOutputPaths, emitOutputs, toStdout, UsageError } from './io.js';
+import { progressLine } from './progress.js';
 import { readInputFile } from './netlist-file.js';
 
 export interface SweepCliOptions {
@@ -35,18 +36,19 @@ function parseShard(text: string | undefined): Shard | undefined {
 
 export async function sweepCommand(file: string, opts: SweepCliOptions): Promise<number> {
   checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json });
+  const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json });
   const samples = wholeNumber(opts.samples, '--samples', 1);
   const seed = wholeNumber(opts.seed, '--seed', 0);
   const jobs = wholeNumber(opts.jobs, '--jobs', 1);
   const shard = parseShard(opts.shard);
   const source = readInputFile(file, 'the netlist');
 
-  const tty = Boolean(process.stderr.isTTY) && !process.env.CI;
+  const line = progressLine(opts.quiet);
   const r = await runSweep({
     source, file, vary: opts.vary, samples, seed, jobs, shard,
-    progress: tty ? (done, total) => process.stderr.write(`\r  cases: ${done} of ${total}   `) : undefined,
+    progress: line.active ? (done, total) => line.update(`  cases: ${done} of ${total}`) : undefined,
   });
-  if (tty) process.stderr.write('\r\x1b[K');
+  line.clear();
   if (!r.ok) {
     const n = r.diagnostics.filter((d) => d.severity === 'error').length;
     throw new UsageError(`${r.diagnostics.map(formatDiagnostic).join('\n')}\n${n} error${n === 1 ? '' : 's'}; nothing was run or written`);
@@ -58,8 +60,7 @@ export async function sweepCommand(file: string, opts: SweepCliOptions): Promise
     const first = bad[0];
     process.stderr.write(`plenum: ${bad.length} of ${result.cases.length} cases did not complete (they count as outcomes); the first, case ${first.index} (${first.params.map((p) => `${p.path} = ${p.text}`).join(', ')}): ${first.status}: ${first.message.split('\n')[0]}\n`);
   }
-  const toStdout = opts.json === '-' || opts.csv === '-';
-  if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(sweepSummaryText(result));
+  if (!opts.quiet) (stdoutTaken ? process.stderr : process.stdout).write(sweepSummaryText(result));
   emitOutputs([
     { path: opts.json, text: () => sweepJson(result), what: '--json' },
     { path: opts.csv, text: () => sweepCsv(result), what: '--csv' },

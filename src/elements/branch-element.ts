@@ -4,6 +4,11 @@
  * node table's conserving transfer, and adds the transfer's jacobian from its flow partials
  * (branch.ts has the flow laws). A valve's schedule gives breakpoints; a relief valve's open
  * state and a check valve's opening are events.
+ *
+ * Channels: `<name>.flow` (kg/s, positive from → to) and `<name>.reynolds` for every branch; a
+ * valve adds `<name>.opening` (0–1: its schedule's opening, a relief valve's 0/1 state, a
+ * check valve 1 while the pressure difference exceeds its cracking pressure), and a relief or
+ * check valve `<name>.open` (1 open, 0 closed), so that a valve transient plots from the CSV.
  */
 import type { BranchModel } from '../model/types.js';
 import type { Schedule } from '../model/schedule.js';
@@ -67,6 +72,8 @@ export class BranchElement extends BranchState implements Element {
   private readonly withT: boolean;
   private readonly bp: BranchPartials = { q: 0, dp1: 0, dp2: 0, dT1: 0, dT2: 0 };
   private link = -1;
+  /** Time of the evaluated point (observe has no t of its own). */
+  private t = 0;
   /** A relief valve's open state, the one mode of a branch (others have none: not in the memo key). */
   readonly mode?: () => number;
 
@@ -80,6 +87,7 @@ export class BranchElement extends BranchState implements Element {
   }
 
   evaluate(t: number): void {
+    this.t = t;
     const n = this.nodes, i = this.from, j = this.to;
     this.flow(t, n.p[i], n.p[j], n.T[i], n.T[j], this.current);
   }
@@ -180,8 +188,23 @@ export class BranchElement extends BranchState implements Element {
     return [];
   }
 
+  /** The valve's operation kind, or undefined for a line. */
+  private get operation(): 'schedule' | 'check' | 'relief' | undefined {
+    return this.b.valve?.operation.kind as 'schedule' | 'check' | 'relief' | undefined;
+  }
+
+  /** Opening 0..1 at the evaluated point (see the file comment). */
+  openingNow(): number {
+    const op = this.b.valve?.operation;
+    if (op?.kind === 'check') return this.nodes.p[this.from] - op.cracking - this.nodes.p[this.to] > 0 ? 1 : 0;
+    return this.opening(this.t, this.nodes.p[this.from], this.nodes.p[this.to]);
+  }
+
   channels(): Channel[] {
     const ch: Channel[] = [{ key: `${this.name}.flow`, unit: 'kg/s' }, { key: `${this.name}.reynolds`, unit: '-' }];
+    if (this.b.kind === 'valve') ch.push({ key: `${this.name}.opening`, unit: '-' });
+    const op = this.operation;
+    if (op === 'check' || op === 'relief') ch.push({ key: `${this.name}.open`, unit: '-' });
     const host = this.b.hostLine;
     if (host) ch.push({ key: `${host}.flow`, unit: 'kg/s' }, { key: `${host}.reynolds`, unit: '-' });
     return ch;
@@ -191,6 +214,9 @@ export class BranchElement extends BranchState implements Element {
     const f = this.current;
     out[k++] = f.mdot;
     out[k++] = f.reynolds;
+    if (this.b.kind === 'valve') out[k++] = this.openingNow();
+    const op = this.operation;
+    if (op === 'check' || op === 'relief') out[k++] = this.openingNow() > 0 ? 1 : 0;
     if (this.b.hostLine) { out[k++] = f.mdot; out[k++] = f.reynolds; }
     return k;
   }
@@ -209,7 +235,26 @@ export class BranchElement extends BranchState implements Element {
       out.push({ section: 'lines', name: lineName, track, result: () => ({ peak_flow: pk.flow, peak_reynolds: pk.re, regime: regimeOf(pk.re) }) });
     }
     if (b.kind === 'valve') {
-      out.push({ section: 'valves', name: b.name, track: lineName ? () => {} : track, result: () => ({ peak_flow: pk.flow, choked: pk.choked }) });
+      // the opening's range and its value at the end; a relief or check valve's openings counted
+      const op = { min: Infinity, max: -Infinity, last: 0, opens: 0, open: false };
+      const trackOpening = (): void => {
+        const x = this.openingNow();
+        op.min = Math.min(op.min, x);
+        op.max = Math.max(op.max, x);
+        op.last = x;
+        if (x > 0 && !op.open) op.opens++;
+        op.open = x > 0;
+      };
+      const self = this.operation === 'check' || this.operation === 'relief';
+      out.push({
+        section: 'valves', name: b.name,
+        track: lineName ? trackOpening : () => { track(); trackOpening(); },
+        result: () => ({
+          peak_flow: pk.flow, choked: pk.choked,
+          opening: { final: op.last, min: Number.isFinite(op.min) ? op.min : op.last, max: Number.isFinite(op.max) ? op.max : op.last },
+          ...(self ? { open_at_end: op.open, times_opened: op.opens } : {}),
+        }),
+      });
     }
     return out;
   }

@@ -104,7 +104,7 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
     const traced: Float64Array[][] = [];
     for (const l of starts) {
       const c = prob.context(l);
-      if (typeof c === 'string') { notes.push(`at ${param.vary} = ${param.value(l)} ${param.unit}: ${c.split('\n')[0]}`); continue; }
+      if (typeof c === 'string') { notes.push(`at ${param.vary} = ${+param.value(l).toPrecision(6)} ${param.unit}: ${c.split('\n')[0]}`); continue; }
       const eq = groupEquilibria(c.setup, c.group, c.masses, { maxCombinations: 4096, stability: false });
       for (const e of eq.equilibria) {
         const x = new Float64Array(names.length + 1);

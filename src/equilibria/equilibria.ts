@@ -51,7 +51,7 @@
  * Funke, SIAM J. Sci. Comput. 37 (2015) A2026 (deflation, shifted operator with p = 2, σ = 1);
  * Nocedal & Wright, Numerical Optimization, 2nd ed., §10.3 (Levenberg–Marquardt).
  */
-import { everConducts } from '../model/groups.js';
+import { chamberGroups, everConducts } from '../model/groups.js';
 import { cylinderRests } from './cylinder-rest.js';
 import type { Model, NodeRef } from '../model/types.js';
 import type { RunResult } from '../transient/results.js';
@@ -110,20 +110,29 @@ function distanceTo(g: RestGroup, e: GroupEquilibrium, masses: ArrayLike<number>
   return d;
 }
 
+/** True when a group of chambers exchanges gas with a reservoir or a feed at some time in the run. */
+export function openDuringRun(model: Model): boolean {
+  const feedActive = (k: number): boolean => model.feeds[k]!.initially > 0 || model.feeds[k]!.steps.some((s) => s.open > 0);
+  return chamberGroups(model, everConducts, feedActive).some((g) => g.reservoirs.length > 0 || g.feeds.length > 0);
+}
+
 /**
  * Every equilibrium of the network (up to the stated limits), its stability, and which one the
  * transient from the start state reaches.
  */
 export function findEquilibria(model: Model, options: EquilibriaOptions = {}): EquilibriaResult {
   const valves = options.valves ?? 'end';
-  const gas = options.gas ?? 'start';
+  // default: the gas at the end of the run when some group exchanged gas with a reservoir or a
+  // feed during it (the start state's gas is then not where the run ends: a gripper charged
+  // from a supply holds far more gas at the end); else the gas at the start, which is the same
+  const gas = options.gas ?? (options.masses || !openDuringRun(model) ? 'start' : 'end');
   const maxCombinations = options.maxCombinations ?? DEFAULT_MAX_COMBINATIONS;
   const maxListed = options.maxListed ?? DEFAULT_MAX_LISTED;
   const setup = restSetup(model, valves);
   const notes = [...setup.notes];
 
   let run: RunResult | null = null;
-  if (options.transient !== false || gas === 'end') run = simulate(model);
+  if (options.transient !== false || (gas === 'end' && !options.masses)) run = simulate(model);
   const endMasses = run ? Float64Array.from(model.chambers.map((c) => run!.chambers[c.name].final.mass)) : null;
   let masses: Float64Array;
   if (options.masses) masses = Float64Array.from(options.masses);

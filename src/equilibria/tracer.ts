@@ -187,7 +187,7 @@ export class Tracer {
         const end = this.atParameter(guess, lb);
         const pt = end ? this.prob.point(end, 'end') : null;
         if (pt && end && Math.abs(cur.x[n] - lb) > 1e-12) { points.push(pt); nodes.push(end); }
-        why = `reached ${this.prob.param.vary} = ${this.prob.param.value(lb)}`;
+        why = `reached ${this.prob.param.vary} = ${+this.prob.param.value(lb).toPrecision(6)}${this.prob.param.unit ? ` ${this.prob.param.unit}` : ''}`;
         break;
       }
       const pt = this.prob.point(c.x);

@@ -8,6 +8,7 @@ import type { Diagnostic, Result } from '../diag/diagnostic.js';
 import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
 import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
 import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
+import { display } from '../units/display.js';
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
 import type { BranchModel, ChamberModel, ControllerModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
 import { ELEMENT_TABLES } from '../netlist/kinds.js';
@@ -258,7 +259,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
       const mono = monotoneFor(w, Vd);
       if (!mono.ok) {
         errs.push(diag(wallPos, 'wall-ambiguous',
-          `the gas mass is not an increasing function of volume for this wall${Vd > 0 ? ' with the tubing volume lumped into it' : ''} (near ${(mono.at ?? 0) * 1e6} mL): its state would be ambiguous`,
+          `the gas mass is not an increasing function of volume for this wall${Vd > 0 ? ' with the tubing volume lumped into it' : ''} (near ${display(mono.at ?? 0, 'volume')}): its state would be ambiguous`,
           Vd > 0 ? 'shorten or narrow the attached lines, or model the tubing as a rigid chamber of its own' : 'check the wall law data'));
         return;
       }

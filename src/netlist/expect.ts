@@ -265,9 +265,18 @@ function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): E
   const probeNode = ck.get(map, 'probe');
   const probe = probeNode ? readProbe(ck, probeNode, cx) : undefined;
   if (within === undefined || v.band === undefined || (probeNode && !probe)) return undefined;
-  const spec: ExpectSpec = { kind: 'settles', name, within, band: v.band as number, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  if (ck.get(s, 'relative-to') && v['relative-to'] === undefined) return undefined;
+  const relativeTo = (v['relative-to'] ?? 'excursion') as 'excursion' | 'final-value';
+  const spec: ExpectSpec = { kind: 'settles', name, within, band: v.band as number, relativeTo, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
   if (probe) spec.probe = probe;
   return spec;
+}
+
+/** The quantity a probe's text names (`x.gauge` → gauge), whatever its element; or undefined. */
+function probeQuantity(node: YNode): ProbeQuantity | undefined {
+  if (node.kind !== 'scalar' || typeof node.value !== 'string') return undefined;
+  const q = /\.([A-Za-z_-]+)\s*$/.exec(node.value)?.[1];
+  return q !== undefined && q in QUANTITY_DIMENSION ? (q as ProbeQuantity) : undefined;
 }
 
 function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | undefined {
@@ -287,8 +296,12 @@ function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | unde
   const probe = readProbe(ck, probeNode, cx);
   const what = `the expectation \`${name}\``;
   const when = readWhen(ck, map, cx, what);
+  // a probe that cannot be resolved (a misspelt element) still names its quantity: the values
+  // are checked in that dimension too, so that every problem shows in one pass
   const overshoot = when !== undefined && 'over' in when && when.stat === 'overshoot';
-  const compare = probe ? readComparison(ck, map, overshoot ? 'fraction' : probeValueKind(probe, cx.controllers), what) : undefined;
+  const quantity = probe?.quantity ?? probeQuantity(probeNode);
+  const valueKind = overshoot ? 'fraction' : probe ? probeValueKind(probe, cx.controllers) : quantity ? probeValueKind({ element: '', quantity, text: '' }, cx.controllers) : undefined;
+  const compare = valueKind ? readComparison(ck, map, valueKind, what) : undefined;
   if (!probe || !when || !compare) return undefined;
   return { kind: 'probe', name, probe, when, compare, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
 }

@@ -93,6 +93,8 @@ export const GAS_NAMES = ['air', 'nitrogen', 'helium', 'carbon-dioxide'] as cons
 export const HEAT_MODES = ['isothermal', 'adiabatic', 'exchange'] as const;
 export const METHODS = ['auto', 'explicit', 'implicit'] as const;
 export const STATS = ['max', 'min', 'mean', 'overshoot'] as const;
+/** What a `settles` band is a fraction of. */
+export const SETTLE_REFERENCES = ['excursion', 'final-value'] as const;
 export const SPHERE_LAWS = ['neo-hookean', 'mooney-rivlin', 'gent'] as const;
 export const CONTROLLER_KINDS = ['pid'] as const;
 export const ANTI_WINDUP = ['clamping', 'back-calculation'] as const;
@@ -554,7 +556,7 @@ export const EXPECT: KindTable = {
     opt('below', 'structure', 'passes when the value is below this (in the probe’s dimension)', { shape: 'probe-value' }),
     opt('above', 'structure', 'passes when the value is above this', { shape: 'probe-value' }),
     opt('near', 'structure', '{ value, within: <abs or %> }', { shape: 'near' }),
-    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber (or, with `probe`, that probe) stays within band of its final value after `within`', { shape: 'settles' }),
+    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber (or, with `probe`, that probe) stays within band (of its excursion) of its final value after `within`', { shape: 'settles' }),
   ],
 };
 
@@ -574,7 +576,8 @@ export const SETTLES: KindTable = {
   doc: 'settling check',
   params: [
     p('within', 'time', 'time after which every chamber stays in the band', { bounds: NON_NEGATIVE }),
-    p('band', 'fraction', 'band around the final value', { bounds: POSITIVE }),
+    p('band', 'fraction', 'band around the final value, as a fraction of each quantity’s excursion over the run (floor: 0.1 % of the final value)', { bounds: POSITIVE }),
+    opt('relative-to', 'enum', 'what the band is a fraction of: `excursion` (default; as the run’s outcome judges settling) or `final-value` (the absolute final pressure and volume)', { values: SETTLE_REFERENCES, default: 'excursion' }),
   ],
 };
 
@@ -585,6 +588,7 @@ export const TOP: KindTable = {
   params: [
     p('format', 'integer', 'netlist format version: 1'),
     opt('title', 'text', 'title for reports (default: the file name)'),
+    opt('description', 'text', 'free text describing the rig and the purpose of the run, shown in reports'),
     opt('gas', 'structure', 'air (default), nitrogen, helium, carbon-dioxide, or { molar-mass, gamma, viscosity }', { shape: 'gas', default: 'air' }),
     opt('ambient', 'structure', 'ambient pressure and temperature', { shape: 'ambient' }),
     opt('heat', 'enum', 'heat model: isothermal, adiabatic, or exchange (uses each chamber’s heat-transfer)', { values: HEAT_MODES, default: 'isothermal' }),

@@ -172,6 +172,9 @@ function readChecked(tree: YamlTree, source: string, file: string): Result<Netli
   const titleNode = ck.get(root, 'title');
   const titleValue = titleNode && ck.scalar(titleNode, '`title`', 'write the title as text');
   const title = titleValue === undefined || titleValue === '' ? baseName(file) : String(titleValue);
+  const descriptionNode = ck.get(root, 'description');
+  const descriptionValue = descriptionNode && ck.scalar(descriptionNode, '`description`', 'write the description as text (a `|` block keeps line breaks)');
+  const description = descriptionValue === undefined || descriptionValue === null || String(descriptionValue).trim() === '' ? undefined : String(descriptionValue).trim();
   const ambient = readAmbient(ck, root);
   ck.ambientPa = ambient.pressure;
   const gas = readGas(ck, root);
@@ -224,6 +227,7 @@ function readChecked(tree: YamlTree, source: string, file: string): Result<Netli
     source,
     format: 1,
     title,
+    ...(description !== undefined ? { description } : {}),
     gas,
     ambient,
     heat: heat as NetlistDoc['heat'],

@@ -223,8 +223,16 @@ export type ExpectSpec =
       compare: Comparison;
       pos: SourcePos;
     }
-  /** Every chamber's pressure and volume, or with `probe` that one probe, stay within band of their final values after `within`. */
-  | { kind: 'settles'; name: string; within: number; band: number; probe?: Probe; pos: SourcePos };
+  | {
+    kind: 'settles'; name: string; within: number;
+    /** Fraction of each quantity's excursion over the run (or of its final value, below). */
+    band: number;
+    /** `excursion` (default): |q − q_end| ≤ band·max(E, 0.1 %·|q_end|); `final-value`: ≤ band·|q_end|. */
+    relativeTo?: 'excursion' | 'final-value';
+    /** With `probe`: that one probe instead of every chamber's pressure and volume. */
+    probe?: Probe;
+    pos: SourcePos;
+  };
 
 /**
  * An element of a kind read from its table alone (kinds.ts: ELEMENT_TABLES): its parameters as
@@ -243,6 +251,8 @@ export interface NetlistDoc {
   source: string;
   format: 1;
   title: string;
+  /** Free text about the rig and the run (top-level `description:`), shown in reports. */
+  description?: string;
   gas: GasSpec;
   ambient: { pressure: number; temperature: number };
   heat: 'isothermal' | 'adiabatic' | 'exchange';

@@ -443,9 +443,25 @@ export function networkDiagram(input: ReportInput, opts: DiagramOptions = {}): s
       const p2 = [px - ux * L + nx * Wd, py - uy * L + ny * Wd];
       const p3 = [px + ux * L - nx * Wd, py + uy * L - ny * Wd];
       const p4 = [px + ux * L + nx * Wd, py + uy * L + ny * Wd];
-      edgeSvg.push(tag('g', { class: 'valve', 'data-name': v.name },
+      // a symbol by how the valve opens: two triangles tip to tip (switched valve), a ball on
+      // its seat (check valve: passes from → to only), a square with an offset arrow and a
+      // spring (relief valve), after the usual fluid-power graphic conventions (common practice)
+      const at = (a: number, b: number): string => `${num(px + ux * a + nx * b)},${num(py + uy * a + ny * b)}`;
+      let shape: string;
+      if (v.operation === 'check') {
+        shape = tag('path', { d: `M${at(-L, -Wd)}L${at(L, -Wd)} ${at(L, Wd)} ${at(-L, Wd)}Z`, fill: '#ffffff', stroke: 'none' })
+          + tag('circle', { cx: num(px + ux * 2), cy: num(py + uy * 2), r: 6.5, fill: '#ffffff', stroke: INK, 'stroke-width': 1.5 })
+          + tag('path', { d: `M${at(-2, -Wd - 2)}L${at(8.5, 0)} ${at(-2, Wd + 2)}`, fill: 'none', stroke: INK, 'stroke-width': 1.5, 'stroke-linejoin': 'round' });
+      } else if (v.operation === 'relief') {
+        shape = tag('path', { d: `M${at(-L, -Wd)}L${at(L, -Wd)} ${at(L, Wd)} ${at(-L, Wd)}Z`, fill: '#ffffff', stroke: INK, 'stroke-width': 1.5, 'stroke-linejoin': 'round' })
+          + tag('path', { d: `M${at(-7, 3)}L${at(7, 3)}M${at(7, 3)}L${at(3, 0.5)}M${at(7, 3)}L${at(3, 5.5)}`, fill: 'none', stroke: INK, 'stroke-width': 1.3 })
+          + tag('path', { d: `M${at(-4, -Wd)}L${at(-2, -Wd - 4)} ${at(0, -Wd)} ${at(2, -Wd - 4)} ${at(4, -Wd)}`, fill: 'none', stroke: INK, 'stroke-width': 1.2 });
+      } else {
+        shape = tag('path', { d: `M${num(px)},${num(py)}L${num(p1[0])},${num(p1[1])} ${num(p2[0])},${num(p2[1])}ZM${num(px)},${num(py)}L${num(p3[0])},${num(p3[1])} ${num(p4[0])},${num(p4[1])}Z`, fill: '#ffffff', stroke: INK, 'stroke-width': 1.5, 'stroke-linejoin': 'round' });
+      }
+      edgeSvg.push(tag('g', { class: `valve valve-${v.operation || 'schedule'}`, 'data-name': v.name },
         tag('title', {}, esc(`valve ${v.name} (${v.operation})`)),
-        tag('path', { d: `M${num(px)},${num(py)}L${num(p1[0])},${num(p1[1])} ${num(p2[0])},${num(p2[1])}ZM${num(px)},${num(py)}L${num(p3[0])},${num(p3[1])} ${num(p4[0])},${num(p4[1])}Z`, fill: '#ffffff', stroke: INK, 'stroke-width': 1.5, 'stroke-linejoin': 'round' }),
+        shape,
       ));
     });
     // labels beside the path: of a few places along either side, the one that covers the

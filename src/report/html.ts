@@ -4,7 +4,7 @@
  * security policy that forbids fetching them) that opens offline and prints on A4.
  */
 import type { ReportInput } from '../transient/report-input.js';
-import { display } from '../units/display.js';
+import { display, type DisplayKind } from '../units/display.js';
 import { reportFigures, type Figure } from './plots.js';
 import { chamberStyles, channel, flowPaths, netTransfers } from './report-data.js';
 import { markerSvg, type SeriesStyle } from './svg-chart.js';
@@ -36,8 +36,8 @@ figcaption { font-size: 13.5px; color: var(--muted); margin-top: 6px; max-width:
 table { border-collapse: collapse; width: 100%; font-size: 13.5px; font-variant-numeric: tabular-nums; margin: 6px 0 12px; }
 th, td { padding: 4px 8px; border-bottom: 1px solid var(--line); text-align: right; vertical-align: top; }
 td { white-space: nowrap; }
-td.text { white-space: normal; }
 td:first-child { white-space: nowrap; }
+td.text, td.text:first-child { white-space: normal; overflow-wrap: anywhere; }
 th { background: #f4f4f2; font-weight: 650; border-bottom: 1.5px solid #9a9a9a; }
 th:first-child, td:first-child, td.text, th.text { text-align: left; }
 td .sw { vertical-align: -3px; margin-right: 6px; }
@@ -157,6 +157,20 @@ function table(head: string[], rows: string[][], textCols: number[] = []): strin
   return h('table', {}, h('thead', {}, h('tr', {}, th)), h('tbody', {}, tr));
 }
 
+/** Display kinds of probe quantities, for an expectation's actual value. */
+const QUANTITY_KIND: Record<string, DisplayKind> = {
+  pressure: 'pressure', gauge: 'gauge', volume: 'volume', mass: 'mass', temperature: 'temperature',
+  stretch: 'stretch', flow: 'flow', reynolds: 'reynolds',
+};
+
+/** An expectation's actual value in its probe's unit (a settles deviation in %), not raw SI. */
+function actualText(x: number, quantity: string | undefined): string {
+  if (!Number.isFinite(x)) return String(x);
+  if (quantity === 'fraction') return `${sigText(100 * x, 3)} %`;
+  const kind = quantity ? QUANTITY_KIND[quantity] : undefined;
+  return kind ? display(x, kind) : sigText(x, 4);
+}
+
 /** A gauge pressure as a number of kPa (the column heading carries the unit). */
 function gauge(p: number): string { return esc(display(p, 'gauge').replace(' kPa gauge', '')); }
 
@@ -174,9 +188,18 @@ function findings(input: ReportInput): string[] {
   }).filter((c) => Number.isFinite(c.dm)).sort((a, b) => Math.abs(b.dm) - Math.abs(a.dm));
   const gained = changes.filter((c) => c.rel > 1e-3);
   const lost = changes.filter((c) => c.rel < -1e-3);
-  const who = (l: typeof changes): string => l.map((c) => `<b>${esc(c.name)}</b> ${esc(display(Math.abs(c.dm), 'mass'))} (${c.rel > 0 ? '+' : '−'}${esc(sigText(Math.abs(100 * c.rel), 2))} %)`).join(', ');
+  const one = (c: (typeof changes)[number]): string => `<b>${esc(c.name)}</b> ${esc(display(Math.abs(c.dm), 'mass'))} (${c.rel > 0 ? '+' : '−'}${esc(sigText(Math.abs(100 * c.rel), 2))} %)`;
+  // a few by name; many as a group with their range, the extremes named (a 300-chamber chain
+  // would otherwise list every chamber)
+  const who = (l: typeof changes, verb: string): string => {
+    if (l.length <= FEW) return `${l.map(one).join(', ')} ${verb} gas`;
+    const pcts = l.map((c) => Math.abs(100 * c.rel));
+    const total = l.reduce((s, c) => s + Math.abs(c.dm), 0);
+    const range = `${sigText(Math.min(...pcts), 2)}–${sigText(Math.max(...pcts), 2)} % each`;
+    return `${l.length} chambers ${verb} ${esc(display(total, 'mass'))} of gas in all (${range}); the most by mass ${l.slice(0, 2).map(one).join(', ')}, the least ${one(l[l.length - 1]!)}`;
+  };
   if (gained.length || lost.length) {
-    out.push(`Where the gas went: ${lost.length ? `${who(lost)} lost gas` : 'no chamber lost gas'}; ${gained.length ? `${who(gained)} gained gas` : 'no chamber gained gas'}.`);
+    out.push(`Where the gas went: ${lost.length ? who(lost, 'lost') : 'no chamber lost gas'}; ${gained.length ? who(gained, 'gained') : 'no chamber gained gas'}.`);
   } else {
     out.push('No chamber\'s gas mass changed by more than 0.1 %.');
   }
@@ -199,8 +222,47 @@ function findings(input: ReportInput): string[] {
       ? `<span class="fail">${failed.length} of ${ex.length} expectations failed</span>: ${failed.map((e) => esc(e.name)).join('; ')}.`
       : `<span class="pass">All ${ex.length} expectations passed.</span>`);
   }
+  out.push(...outcomeFindings(r));
   if (r.warnings.length) out.push(`<span class="fail">${r.warnings.length} warning${r.warnings.length === 1 ? '' : 's'}</span>, listed under Warnings and safety.`);
   return out;
+}
+
+/** How the run ended, group by group (`plenum run`'s outcome line); many groups counted by outcome. */
+function outcomeFindings(r: ReportInput['result']): string[] {
+  const groups = r.outcomes ?? [];
+  if (!groups.length || r.status !== 'completed') return [];
+  const label = (g: (typeof groups)[number]): string => {
+    const names = g.chambers.length <= 4 ? g.chambers.join(', ') : `${g.chambers[0]} … ${g.chambers[g.chambers.length - 1]} (${g.chambers.length} chambers)`;
+    const what = g.outcome === 'settled' ? `settled within ${sigText(100 * g.band, 2)} % by ${display(g.settling_time ?? 0, 'time')}`
+      : g.outcome === 'oscillating' ? `oscillating (period ≈ ${display(g.period ?? 0, 'time')})`
+        : g.outcome === 'diverging' ? `diverging (growth rate ${sigText(g.growth_rate ?? 0, 3)} 1/s)` : 'still moving at the end';
+    return `${esc(names)} (${g.closed ? 'closed' : 'open'}): ${esc(what)}`;
+  };
+  if (groups.length <= FEW) return [`How it ended: ${groups.map(label).join('; ')}.`];
+  const counts = new Map<string, number>();
+  for (const g of groups) counts.set(g.outcome, (counts.get(g.outcome) ?? 0) + 1);
+  return [`How it ended: ${groups.length} groups of chambers, ${[...counts.entries()].map(([o, n]) => `${n} ${o === 'moving' ? 'still moving' : o}`).join(', ')}.`];
+}
+
+/** Chambers named one by one in a finding; more are grouped and counted. */
+const FEW = 5;
+
+/** One chamber's sentence of a finding, and the phrase it shares with chambers that behave alike. */
+interface Finding { name: string; how: string; text: string }
+
+/**
+ * Up to FEW findings as they are; more grouped by what they say: `150 chambers stay past the
+ * pressure maximum of their wall law (s1, s3, …, s299)`, at most three names and the last.
+ */
+function grouped(items: Finding[]): string {
+  if (items.length <= FEW) return items.map((f) => f.text).join('; ');
+  const byHow = new Map<string, string[]>();
+  for (const f of items) byHow.set(f.how, [...(byHow.get(f.how) ?? []), f.name]);
+  return [...byHow.entries()].map(([how, names]) => {
+    const shown = names.length <= 4 ? names : [...names.slice(0, 3), '…', names[names.length - 1]!];
+    const phrase = how.replace(/\bits\b/g, 'their').replace(/^stays\b/, 'stay').replace(/^starts\b/, 'start').replace(/^ends\b/, 'end').replace(/^goes\b/, 'go').replace(/and ends\b/, 'and end').replace(/and comes\b/, 'and come');
+    return names.length === 1 ? items.find((f) => f.name === names[0])!.text : `${names.length} chambers ${phrase} (${shown.map((n) => (n === '…' ? n : `<b>${esc(n)}</b>`)).join(', ')})`;
+  }).join('; ');
 }
 
 /**
@@ -210,8 +272,8 @@ function findings(input: ReportInput): string[] {
  */
 function maximumFindings(input: ReportInput, changes: { name: string; dm: number; rel: number }[]): string[] {
   const out: string[] = [];
-  const crossings: string[] = [];
-  const runaway: string[] = [];
+  const crossings: Finding[] = [];
+  const runaway: Finding[] = [];
   let everPast = false;
   let allEndBelow = true;
   for (const w of input.walls) {
@@ -228,17 +290,17 @@ function maximumFindings(input: ReportInput, changes: { name: string; dm: number
     if (!(past0 || past1 || peak > max.x)) continue;
     everPast = true;
     const how = past0 && past1 ? 'stays past' : past0 ? 'starts past, and ends below,' : past1 ? 'ends past' : 'goes past, and comes back below,';
-    crossings.push(`<b>${esc(w.chamber)}</b> ${how} the pressure maximum of its wall law (${esc(display(max.gauge, 'gauge'))} at ${esc(fmtX(max.x))}): ${esc(fmtX(x0))} → ${esc(fmtX(x1))}`);
+    crossings.push({ name: w.chamber, how: `${how} the pressure maximum of its wall law`, text: `<b>${esc(w.chamber)}</b> ${how} the pressure maximum of its wall law (${esc(display(max.gauge, 'gauge'))} at ${esc(fmtX(max.x))}): ${esc(fmtX(x0))} → ${esc(fmtX(x1))}` });
     const gained = changes.find((c) => c.name === w.chamber);
     if (past1 && gained && gained.rel > 1e-3 && g[g.length - 1] < g[0]) {
       const donor = changes.filter((c) => c.rel < -1e-3)[0];
-      runaway.push(`<b>${esc(w.chamber)}</b> took gas while past its maximum, so its pressure fell as it grew${donor ? ` and it kept drawing gas from <b>${esc(donor.name)}</b>` : ''}`);
+      runaway.push({ name: w.chamber, how: 'took gas while past their maximum, so their pressure fell as they grew', text: `<b>${esc(w.chamber)}</b> took gas while past its maximum, so its pressure fell as it grew${donor ? ` and it kept drawing gas from <b>${esc(donor.name)}</b>` : ''}` });
     }
   }
-  if (crossings.length) out.push(`${crossings.join('; ')}.`);
+  if (crossings.length) out.push(`${grouped(crossings)}.`);
   const chart = input.walls.some((w) => w.axis === 'stretch') ? 'pressure–stretch' : 'pressure–volume';
   if (runaway.length) {
-    out.push(`Why: ${runaway.join('; ')}. Chambers past their pressure maximum do not share gas evenly: see the ${chart} chart.`);
+    out.push(`Why: ${grouped(runaway)}. Chambers past their pressure maximum do not share gas evenly: see the ${chart} chart.`);
   } else if (everPast && allEndBelow) {
     out.push(`Why: every chamber ends below its pressure maximum, where a chamber's pressure rises as it fills, so connected chambers come to rest at a common pressure: see the ${chart} chart.`);
   }
@@ -302,7 +364,7 @@ function pathTable(input: ReportInput): string {
       valveNames.length ? (choked ? 'yes' : 'no') : '–',
     ];
   });
-  return rows.length ? table(['path', 'element', 'peak flow', 'net moved', 'peak Re (regime)', 'choked'], rows, [0, 1]) : '<p>No lines or valves.</p>';
+  return rows.length ? table(['path', 'element', 'peak flow (+ from → to)', 'net moved', 'peak Re (regime)', 'choked'], rows, [0, 1]) : '<p>No lines or valves.</p>';
 }
 
 function boundaryTable(input: ReportInput): string {
@@ -325,7 +387,8 @@ function safetyNotes(): string {
 export function reportHtml(input: ReportInput): string {
   const r = input.result;
   const figures = reportFigures(input);
-  const job = netlistDescription(input.source);
+  // the netlist's `description:`, else the comment lines at its top
+  const job = r.description ?? netlistDescription(input.source);
   const ok = r.status === 'completed';
   const failedChecks = r.expectations.filter((e) => !e.passed).length;
   const badge = !ok ? h('span', { class: 'badge bad' }, 'run failed')
@@ -343,15 +406,17 @@ export function reportHtml(input: ReportInput): string {
       + (r.event_counts ?? []).map((c) => `${c.element || 'schedules'} ${c.kind} ${c.count} (${display(c.first, 'time')} to ${display(c.last, 'time')})`).join('; ')))
     : '';
   const checks = r.expectations.length
-    ? table(['expectation', 'result', 'actual', 'where'], r.expectations.map((e) => [
+    ? table(['expectation', 'result', 'actual', 'where'], r.expectations.map((e, i) => [
       `<b>${esc(e.name)}</b><br><span class="meta">${esc(e.message)}</span>`,
       e.passed ? '<span class="pass">pass</span>' : '<span class="fail">FAIL</span>',
-      esc(sigText(e.actual, 4)),
+      esc(actualText(e.actual, input.expectationUnits?.[i])),
       esc(`${e.file}:${e.line}:${e.column}`),
-    ]), [0])
+    ]), [0, 3])
     : `<p>${ok ? 'The netlist declares no expectations.' : 'Expectations are not evaluated for a run that failed.'}</p>`;
-  const warnings = r.warnings.length
-    ? h('ul', { class: 'warnings' }, ...r.warnings.map((w) => h('li', {}, esc(w))))
+  // the run's warnings, then the netlist's own (its diagnostics of severity warning)
+  const allWarnings = [...r.warnings, ...(input.netlistWarnings ?? []).map((w) => `netlist: ${w}`)];
+  const warnings = allWarnings.length
+    ? h('ul', { class: 'warnings' }, ...allWarnings.map((w) => h('li', {}, esc(w))))
     : '<p>No warnings.</p>';
   const st = r.stats;
   const solver = table(['method', 'steps', 'rejected', 'rhs evaluations', 'jacobians', 'LU factorisations', 'wall time'],
@@ -364,7 +429,7 @@ export function reportHtml(input: ReportInput): string {
     h('header', {},
       h('h1', {}, esc(r.title || r.file), ' ', badge),
       h('p', { class: 'meta' }, esc(`${r.file} · gas: ${input.gas} · heat: ${input.heat} · ambient ${display(r.ambient, 'pressure')} · ${display(r.end, 'time')} simulated`)),
-      job ? h('p', { class: 'job' }, esc(job)) : '',
+      ...job.split(/\n\s*\n/).filter((para) => para.trim()).map((para) => h('p', { class: 'job' }, esc(para.trim()))),
       h('nav', { class: 'toc' }, ...[['glance', 'At a glance'], ['figures', 'Figures'], ['summary', 'Summary'], ['events', 'Events'], ['checks', 'Expectations'], ['warnings', 'Warnings and safety'], ['solver', 'Solver'], ['netlist', 'Netlist']]
         .map(([id, t]) => h('a', { href: `#${id}` }, esc(t))))),
     h('section', { id: 'glance' }, h('h2', {}, 'At a glance'),

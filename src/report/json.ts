@@ -20,6 +20,7 @@ export function resultJson(r: RunResult): string {
     ...(r.fault ? { fault: r.fault } : {}),
     ...(r.outcomes ? { outcomes: r.outcomes } : {}),
     title: r.title,
+    ...(r.description !== undefined ? { description: r.description } : {}),
     ambient: r.ambient,
   };
   // JSON has no Infinity/NaN: write them as null

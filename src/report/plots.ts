@@ -199,6 +199,7 @@ function planeChart(input: ReportInput, axis: 'stretch' | 'volume', walls: WallC
     ? 'Where a wall law rises, a chamber that takes gas pushes back harder; past the pressure maximum (triangle) it gets easier to inflate, so of two connected chambers the larger one can take gas from the smaller. Hollow mark: start; filled mark: end.'
     : 'Each chamber\'s gauge pressure against its volume, over its wall law. Hollow mark: start; filled mark: end. A measured wall with hysteresis shows its deflation curve dashed.')
     + selectionNote(shown.length, walls.length, 'chambers', axis)
+    + (input.equilibria?.length ? ` Equilibria (stable filled, unstable hollow) for the gas ${input.equilibriaGas === 'end' ? 'the chambers hold at the end of the run' : 'they hold at the start'}.` : '')
     + (input.equilibriaNote ? ` ${input.equilibriaNote}` : '');
   return { id, title, caption, svg, series: series.length };
 }

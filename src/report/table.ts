@@ -73,7 +73,7 @@ export function summaryText(r: RunResult): string {
   const lnAll = Object.entries(r.lines);
   const ln = largest(lnAll, (l) => Math.abs(l.peak_flow));
   if (ln.length) {
-    out.push(table(['line', 'peak flow', 'peak Re', 'regime'],
+    out.push(table(['line', 'peak flow (+ from→to)', 'peak Re', 'regime'],
       ln.map(([n, l]) => [n, display(l.peak_flow, 'flow'), display(l.peak_reynolds, 'reynolds'), l.regime])));
     out.push(...more(ln.length, lnAll.length, 'lines', 'peak flow'));
     out.push('');
@@ -81,7 +81,8 @@ export function summaryText(r: RunResult): string {
   const vlAll = Object.entries(r.valves);
   const vl = largest(vlAll, (v) => Math.abs(v.peak_flow));
   if (vl.length) {
-    out.push(table(['valve', 'peak flow', 'choked'], vl.map(([n, v]) => [n, display(v.peak_flow, 'flow'), v.choked ? 'yes' : 'no'])));
+    const opening = (v: (typeof vl)[number][1]): string => (v.opening ? `${Math.round(100 * v.opening.min)}–${Math.round(100 * v.opening.max)} %, ${Math.round(100 * v.opening.final)} % at end` : '');
+    out.push(table(['valve', 'peak flow (+ from→to)', 'choked', 'opening'], vl.map(([n, v]) => [n, display(v.peak_flow, 'flow'), v.choked ? 'yes' : 'no', opening(v)])));
     out.push(...more(vl.length, vlAll.length, 'valves', 'peak flow'));
     out.push('');
   }

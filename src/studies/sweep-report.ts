@@ -19,8 +19,15 @@ export interface NumericField extends NumericSummary {
   unit: string;
 }
 
-export interface CategoryValue extends Proportion {
+/**
+ * A categorical outcome's share of the cases. The Wilson interval (`low`, `high`) is there only
+ * for a study with random draws: the cases of a deterministic grid are not a sample of
+ * anything, so its shares are exact and `low`/`high` are null.
+ */
+export interface CategoryValue extends Omit<Proportion, 'low' | 'high'> {
   value: string;
+  low: number | null;
+  high: number | null;
 }
 
 export interface CategoricalField {
@@ -60,14 +67,25 @@ function finite(x: number | null | undefined): number {
   return typeof x === 'number' ? x : NaN;
 }
 
-/** Counts of each value, as proportions of all cases, most frequent first (ties by value). */
-function categorical(key: string, values: string[]): CategoricalField {
+/**
+ * Counts of each value, as proportions of all cases, most frequent first (ties by value), with
+ * Wilson intervals when the cases are random draws (`random`), none for a deterministic grid.
+ */
+function categorical(key: string, values: string[], random: boolean): CategoricalField {
   const counts = new Map<string, number>();
   for (const v of values) counts.set(v, (counts.get(v) ?? 0) + 1);
   const out = [...counts.entries()]
     .sort((a, b) => b[1] - a[1] || (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))
-    .map(([value, count]) => ({ value, ...wilson(count, values.length) }));
+    .map(([value, count]): CategoryValue => {
+      const w = wilson(count, values.length);
+      return { value, ...w, low: random ? w.low : null, high: random ? w.high : null };
+    });
   return { key, values: out };
+}
+
+/** True when a study's cases are random draws (Monte Carlo, alone or on a grid). */
+function isRandom(study: Study): boolean {
+  return study.seed !== null;
 }
 
 /** Whether any case has a value for a chamber field (stretch exists for spheres only). */
@@ -93,16 +111,17 @@ export function summariseCases(study: Study, cases: readonly CaseResult[]): Swee
   }
   numeric.push({ key: 'settling_time', unit: 's', ...summarise(cases.map((c) => finite(c.settling_time))) });
   const cat: CategoricalField[] = [];
-  cat.push(categorical('status', cases.map((c) => c.status)));
-  cat.push(categorical('largest', cases.map((c) => c.largest ?? NOT_COMPLETED)));
-  cat.push(categorical('outcome', cases.map((c) => c.outcome ?? NOT_COMPLETED)));
+  const random = isRandom(study);
+  cat.push(categorical('status', cases.map((c) => c.status), random));
+  cat.push(categorical('largest', cases.map((c) => c.largest ?? NOT_COMPLETED), random));
+  cat.push(categorical('outcome', cases.map((c) => c.outcome ?? NOT_COMPLETED), random));
   if (study.expectations.length) {
-    cat.push(categorical('all expectations passed', cases.map((c) => (c.status !== 'completed' ? NOT_COMPLETED : c.expectations.every((e) => e.passed) ? 'yes' : 'no'))));
+    cat.push(categorical('all expectations passed', cases.map((c) => (c.status !== 'completed' ? NOT_COMPLETED : c.expectations.every((e) => e.passed) ? 'yes' : 'no')), random));
     study.expectations.forEach((name, i) => {
-      cat.push(categorical(`expect: ${name}`, cases.map((c) => (c.status !== 'completed' || !c.expectations[i] ? NOT_COMPLETED : c.expectations[i].passed ? 'passed' : 'failed'))));
+      cat.push(categorical(`expect: ${name}`, cases.map((c) => (c.status !== 'completed' || !c.expectations[i] ? NOT_COMPLETED : c.expectations[i].passed ? 'passed' : 'failed')), random));
     });
   }
-  cat.push(categorical('warnings', cases.map((c) => (c.warnings.length ? 'some' : 'none'))));
+  cat.push(categorical('warnings', cases.map((c) => (c.warnings.length ? 'some' : 'none')), random));
   return { cases: cases.length, numeric, categorical: cat };
 }
 
@@ -259,7 +278,10 @@ export function sweepSummaryText(r: SweepResult): string {
   for (const c of s.categorical) {
     if (c.key === 'warnings' && c.values.length === 1 && c.values[0].value === 'none') continue;
     out.push(`  ${c.key}:`);
-    for (const v of c.values) out.push(`    ${shortValue(v.value).padEnd(24)} ${percent(v.p).padStart(7)}  [${percent(v.low)}, ${percent(v.high)}]  (${v.count} of ${v.n})`);
+    for (const v of c.values) {
+      const interval = v.low !== null && v.high !== null ? `  [${percent(v.low)}, ${percent(v.high)}]` : '';
+      out.push(`    ${shortValue(v.value).padEnd(24)} ${percent(v.p).padStart(7)}${interval}  (${v.count} of ${v.n})`);
+    }
   }
   out.push(`  ${'values (completed cases)'.padEnd(44)} ${['mean', 'sd', 'min', 'max'].map((h) => h.padStart(10)).join(' ')}`);
   // a large network gives four rows a chamber: show the varied parameters, the settling time
@@ -277,7 +299,9 @@ export function sweepSummaryText(r: SweepResult): string {
   if (rows.length < s.numeric.length) {
     out.push(`    ... ${s.numeric.length - rows.length} more outputs, which vary less (all of them in --csv and --json)`);
   }
-  out.push('  (probabilities with Wilson 95 % intervals)');
+  out.push(isRandom(r.study)
+    ? '  (probabilities with Wilson 95 % intervals: the cases are random draws)'
+    : '  (shares of a deterministic grid: exact, no confidence intervals)');
   return out.join('\n') + '\n';
 }
 

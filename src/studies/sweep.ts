@@ -15,6 +15,8 @@ import { formatDiagnostic } from '../diag/diagnostic.js';
 import { buildModel } from '../model/build.js';
 import { checkPath } from '../netlist/override.js';
 import { readNetlist } from '../netlist/read.js';
+import { ALL_TABLES } from '../netlist/kinds.js';
+import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
 import { CaseRunner, type CaseResult } from './sweep-case.js';
 import { CasePool, defaultJobs } from './sweep-pool.js';
 import { caseSpec, parseVary, planStudy, preflightSpecs, type CaseSpec, type StudyPlan, type VaryKind, type VarySpec } from './sweep-spec.js';
@@ -142,6 +144,8 @@ function planSweep(opts: SweepOptions): Result<PreparedSweep> {
     if (!v.ok) { diagnostics.push(...v.diagnostics); continue; }
     const p = checkPath(opts.source, v.value.path);
     if (!p.ok) { diagnostics.push(usage('vary-path', `${p.message} (in --vary ${v.value.path})`, p.hint, [v.value.path])); continue; }
+    const bare = bareDimensional(v.value);
+    if (bare) { diagnostics.push(bare); continue; }
     vary.push(v.value);
   }
   if (opts.samples !== undefined && !(Number.isInteger(opts.samples) && opts.samples >= 1)) {
@@ -174,6 +178,25 @@ function planSweep(opts: SweepOptions): Result<PreparedSweep> {
     expectations: model.value.expect.map((e) => e.name),
   };
   return { ok: true, value: { plan, study, indices: shardIndices(plan.cases, opts.shard) }, warnings: [...doc.warnings, ...model.warnings] };
+}
+
+/**
+ * A `--vary` of a dimensional parameter written in bare numbers. In a netlist a bare number
+ * is SI, but on the command line `lines.hose.diameter=2,3` is almost always meant in mm and
+ * would be 2 m and 3 m: such values must carry a unit. Undefined when the values are fine.
+ */
+function bareDimensional(v: VarySpec): Diagnostic | undefined {
+  if (v.siLabel !== '-' || /%/.test(v.arg)) return undefined;
+  const name = v.path.split('.').pop() ?? '';
+  const dims = new Set(ALL_TABLES.flatMap((t) => t.params).filter((q) => q.name === name).map((q) => q.dimension as string));
+  if (dims.size !== 1) return undefined;
+  const dim = [...dims][0] as Dimension;
+  if (!(dim in DIMENSIONS) || dim === 'dimensionless') return undefined;
+  const info = DIMENSIONS[dim];
+  const body = v.arg.slice(v.arg.indexOf('=') + 1).trim();
+  const si = (v.values ?? []).slice(0, 3).map((x) => `${x} ${info.label}`).join(', ');
+  return usage('vary-unit', `${v.path}: the values \`${body}\` have no unit; a bare number is SI, so they would be read as ${si || `${info.label}`}`,
+    `write the unit, e.g. \`${v.path}=${body.split(',').map((x) => `${x.trim()} ${info.example.replace(/^[\d.]+\s*/, '')}`).join(',')}\` (or \`${info.label}\` if that is meant)`, [v.path]);
 }
 
 /** Runs a study (or one shard of it). Diagnostics when the netlist or a `--vary` is invalid. */

@@ -15,9 +15,13 @@
  *   divided by the window length. Steps are cut at events and breakpoints, so jumps in a flow
  *   fall between steps, never inside a quadrature.
  * - `settles: { within, band }`: for every chamber, its absolute pressure and its volume stay
- *   within `band` (a fraction) of their final values for all t in [within, end]:
- *   max |q(t) − q(end)| ≤ band·|q(end)|. Computed exactly from the running maximum and minimum
- *   of each quantity over [within, end] (the largest distance from a constant is at one of them).
+ *   within `band` of their final values for all t in [within, end], the band a fraction of each
+ *   quantity's own excursion over the run with a floor (settle-band.ts, the definition the run's
+ *   outcome uses): max |q(t) − q(end)| ≤ band·max(E, 0.1 %·|q(end)|), E = max over [0, end] of
+ *   |q − q(end)|. With `relative-to: final-value` the band is of the final value itself,
+ *   ≤ band·|q(end)| (a loose test for a pressure that moves little against the ambient it sits
+ *   on). Computed exactly from the running maximum and minimum of each quantity over
+ *   [within, end] and over the whole run (the largest distance from a constant is at one of them).
  *
  * Comparisons: `below` is strict (v < limit), `above` strict (v > limit), `near` inclusive
  * (|v − value| ≤ within; a `%` within is relative to |value|, for a `gauge` probe to the gauge
@@ -28,6 +32,7 @@
  * Numerical Recipes, 3rd ed. (2007), §10.2; vertex of the interpolating parabola, ibid. §10.3,
  * eq. 10.3.1.
  */
+import { bandScale } from './settle-band.js';
 import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import type { ExpectSpec, ProbeQuantity } from '../netlist/types.js';
 import type { DenseOutput } from '../solve/types.js';
@@ -63,6 +68,8 @@ interface Pointwise { c: number; t: number; value: number; seen: boolean }
 
 type ProbeSpec = Extract<ExpectSpec, { kind: 'probe' }>;
 type SettlesSpec = Extract<ExpectSpec, { kind: 'settles' }>;
+/** One tracked quantity of a settles check: extrema after `within` and over the whole run. */
+interface SettlePart { key: string; c: number; hi: number; lo: number; hiAll: number; loAll: number }
 
 /** What each spec reads; indices into the monitor's tracker lists. */
 type Plan =
@@ -72,7 +79,7 @@ type Plan =
   | { kind: 'extremum'; spec: ProbeSpec; c: number; i: number }
   | { kind: 'mean'; spec: ProbeSpec; c: number; i: number }
   | { kind: 'overshoot'; spec: ProbeSpec; c: number; hi: number; lo: number; first: number; last: number }
-  | { kind: 'settles'; spec: SettlesSpec; parts: { key: string; c: number; hi: number; lo: number }[] };
+  | { kind: 'settles'; spec: SettlesSpec; parts: SettlePart[] };
 
 // ---- formatting for people (engineering units, enough digits to tell values apart) ----------
 
@@ -229,10 +236,13 @@ export class ExpectationMonitor {
       const key = `${spec.probe.element}.${spec.probe.quantity}`;
       const c = this.src.keys.get(key);
       if (c === undefined) return { kind: 'missing', spec };
-      return { kind: 'settles', spec, parts: [{ key, c, hi: this.track(c, spec.within, Infinity, 1), lo: this.track(c, spec.within, Infinity, -1) }] };
+      return {
+        kind: 'settles', spec,
+        parts: [{ key, c, hi: this.track(c, spec.within, Infinity, 1), lo: this.track(c, spec.within, Infinity, -1), hiAll: this.track(c, 0, Infinity, 1, false), loAll: this.track(c, 0, Infinity, -1, false) }],
+      };
     }
     if (spec.kind === 'settles') {
-      const parts: { key: string; c: number; hi: number; lo: number }[] = [];
+      const parts: SettlePart[] = [];
       for (const name of chambers) {
         for (const q of ['pressure', 'volume']) {
           const key = `${name}.${q}`;
@@ -241,7 +251,10 @@ export class ExpectationMonitor {
           // the extremes at the seven points of every step, not refined between them: a band is
           // a percentage, and refining cost a network evaluation a probe for each of the 2n
           // channels (a settles check on 1 000 chambers took 9 s instead of 0.8)
-          parts.push({ key, c, hi: this.track(c, spec.within, Infinity, 1, false), lo: this.track(c, spec.within, Infinity, -1, false) });
+          parts.push({
+            key, c, hi: this.track(c, spec.within, Infinity, 1, false), lo: this.track(c, spec.within, Infinity, -1, false),
+            hiAll: this.track(c, 0, Infinity, 1, false), loAll: this.track(c, 0, Infinity, -1, false),
+          });
         }
       }
       return { kind: 'settles', spec, parts };
@@ -471,15 +484,21 @@ export class ExpectationMonitor {
     };
   }
 
-  private settles(s: SettlesSpec, parts: { key: string; c: number; hi: number; lo: number }[], end: Float64Array): { passed: boolean; actual: number; message: string } {
-    let worst = { rel: 0, key: '', t: s.within, fin: Number.NaN, c: -1 };
+  private settles(s: SettlesSpec, parts: SettlePart[], end: Float64Array): { passed: boolean; actual: number; message: string } {
+    const ofFinal = s.relativeTo === 'final-value';
+    let worst = { rel: 0, key: '', t: s.within, fin: Number.NaN, scale: Number.NaN };
     for (const part of parts) {
       const fin = end[part.c];
+      // the quantity's excursion over the whole run (the final value is inside its range)
+      const hiAll = this.extrema[part.hiAll];
+      const loAll = this.extrema[part.loAll];
+      const excursion = Math.max(hiAll.seen ? hiAll.best - fin : 0, loAll.seen ? fin + loAll.best : 0, 0);
+      const scale = ofFinal ? Math.abs(fin) : bandScale(excursion, fin);
       for (const i of [part.hi, part.lo]) {
         const x = this.extrema[i];
         if (!x.seen) continue;
-        const rel = Math.abs(x.sign * x.best - fin) / Math.abs(fin);
-        if (rel > worst.rel || Number.isNaN(rel)) worst = { rel, key: part.key, t: x.at, fin, c: part.c };
+        const rel = Math.abs(x.sign * x.best - fin) / scale;
+        if (rel > worst.rel || Number.isNaN(rel)) worst = { rel, key: part.key, t: x.at, fin, scale };
       }
     }
     const passed = worst.rel <= s.band;
@@ -489,19 +508,21 @@ export class ExpectationMonitor {
       const kind: DisplayKind = displayKindOf(q);
       return {
         passed, actual: worst.rel,
-        message: `${s.probe.text} ${passed ? 'stays' : 'does not stay'} within ${pct(s.band)} of its final value ${fmt(parts[0] ? end[parts[0].c] : Number.NaN, kind)} ${after} (largest deviation ${pct(worst.rel)}${worst.key ? ` at t = ${time(worst.t)}` : ''})`,
+        message: `${s.probe.text} ${passed ? 'stays' : 'does not stay'} within ${pct(s.band)} ${ofFinal ? 'of its final value' : 'of its excursion from its final value'} ${fmt(parts[0] ? end[parts[0].c] : Number.NaN, kind)} ${after} (largest deviation ${pct(worst.rel)}${worst.key ? ` at t = ${time(worst.t)}` : ''})`,
       };
     }
+    const of = ofFinal ? 'of their final values' : 'of their excursions from their final values';
     if (passed) {
       return {
         passed, actual: worst.rel,
-        message: `every chamber's pressure and volume stay within ${pct(s.band)} of their final values ${after} (largest deviation ${pct(worst.rel)}${worst.key ? `, ${worst.key} at t = ${time(worst.t)}` : ''})`,
+        message: `every chamber's pressure and volume stay within ${pct(s.band)} ${of} ${after} (largest deviation ${pct(worst.rel)}${worst.key ? `, ${worst.key} at t = ${time(worst.t)}` : ''})`,
       };
     }
     const kind: DisplayKind = worst.key.endsWith('.pressure') ? 'pressure' : 'volume';
+    const own = ofFinal ? 'of its final value' : `of its excursion (${fmtDelta(worst.scale, kind)})`;
     return {
       passed, actual: worst.rel,
-      message: `${worst.key} is ${pct(worst.rel)} from its final value ${fmt(worst.fin, kind)} at t = ${time(worst.t)}; expected within ${pct(s.band)} ${after}`,
+      message: `${worst.key} is ${pct(worst.rel)} ${own} away from its final value ${fmt(worst.fin, kind)} at t = ${time(worst.t)}; expected within ${pct(s.band)} ${after}`,
     };
   }
 }

@@ -5,8 +5,13 @@
  * Groups are the chambers joined by branches that pass gas at some time in the run (lines,
  * valves that open, check and relief valves); a group touching no reservoir and no feed is
  * closed. Each chamber contributes its pressure and volume as signals; a signal's band is
- * `band` (2 %) of its largest excursion from its final value (the usual settling-time
- * convention for a step response), so a chamber that hardly moves is not judged on noise.
+ * `band` (2 %) of its largest excursion from its final value, with an absolute floor of 0.1 % of
+ * the final value (settle-band.ts: the same definition as a `settles:` expectation). A second
+ * floor is the integrator's own resolution,
+ * the relative tolerance times the signal's magnitude (0.1 Pa for 1e-6 at 100 kPa). A signal
+ * whose whole excursion is under the floor counts as still (it moved by round-off, not by
+ * physics), and a swing must exceed the floor, not only the band, to count as a turn: a far
+ * chamber of a long chain that wiggles by 5e-6 Pa is not an oscillation.
  *
  * - oscillating: a check or relief valve of the group keeps switching until the end (at least
  *   three openings, the last within the final quarter of the run or two periods of it), or a
@@ -28,6 +33,7 @@ import type { Model } from '../model/types.js';
 import { display } from '../units/display.js';
 import { chamberGroups, everConducts } from '../model/groups.js';
 import type { GroupOutcome, Trace } from './results.js';
+import { bandScale } from './settle-band.js';
 
 /** Settling band as a fraction of each signal's excursion. */
 export const SETTLE_BAND = 0.02;
@@ -52,6 +58,10 @@ function valueAt(times: number[], v: number[], t: number): number {
 interface SignalVerdict {
   key: string;
   band: number;
+  /** Least swing that counts as a turn: the band, or the integrator's resolution if larger. */
+  swing: number;
+  /** The whole excursion is below the integrator's resolution. */
+  flat: boolean;
   settleAt: number;
   /** Estimated change still to come (Infinity when not slowing down). */
   remaining: number;
@@ -62,13 +72,18 @@ interface SignalVerdict {
   lateSwing: number;
 }
 
-function judgeSignal(key: string, times: number[], x: number[], end: number): SignalVerdict {
+function judgeSignal(key: string, times: number[], x: number[], end: number, rtol: number): SignalVerdict {
   const n = times.length;
   const xf = x[n - 1];
   let excursion = 0;
-  for (const v of x) excursion = Math.max(excursion, Math.abs(v - xf));
-  const flat = excursion <= 1e-12 * Math.max(Math.abs(xf), 1e-300);
-  const band = SETTLE_BAND * excursion;
+  let magnitude = 0;
+  for (const v of x) { excursion = Math.max(excursion, Math.abs(v - xf)); magnitude = Math.max(magnitude, Math.abs(v)); }
+  // what the integrator resolves: below it a change is round-off and error control, not motion
+  const floor = Math.max(rtol, 1e-12) * magnitude;
+  const flat = excursion <= floor || excursion <= 1e-300;
+  const band = SETTLE_BAND * bandScale(excursion, xf);
+  // turning points and late swings must clear both the band and the floor
+  const swing = Math.max(band, floor);
   let last = -1;
   if (!flat) for (let k = 0; k < n; k++) if (Math.abs(x[k] - xf) > band) last = k;
   const settleAt = last < 0 ? times[0] : times[Math.min(last + 1, n - 1)];
@@ -91,11 +106,11 @@ function judgeSignal(key: string, times: number[], x: number[], end: number): Si
     const v = x[k];
     if (times[k] >= times[0] + 0.75 * span) { lateLo = Math.min(lateLo, v); lateHi = Math.max(lateHi, v); }
     if (flat) continue;
-    if (dir >= 0 && v < anchor - band) { if (dir > 0) turning++; dir = -1; anchor = v; }
-    else if (dir <= 0 && v > anchor + band) { if (dir < 0) turning++; dir = 1; anchor = v; }
+    if (dir >= 0 && v < anchor - swing) { if (dir > 0) turning++; dir = -1; anchor = v; }
+    else if (dir <= 0 && v > anchor + swing) { if (dir < 0) turning++; dir = 1; anchor = v; }
     else if ((dir > 0 && v > anchor) || (dir < 0 && v < anchor)) anchor = v;
   }
-  return { key, band, settleAt, remaining, ratio, change: d2, turning, lateSwing: lateHi - lateLo };
+  return { key, band, swing, flat, settleAt, remaining, ratio, change: d2, turning, lateSwing: lateHi - lateLo };
 }
 
 /** Least-squares slope of ln d(t) over the samples with d > 0 in [t0, end]. */
@@ -133,7 +148,7 @@ export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEven
     const tEnd = times[times.length - 1];
     const signals = names.flatMap((n) => [`${n}.pressure`, `${n}.volume`])
       .filter((k) => col.has(k))
-      .map((k) => judgeSignal(k, times, trace.values[col.get(k)!], tEnd));
+      .map((k) => judgeSignal(k, times, trace.values[col.get(k)!], tEnd, model.doc.simulate.tolerance));
 
     // chatter of the group's self-acting valves
     const valves = new Set(g.branches.map((k) => model.branches[k]).filter((b) => {
@@ -160,7 +175,7 @@ export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEven
         };
       }
     }
-    const swinging = signals.filter((s) => s.turning >= 4 && s.lateSwing > 2 * s.band && s.band > 0);
+    const swinging = signals.filter((s) => !s.flat && s.turning >= 4 && s.lateSwing > 2 * s.swing);
     if (swinging.length) {
       const s = swinging.reduce((a, b) => (b.turning > a.turning ? b : a));
       const period = (0.5 * (tEnd - times[0])) / (s.turning / 2);
@@ -170,7 +185,7 @@ export function classifyOutcomes(model: Model, trace: Trace, events: OutcomeEven
       };
     }
 
-    const unsettled = signals.filter((s) => !(s.remaining <= s.band));
+    const unsettled = signals.filter((s) => !s.flat && !(s.remaining <= s.band));
     if (unsettled.length === 0) {
       const slowest = signals.reduce<SignalVerdict | null>((a, b) => (a === null || b.settleAt > a.settleAt ? b : a), null);
       const t = slowest ? slowest.settleAt : times[0];

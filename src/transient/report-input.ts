@@ -110,6 +110,12 @@ export interface ReportInput {
   equilibria?: EquilibriumMark[];
   /** Why the equilibria are not marked, when they are not (shown with the pressure–volume figure). */
   equilibriaNote?: string;
+  /** Whose gas the marked equilibria hold: the gas at the start, or at the end of the run. */
+  equilibriaGas?: 'start' | 'end';
+  /** The netlist's warnings (formatted diagnostics). */
+  netlistWarnings?: string[];
+  /** Per expectation (in order): the probe's quantity, or `fraction` for `settles`, to show `actual` in its unit. */
+  expectationUnits?: string[];
   /** plenum's version, for the report's footer. */
   version?: string;
   /** Measured channels to overlay (`plenum report --data`). */
@@ -130,6 +136,9 @@ export interface ReportInputOptions {
   measured?: MeasuredOverlay[];
   equilibria?: EquilibriumMark[];
   equilibriaNote?: string;
+  equilibriaGas?: 'start' | 'end';
+  /** The netlist's warnings (formatted diagnostics), for the report's warnings section. */
+  netlistWarnings?: string[];
   version?: string;
 }
 
@@ -296,6 +305,9 @@ export function reportInput(model: Model, result: RunResult, options: ReportInpu
     equilibria: options.equilibria,
     ...(options.measured ? { measured: options.measured } : {}),
     equilibriaNote: options.equilibriaNote,
+    ...(options.equilibriaGas ? { equilibriaGas: options.equilibriaGas } : {}),
+    netlistWarnings: options.netlistWarnings ?? [],
+    expectationUnits: doc.expect.map((e) => (e.kind === 'settles' ? 'fraction' : e.probe.quantity)),
     version: options.version,
   };
 }

@@ -7,7 +7,15 @@ export interface ChamberSummary {
 }
 
 export interface LineSummary { peak_flow: number; peak_reynolds: number; regime: 'laminar' | 'transitional' | 'turbulent' }
-export interface ValveSummary { peak_flow: number; choked: boolean }
+export interface ValveSummary {
+  peak_flow: number;
+  choked: boolean;
+  /** Opening 0–1 (schedule; relief state; check valve passing): at the end, least and most over the run. */
+  opening?: { final: number; min: number; max: number };
+  /** Relief and check valves: open at the end, and how often it opened (counted on samples and step ends). */
+  open_at_end?: boolean;
+  times_opened?: number;
+}
 
 /**
  * Summaries by section and element name, as the elements give them (elements/contract.ts:
@@ -90,6 +98,8 @@ export interface EventTally { element: string; kind: string; count: number; firs
 export interface RunResult {
   format: 1;
   title: string;
+  /** The netlist's `description:`, when it has one. */
+  description?: string;
   file: string;
   status: 'completed' | 'failed';
   message: string;

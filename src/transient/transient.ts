@@ -181,6 +181,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   return {
     format: 1,
     title: model.doc.title,
+    ...(model.doc.description !== undefined ? { description: model.doc.description } : {}),
     file: model.doc.file,
     status: r.status,
     message,

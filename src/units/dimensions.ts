@@ -67,7 +67,7 @@ export const DIMENSIONS: Record<Dimension, DimensionInfo> = {
 
 const siUnits = new Map<Dimension, Unit>();
 
-/** The mathjs unit of a dimension's SI unit (cached); undefined for dimensionless. */
+/** The mathjs unit of a dimension's SI unit (cached); undefined for dimensionless. @internal (mathjs types stay out of the published declarations) */
 export function siUnit(dimension: Dimension): Unit | undefined {
   const si = DIMENSIONS[dimension].si;
   if (!si) return undefined;

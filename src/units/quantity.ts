@@ -94,7 +94,7 @@ function exampleHint(dimension: Dimension): string {
   return `write ${info.noun} with its unit, e.g. \`${info.example}\` (a bare number means ${info.label})`;
 }
 
-/** mathjs `unit()` with errors turned into values. */
+/** mathjs `unit()` with errors turned into values. @internal (mathjs types stay out of the published declarations) */
 export function readUnit(text: string): { ok: true; unit: Unit } | ValueError {
   const s = normaliseSpelling(text);
   if (!s) return fail('unit-syntax', 'the value is empty', 'write a number with its unit, e.g. `4 mm`');

@@ -1,0 +1,2 @@
+/** Declarations for scripts/api-doc.mjs (imported by the package test). */
+export declare function apiMarkdown(): string;
