@@ -45,16 +45,32 @@ export function runCli(args: string[], usageFile: string, timeoutMs = 600_000): 
   return { exit: r.status, wallS, cpuS, peakMB, stdout: r.stdout ?? '', stderr: r.stderr ?? '' };
 }
 
-export interface AnchorRun { n: number; solveS: number; nfev: number; njev: number; status: number }
+export interface AnchorRun {
+  n: number;
+  /** solve_ivp alone, timed inside the script. */
+  solveS: number;
+  /** The whole python3 process: start-up, imports, set-up, solve. */
+  wallS: number;
+  nfev: number; njev: number; status: number;
+  /** Peak resident memory of the python3 process, MB. */
+  peakMB: number;
+  /** User + system CPU of the whole python3 process. */
+  cpuS: number;
+}
 
-/** The SciPy anchor's printed solve time for a chain of n, or a reason it could not run. */
+/** One BLAS/OpenMP thread for the anchor: on a busy host a threaded BLAS made SciPy's BDF 5× slower. */
+export const ANCHOR_ENV = { OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1' };
+
+/** The SciPy anchor on a chain of n (solve time printed by the script, whole process timed here), or why it could not run. */
 export function runAnchor(script: string, n: number): AnchorRun | string {
-  const r = spawnSync('python3', [script, String(n)], { encoding: 'utf8', timeout: 600_000 });
+  const t0 = performance.now();
+  const r = spawnSync('python3', [script, String(n)], { encoding: 'utf8', timeout: 600_000, env: { ...process.env, ...ANCHOR_ENV } });
+  const wallS = (performance.now() - t0) / 1000;
   if (r.error) return `python3 not runnable: ${r.error.message}`;
   if (r.status !== 0) return `anchor failed: ${(r.stderr || r.stdout).trim().split('\n').pop()}`;
   const f = r.stdout.trim().split(/\s+/).map(Number);
-  if (f.length < 5 || f.some((x) => !Number.isFinite(x))) return `unexpected anchor output: ${r.stdout.trim()}`;
-  return { n: f[0], solveS: f[1], nfev: f[2], njev: f[3], status: f[4] };
+  if (f.length < 7 || f.some((x) => !Number.isFinite(x))) return `unexpected anchor output: ${r.stdout.trim()}`;
+  return { n: f[0], solveS: f[1], wallS, nfev: f[2], njev: f[3], status: f[4], peakMB: f[5], cpuS: f[6] };
 }
 
 /** log(t2/t1)/log(n2/n1): 1 means linear growth. */

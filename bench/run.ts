@@ -31,7 +31,9 @@ import { cpus, loadavg, tmpdir, totalmem } from 'node:os';
 import { dirname, join } from 'node:path';
 import { SPARSE_MIN_N } from '../src/solve/iteration-matrix.js';
 import { luCrossover, workPrecision } from './in-process.js';
-import { fmt, growth, runAnchor, runCli, table, type AnchorRun, type CliRun } from './measure.js';
+import { compareIntegrators } from './integrators.js';
+import { ANCHOR_ENV, fmt, growth, runAnchor, runCli, table, type AnchorRun, type CliRun } from './measure.js';
+import { parallelSpeedups } from './parallel.js';
 import { netlistFor, type NetworkShape } from './networks.js';
 
 const ROOT = join(import.meta.dirname, '..');
@@ -45,9 +47,13 @@ function option(name: string): string | undefined {
 const quick = process.argv.includes('--quick');
 const out = option('out') ?? join(ROOT, 'bench', 'results.json');
 const sizes = (option('sizes') ?? (quick ? '10,100,1000' : '10,100,1000,10000')).split(',').map(Number);
-const shapes = (option('shapes') ?? 'chain,grid,star').split(',') as NetworkShape[];
+const shapes = (option('shapes') === 'none' ? [] : (option('shapes') ?? 'chain,grid,star').split(',')) as NetworkShape[];
 const repeat = Number(option('repeat') ?? (quick ? 2 : 3));
 const anchorScript = option('anchor') ?? join(ROOT, 'bench', 'scipy-chain.py');
+const sideSizes = (option('side-sizes') ?? (quick ? '1000' : '1000,10000,30000')).split(',').map(Number);
+const methods = (option('methods') ?? 'auto,implicit,explicit').split(',') as Method[];
+for (const m of methods) if (!['auto', 'implicit', 'explicit'].includes(m)) throw new Error(`unknown method ${m}`);
+for (const n of sideSizes) if (!Number.isInteger(n) || n < 2) throw new Error(`bad size ${n}`);
 for (const s of shapes) if (!['chain', 'grid', 'star'].includes(s)) throw new Error(`unknown shape ${s}`);
 for (const n of sizes) if (!Number.isInteger(n) || n < 2) throw new Error(`bad size ${n}`);
 
@@ -67,8 +73,13 @@ const results: Record<string, unknown> = {
   date: new Date().toISOString(),
   node: process.version,
   machine: { cpus: cpus().length, model: cpus()[0]?.model ?? '', memoryGB: +(totalmem() / 2 ** 30).toFixed(1), loadAverageAtStart: startLoad },
-  options: { sizes, shapes, repeat, quick },
+  options: { sizes, shapes, repeat, quick, sideSizes, methods },
+  anchorEnvironment: ANCHOR_ENV,
 };
+
+function readJson(file: string): { status: string; stats: { method: string; steps: number; rhs: number; jacobians: number; lu: number; wall_ms: number } } | undefined {
+  try { return JSON.parse(readFileSync(file, 'utf8')); } catch { return undefined; }
+}
 
 function best(runs: CliRun[]): CliRun {
   return runs.reduce((a, b) => (b.wallS < a.wallS ? b : a));
@@ -92,10 +103,12 @@ log(table(['command', 'wall s (best of ' + coldReps + ')', 'peak MB'], [
 
 // ---- 2. scaling ---------------------------------------------------------------------------------
 
+type Method = 'auto' | 'implicit' | 'explicit';
+
 interface ScaleRow {
   shape: NetworkShape; n: number; status: string; method: string;
   wallS: number; cpuS: number; solveS: number; steps: number; rhs: number; jacobians: number; lu: number; peakMB: number;
-  netlistKB: number; anchor?: AnchorRun; anchorNote?: string;
+  netlistKB: number;
 }
 const scale: ScaleRow[] = [];
 log('\n## Scaling (whole process through the CLI; solve = the simulation inside it)');
@@ -107,15 +120,7 @@ for (const shape of shapes) {
     writeFileSync(file, text);
     const reps = n >= 10_000 ? 1 : repeat;
     const runs: CliRun[] = [];
-    const anchors: AnchorRun[] = [];
-    let anchorNote: string | undefined;
-    for (let k = 0; k < reps; k++) {
-      runs.push(runCli(['run', file, '-q', '--json', json], usage));
-      if (shape === 'chain' && anchorNote === undefined) {
-        const a = runAnchor(anchorScript, n);
-        if (typeof a === 'string') anchorNote = a; else anchors.push(a);
-      }
-    }
+    for (let k = 0; k < reps; k++) runs.push(runCli(['run', file, '-q', '--json', json], usage));
     const r = best(runs);
     let parsed: { status: string; stats: { method: string; steps: number; rhs: number; jacobians: number; lu: number; wall_ms: number } } | undefined;
     try { parsed = JSON.parse(readFileSync(json, 'utf8')); } catch { parsed = undefined; }
@@ -125,24 +130,21 @@ for (const shape of shapes) {
       wallS: r.wallS, cpuS: r.cpuS, solveS: st ? st.wall_ms / 1000 : Number.NaN,
       steps: st?.steps ?? Number.NaN, rhs: st?.rhs ?? Number.NaN, jacobians: st?.jacobians ?? Number.NaN, lu: st?.lu ?? Number.NaN,
       peakMB: r.peakMB, netlistKB: text.length / 1024,
-      anchor: anchors.length ? anchors.reduce((a, b) => (b.solveS < a.solveS ? b : a)) : undefined, anchorNote,
     };
     if (!parsed) row.status = `no result (exit ${r.exit}): ${r.stderr.trim().split('\n').pop() ?? ''}`;
     scale.push(row);
-    log(`  ${shape} ${n}: ${row.status}, wall ${fmt(row.wallS)} s, solve ${fmt(row.solveS)} s${row.anchor ? `, anchor ${fmt(row.anchor.solveS)} s` : ''}`);
+    log(`  ${shape} ${n}: ${row.status}, wall ${fmt(row.wallS)} s, solve ${fmt(row.solveS)} s`);
   }
 }
 results.scaling = scale;
 log('');
 log(table(
-  ['network', 'chambers', 'status', 'method', 'wall s', 'CPU s', 'solve s', 'SciPy solve s', 'steps', 'rhs', 'jacobians', 'LU', 'peak MB'],
+  ['network', 'chambers', 'status', 'method', 'wall s', 'CPU s', 'solve s', 'steps', 'rhs', 'jacobians', 'LU', 'peak MB'],
   scale.map((r) => [r.shape, String(r.n), r.status, r.method, fmt(r.wallS), fmt(r.cpuS), fmt(r.solveS),
-    r.anchor ? fmt(r.anchor.solveS) : r.shape === 'chain' ? (r.anchorNote ? 'n/a' : '–') : '', String(r.steps), String(r.rhs),
-    String(r.jacobians), String(r.lu), fmt(r.peakMB)]),
+    String(r.steps), String(r.rhs), String(r.jacobians), String(r.lu), fmt(r.peakMB)]),
 ));
-if (scale.some((r) => r.anchorNote)) log(`anchor: ${scale.find((r) => r.anchorNote)!.anchorNote}`);
 
-const exponents: { shape: string; from: number; to: number; wall: number; solve: number; anchor?: number }[] = [];
+const exponents: { shape: string; from: number; to: number; wall: number; solve: number }[] = [];
 for (const shape of shapes) {
   const rows = scale.filter((r) => r.shape === shape);
   for (let k = 1; k < rows.length; k++) {
@@ -151,14 +153,108 @@ for (const shape of shapes) {
       shape, from: a.n, to: b.n,
       wall: growth(a.n, a.wallS, b.n, b.wallS),
       solve: growth(a.n, a.solveS, b.n, b.solveS),
-      anchor: a.anchor && b.anchor ? growth(a.n, a.anchor.solveS, b.n, b.anchor.solveS) : undefined,
     });
   }
 }
 results.growthExponents = exponents;
 log('\nGrowth exponents log(t2/t1)/log(n2/n1) (1 = linear):');
-log(table(['network', 'sizes', 'whole process', 'solve', 'SciPy solve'],
-  exponents.map((e) => [e.shape, `${e.from} → ${e.to}`, fmt(e.wall, 2), fmt(e.solve, 2), e.anchor === undefined ? '' : fmt(e.anchor, 2)])));
+log(table(['network', 'sizes', 'whole process', 'solve'],
+  exponents.map((e) => [e.shape, `${e.from} → ${e.to}`, fmt(e.wall, 2), fmt(e.solve, 2)])));
+
+// ---- 2b. side by side with SciPy: the chain, each method, up to 30 000 chambers ------------------
+
+interface SideRow {
+  n: number; method: Method; status: string; chosen: string;
+  wallS: number; cpuS: number; solveS: number; peakMB: number; steps: number; rhs: number; jacobians: number;
+  anchor?: AnchorRun; anchorNote?: string;
+}
+const side: SideRow[] = [];
+log('\n## Side by side with SciPy (chain; SciPy BDF with one BLAS thread, run alternately with plenum)');
+for (const n of sideSizes) {
+  const reps = n >= 10_000 ? 1 : repeat;
+  const files = new Map<Method, string>();
+  for (const m of methods) {
+    const f = join(work, `side-${m}-${n}.yaml`);
+    writeFileSync(f, netlistFor('chain', n, { method: m }));
+    files.set(m, f);
+  }
+  const runs = new Map<Method, { run: CliRun; json: ReturnType<typeof readJson> }[]>(methods.map((m) => [m, []]));
+  const anchors: AnchorRun[] = [];
+  let anchorNote: string | undefined;
+  for (let k = 0; k < reps; k++) {
+    for (const m of methods) {
+      const json = join(work, `side-${m}-${n}.json`);
+      rmSync(json, { force: true });
+      const run = runCli(['run', files.get(m)!, '-q', '--json', json], usage, 1_800_000);
+      runs.get(m)!.push({ run, json: readJson(json) });
+    }
+    if (anchorNote === undefined) {
+      const a = runAnchor(anchorScript, n);
+      if (typeof a === 'string') anchorNote = a; else anchors.push(a);
+    }
+  }
+  const anchor = anchors.length ? anchors.reduce((a, b) => (b.wallS < a.wallS ? b : a)) : undefined;
+  for (const m of methods) {
+    const all = runs.get(m)!;
+    const b = all.reduce((x, y) => (y.run.wallS < x.run.wallS ? y : x));
+    const st = b.json?.stats;
+    const row: SideRow = {
+      n, method: m, status: b.json?.status ?? `no result (exit ${b.run.exit})`, chosen: st?.method ?? '',
+      wallS: b.run.wallS, cpuS: b.run.cpuS, solveS: st ? st.wall_ms / 1000 : Number.NaN, peakMB: b.run.peakMB,
+      steps: st?.steps ?? Number.NaN, rhs: st?.rhs ?? Number.NaN, jacobians: st?.jacobians ?? Number.NaN,
+      anchor, anchorNote,
+    };
+    side.push(row);
+    log(`  ${n} ${m}: ${row.status} (${row.chosen}), wall ${fmt(row.wallS)} s, solve ${fmt(row.solveS)} s${anchor ? `; SciPy wall ${fmt(anchor.wallS)} s, solve ${fmt(anchor.solveS)} s` : ''}`);
+  }
+}
+results.sideBySide = side.map(({ anchor, ...r }) => ({ ...r, anchor }));
+log('');
+log(table(
+  ['chambers', 'method', 'status', 'plenum wall s', 'plenum CPU s', 'plenum solve s', 'SciPy wall s', 'SciPy CPU s', 'SciPy solve s', 'wall ratio', 'CPU ratio', 'solve ratio', 'plenum peak MB', 'SciPy peak MB', 'steps', 'rhs', 'jacobians'],
+  side.map((r) => [String(r.n), r.method === 'auto' ? `auto (${r.chosen})` : r.method, r.status, fmt(r.wallS), fmt(r.cpuS), fmt(r.solveS),
+    r.anchor ? fmt(r.anchor.wallS) : 'n/a', r.anchor ? fmt(r.anchor.cpuS) : 'n/a', r.anchor ? fmt(r.anchor.solveS) : 'n/a',
+    r.anchor ? `${fmt(r.wallS / r.anchor.wallS)}×` : '', r.anchor ? `${fmt(r.cpuS / r.anchor.cpuS)}×` : '', r.anchor ? `${fmt(r.solveS / r.anchor.solveS)}×` : '',
+    fmt(r.peakMB), r.anchor ? fmt(r.anchor.peakMB) : '', String(r.steps), String(r.rhs), String(r.jacobians)]),
+));
+if (side.some((r) => r.anchorNote)) log(`anchor: ${side.find((r) => r.anchorNote)!.anchorNote}`);
+const sideExponents: { method: string; from: number; to: number; wall: number; cpu: number; solve: number }[] = [];
+const firstLast = sideSizes.length > 1 ? [[sideSizes[0], sideSizes[sideSizes.length - 1]]] : [];
+const pairs = [...sideSizes.slice(1).map((n, k) => [sideSizes[k], n]), ...(sideSizes.length > 2 ? firstLast : [])];
+for (const [a, b] of pairs) {
+  for (const m of methods) {
+    const ra = side.find((r) => r.n === a && r.method === m), rb = side.find((r) => r.n === b && r.method === m);
+    if (ra && rb) sideExponents.push({ method: m, from: a, to: b, wall: growth(a, ra.wallS, b, rb.wallS), cpu: growth(a, ra.cpuS, b, rb.cpuS), solve: growth(a, ra.solveS, b, rb.solveS) });
+  }
+  const ra = side.find((r) => r.n === a && r.anchor)?.anchor, rb = side.find((r) => r.n === b && r.anchor)?.anchor;
+  if (ra && rb) sideExponents.push({ method: 'SciPy BDF', from: a, to: b, wall: growth(a, ra.wallS, b, rb.wallS), cpu: growth(a, ra.cpuS, b, rb.cpuS), solve: growth(a, ra.solveS, b, rb.solveS) });
+}
+results.sideBySideExponents = sideExponents;
+if (sideExponents.length) {
+  log('\nGrowth exponents on the chain (1 = linear):');
+  log(table(['method', 'sizes', 'whole process (wall)', 'whole process (CPU)', 'solve'], sideExponents.map((e) => [e.method, `${e.from} → ${e.to}`, fmt(e.wall, 2), fmt(e.cpu, 2), fmt(e.solve, 2)])));
+}
+
+// ---- 2c. the stiff integrators in process: RODAS against ROS34PW2 ------------------------------
+
+log('\n## Stiff integrators in process: RODAS against ROS34PW2 (a W-method keeping its jacobian); CPU ms of the solve, best of 2');
+const integratorRows = [];
+for (const shape of ['chain', 'grid', 'star'] as NetworkShape[]) {
+  for (const n of quick ? [1000] : [1000, 10_000]) {
+    for (const r of compareIntegrators(n, 2, shape)) integratorRows.push({ shape, n, method: r.method, steps: r.steps, rejected: r.rejected, rhs: r.rhs, jacobians: r.jacobians, lu: r.lu, cpuMs: r.ms });
+  }
+}
+results.integrators = integratorRows;
+log(table(['network', 'chambers', 'method', 'steps', 'rejected', 'rhs', 'jacobians', 'LU', 'CPU ms'],
+  integratorRows.map((r) => [r.shape, String(r.n), r.method, String(r.steps), String(r.rejected), String(r.rhs), String(r.jacobians), String(r.lu), fmt(r.cpuMs)])));
+
+// ---- 2d. parallel speed-up of sweep and check ----------------------------------------------------
+
+log('\n## Parallel speed-up: --jobs 2 against --jobs 1 (whole process, best of the rounds, run alternately)');
+const par = parallelSpeedups(work, quick ? 2 : 3);
+results.parallel = par;
+log(table(['command', 'work', '--jobs 1 s', '--jobs 2 s', 'speed-up', 'CPU s (jobs 1 / jobs 2)'],
+  par.map((p) => [p.command, p.work, fmt(p.oneS), fmt(p.twoS), `${fmt(p.speedup)}×`, `${fmt(p.oneCpuS)} / ${fmt(p.twoCpuS)}`])));
 
 // ---- 3. stiff rig: explicit against Rosenbrock ----------------------------------------------------
 
@@ -223,11 +319,34 @@ add('chain of 10 000: whole process < 8 s', c10k?.wallS, 8, ' s');
 add('cost ratio 10 000 / 1 000 (whole process) ≤ 12', c1k && c10k ? c10k.wallS / c1k.wallS : undefined, 12, '');
 add('cost ratio 10 000 / 1 000 (solve phase) ≤ 12', c1k && c10k ? c10k.solveS / c1k.solveS : undefined, 12, '');
 add(`plenum run ${smallest} < 0.3 s`, small.wallS, 0.3, ' s');
-for (const r of [c1k, c10k]) {
-  if (!r) continue;
-  if (r.anchor) add(`solve phase of the ${r.n} chain no slower than SciPy (${fmt(r.anchor.solveS)} s)`, r.solveS / r.anchor.solveS, 1, '× SciPy');
-  else targets.push({ target: `solve phase of the ${r.n} chain no slower than SciPy`, measured: r.anchorNote ?? 'anchor not run', met: null });
+const sideAt = (n: number, m: Method): SideRow | undefined => side.find((r) => r.n === n && r.method === m);
+for (const m of ['auto', 'implicit'] as Method[]) {
+  for (const n of sideSizes.filter((x) => x >= 10_000)) {
+    const r = sideAt(n, m);
+    if (r?.anchor) {
+      add(`${m}: whole process of the ${n} chain ≤ 1.5× SciPy BDF's whole process (wall, ${fmt(r.anchor.wallS)} s)`, r.wallS / r.anchor.wallS, 1.5, '×');
+      add(`${m}: whole process of the ${n} chain ≤ 1.5× SciPy BDF's whole process (CPU, ${fmt(r.anchor.cpuS)} s)`, r.cpuS / r.anchor.cpuS, 1.5, '×');
+    }
+  }
+  for (const n of sideSizes.filter((x) => x >= 1000)) {
+    const r = sideAt(n, m);
+    if (r?.anchor) add(`${m}: solve phase of the ${n} chain ≤ SciPy BDF's solve (${fmt(r.anchor.solveS)} s)`, r.solveS / r.anchor.solveS, 1, '×');
+    else if (r) targets.push({ target: `${m}: solve phase of the ${n} chain ≤ SciPy BDF's solve`, measured: r.anchorNote ?? 'anchor not run', met: null });
+  }
 }
+for (const e of sideExponents.filter((x) => x.method !== 'SciPy BDF' && x.from === sideSizes[0] && x.to === sideSizes[sideSizes.length - 1])) {
+  add(`${e.method}: growth exponent of the whole process ${e.from} → ${e.to} chambers ≤ 1.0 (wall)`, e.wall, 1, '');
+  add(`${e.method}: growth exponent of the whole process ${e.from} → ${e.to} chambers ≤ 1.0 (CPU)`, e.cpu, 1, '');
+  add(`${e.method}: growth exponent of the solve phase ${e.from} → ${e.to} chambers ≤ 1.0`, e.solve, 1, '');
+}
+{
+  const r = sideAt(10_000, 'auto');
+  if (r) add('peak memory of `plenum run` on the 10 000 chain ≤ 300 MB', r.peakMB, 300, ' MB');
+}
+for (const p of par) {
+  targets.push({ target: `${p.command} --jobs 2 ≥ 1.7× faster than --jobs 1 on 2 idle cores (${p.work})`, measured: `${fmt(p.speedup)}×`, met: Number.isFinite(p.speedup) ? p.speedup >= 1.7 : null, note: 'meaningful only on an idle machine: see the load average' });
+}
+targets.push({ target: '`plenum trace` of 200 linear chambers ≤ 2 s; equilibria within a time budget', measured: 'not measured by this benchmark (see docs/performance.md)', met: null });
 for (const s of stiff) add(`RODAS ≥ 10× fewer rhs than odex on ${s.rig}`, s.rodas.rhs / s.odex.rhs, 0.1, ' of odex\'s rhs');
 results.targets = targets;
 results.loadAverageAtEnd = loadavg();

@@ -3,8 +3,10 @@
 kept here so that the benchmark runs from a fresh clone): a vectorised NumPy chain of N chambers (alternating rigid 20 mL tanks and
 neo-Hookean pods r0 15 mm, t0 1 mm, mu 0.3 MPa) joined by laminar lines (2 mm x 100 mm), pods
 starting at stretch 1.05 and tanks at ambient, isothermal, 1 s, SciPy BDF with a sparse jacobian
-pattern. State: pressure for tanks, stretch for pods. Prints N, wall seconds, nfev, njev."""
-import sys, time, math
+pattern. State: pressure for tanks, stretch for pods. Prints N, solve seconds, nfev, njev, status,
+peak resident memory of the process (MB), CPU seconds of the process. The benchmark runs it with OPENBLAS_NUM_THREADS=1 (and
+the OpenMP/MKL equivalents), so that its linear algebra uses one core like plenum's."""
+import sys, time, math, resource
 import numpy as np
 from scipy.integrate import solve_ivp
 from scipy.sparse import diags
@@ -36,4 +38,6 @@ sp = diags([1.0, 1.0, 1.0], [-1, 0, 1], shape=(n, n))
 t = time.perf_counter()
 sol = solve_ivp(rhs, (0, 1), x0, method=method, rtol=1e-6, atol=np.where(pod, 1e-9, 1e-3),
                 jac_sparsity=sp if method in ("BDF", "Radau") else None)
-print(n, round(time.perf_counter() - t, 3), sol.nfev, sol.njev, sol.status)
+u = resource.getrusage(resource.RUSAGE_SELF)
+print(n, round(time.perf_counter() - t, 3), sol.nfev, sol.njev, sol.status,
+      round(u.ru_maxrss / 1024, 1), round(u.ru_utime + u.ru_stime, 3))

@@ -36,7 +36,7 @@ export function checkNetlist(file: string, interrupt?: () => string | null): Net
   const m = loadModel(read.text, file);
   if (!m.ok) return invalid(file, m.diagnostics, started);
   const model = m.value;
-  const r = simulate(model, { interrupt });
+  const r = simulate(model, { interrupt, record: 'outcomes' }); // check reports expectations, not traces
   const out: NetlistCheck = {
     file, status: r.status, message: r.message, diagnostics: m.warnings,
     expectations: r.expectations,

@@ -28,6 +28,8 @@ if (!model?.ok) {
   const csv = csvPath ? new CsvFile(csvPath) : undefined;
   const result = simulate(model.value, {
     samples: csv,
+    // a trace nobody writes records only what the outcome analysis reads (transient/samples.ts)
+    record: keepTrace === false ? 'outcomes' : 'all',
     interrupt: () => (Atomics.load(flag, STOP_FLAG) ? 'interrupted (Ctrl-C)' : null),
     progress: progress ? (t, tEnd) => post({ kind: 'progress', t, tEnd }) : undefined,
   });

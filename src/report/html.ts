@@ -3,6 +3,7 @@
  * hover read-outs; no fonts, images, scripts or styles from anywhere else, and a content
  * security policy that forbids fetching them) that opens offline and prints on A4.
  */
+import { flatFields } from './table.js';
 import type { ReportInput } from '../transient/report-input.js';
 import { display, type DisplayKind } from '../units/display.js';
 import { reportFigures, type Figure } from './plots.js';
@@ -440,6 +441,14 @@ export function reportHtml(input: ReportInput): string {
       h('h3', {}, 'Chambers'), chamberTable(input),
       h('h3', {}, 'Lines and valves'), pathTable(input),
       boundaryTable(input) ? h('h3', {}, 'Boundaries') + boundaryTable(input) : '',
+      // further element kinds (elements/contract.ts summaries), their fields as given, SI
+      ...Object.entries(r.sections ?? {}).flatMap(([section, entries]) => {
+        const rows = Object.entries(entries).map(([n, s]) => [n, flatFields(s)] as const);
+        if (!rows.length) return [];
+        return [h('h3', {}, esc(section[0].toUpperCase() + section.slice(1))),
+          table([section.replace(/s$/, ''), ...rows[0][1].map(([k]) => `${k}`)], rows.map(([n, f]) => [esc(n), ...f.map(([, v]) => esc(v))]), [0]),
+          h('p', { class: 'meta' }, 'SI units')];
+      }),
       h('h3', {}, 'Mass balance'), mass),
     h('section', { id: 'events' }, h('h2', {}, 'Events'), h('p', { class: 'meta' }, 'The numbers match the marks on the top edge of the time charts.'), events, omitted),
     h('section', { id: 'checks' }, h('h2', {}, 'Expectations'), checks),

@@ -33,7 +33,7 @@ export function nameList(names: string[]): string {
 }
 
 /** A summary's fields flattened to `a.b` keys and printed values (numbers to 4 digits). */
-function flatFields(s: Record<string, unknown>, prefix = ''): [string, string][] {
+export function flatFields(s: Record<string, unknown>, prefix = ''): [string, string][] {
   const out: [string, string][] = [];
   for (const [k, v] of Object.entries(s)) {
     if (v !== null && typeof v === 'object') out.push(...flatFields(v as Record<string, unknown>, `${prefix}${k}.`));

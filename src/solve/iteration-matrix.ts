@@ -22,7 +22,8 @@ import { DenseLu } from '../linalg/dense-lu.js';
 import { analyseSparse, SparseLu, type SparseSymbolic } from '../linalg/sparse-lu.js';
 import { patternSize, scatterDense, type SparsePattern } from '../linalg/sparse-pattern.js';
 import { ColouredJacobian, FiniteJacobian } from './finite-jacobian.js';
-import type { IntegrateOptions, OdeProblem } from './types.js';
+import { allFinite } from './step-control.js';
+import type { IntegrateOptions, OdeProblem, WorkCounts } from './types.js';
 
 /** Unknowns from which a problem with a jacobian pattern is solved with sparse LU. */
 export const SPARSE_MIN_N = 16;
@@ -61,11 +62,6 @@ function colouredOf(p: SparsePattern): ColouredJacobian {
   let c = colouredCache.get(p);
   if (!c) colouredCache.set(p, (c = new ColouredJacobian(p)));
   return c;
-}
-
-function allFinite(v: Float64Array): boolean {
-  for (let i = 0; i < v.length; i++) if (!Number.isFinite(v[i])) return false;
-  return true;
 }
 
 class DenseIteration implements IterationMatrix {
@@ -174,4 +170,49 @@ export function chooseLinearAlgebra(p: OdeProblem, option: IntegrateOptions['lin
 
 export function makeIterationMatrix(p: OdeProblem, option?: IntegrateOptions['linearAlgebra']): IterationMatrix {
   return chooseLinearAlgebra(p, option) === 'sparse' ? new SparseIteration(p) : new DenseIteration(p);
+}
+
+/**
+ * What a linearly implicit one-step method (RODAS, ROS34PW2) keeps of the point it steps from:
+ * f0 = f(t, y), the jacobian with its iteration matrix, and ∂f/∂t.
+ */
+export class Linearisation {
+  readonly n: number;
+  /** f(t, y) at the current point. */
+  f0: Float64Array;
+  protected readonly ft: Float64Array;
+  protected readonly lu: IterationMatrix;
+  private readonly fd: FiniteJacobian;
+
+  constructor(protected readonly p: OdeProblem, linearAlgebra?: IntegrateOptions['linearAlgebra']) {
+    this.n = p.n;
+    this.f0 = new Float64Array(p.n);
+    this.ft = new Float64Array(p.n);
+    this.lu = makeIterationMatrix(p, linearAlgebra);
+    this.fd = new FiniteJacobian(p.n);
+  }
+
+  /** f0 = f(t, y); false when not finite. */
+  evalRhs(t: number, y: Float64Array, work: WorkCounts): boolean {
+    this.p.rhs(t, y, this.f0);
+    work.rhs++;
+    return allFinite(this.f0);
+  }
+
+  /**
+   * J = ∂f/∂y and ft = ∂f/∂t at (t, y), given f0; the ∂f/∂t difference stays short of tLimit.
+   * False when either is not finite: no step size can cure that.
+   */
+  linearise(t: number, y: Float64Array, h: number, tLimit: number, work: WorkCounts): boolean {
+    const { p } = this;
+    const used = this.lu.linearise(t, y, this.f0);
+    work.jacobians++;
+    if (used < 0) return false;
+    work.rhs += used;
+    // ∂f/∂t: zero without differencing where the problem says f does not depend on t.
+    const tFar = t + h;
+    if (p.timeInvariant?.(Math.min(t, tFar), Math.max(t, tFar))) this.ft.fill(0);
+    else work.rhs += this.fd.timeDerivative(p, t, y, this.f0, h, tLimit, this.ft);
+    return allFinite(this.ft);
+  }
 }

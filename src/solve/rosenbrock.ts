@@ -10,20 +10,9 @@
  * rodas.f's own header cites §IV.7 and §VI.3); Hairer's code rodas.f (version of October 28,
  * 1996), subroutines ROSCOR and ROCOE (METH = 1).
  */
-import { FiniteJacobian } from './finite-jacobian.js';
-import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
-import { adaptiveSteps, allFinite, checkArguments as checkArgs, justInside, rmsNorm, type StepMachine } from './step-control.js';
-import {
-  zeroWork,
-  type DenseOutput,
-  type IntegrateOptions,
-  type IntegrateResult,
-  type Integrator,
-  type IntegratorStatus,
-  type OdeProblem,
-  type StepCallback,
-  type WorkCounts,
-} from './types.js';
+import { Linearisation } from './iteration-matrix.js';
+import { adaptiveSteps, allFinite, fixedSteps, rmsNorm, rosenbrockStages, type StepMachine, type Tableau } from './step-control.js';
+import type { DenseOutput, IntegrateOptions, IntegrateResult, Integrator, OdeProblem, StepCallback, WorkCounts } from './types.js';
 
 // ---- Coefficients -------------------------------------------------------------------------
 // Transcribed from rodas.f, subroutine ROCOE, METH = 1 (Hairer & Wanner's own RODAS set; the
@@ -56,6 +45,7 @@ const G: readonly number[][] = [
   [7.496443313967647, -10.24680431464352, -33.99990352819905, 11.7089089320616],
   [8.083246795921522, -7.981132988064893, -31.52159432874371, 16.31930543123136, -6.058818238834054],
 ];
+const RODAS: Tableau = { a: A, g: G, c: C, d: D };
 /** Dense output (rodas.f D21..D35): q_2 = Σ H[0][j] k_j, q_3 = Σ H[1][j] k_j over k_1..k_5. */
 const H: readonly number[][] = [
   [10.12623508344586, -7.487995877610167, -34.80091861555747, -7.992771707568823, 1.025137723295662],
@@ -66,32 +56,23 @@ const H: readonly number[][] = [
  * One RODAS step machine: workspace, the linearisation at (t, y), a step attempt and the dense
  * output of the last accepted step.
  */
-class Rodas {
-  readonly n: number;
-  /** f(t, y) at the current point. */
-  readonly f0: Float64Array;
+class Rodas extends Linearisation {
   readonly yNew: Float64Array;
   /** Dense output of the last accepted step; reads `q`, so valid until the next `accept`. */
   readonly dense: DenseOutput;
-  private readonly ft: Float64Array;
   private readonly ys: Float64Array;
   private readonly k: Float64Array[];
   private readonly q: Float64Array[];
-  private readonly lu: IterationMatrix;
-  private readonly fd: FiniteJacobian;
   private tOld = 0;
   private hOld = 1;
 
-  constructor(private readonly p: OdeProblem, linearAlgebra?: IntegrateOptions['linearAlgebra']) {
-    const n = (this.n = p.n);
-    this.f0 = new Float64Array(n);
+  constructor(p: OdeProblem, linearAlgebra?: IntegrateOptions['linearAlgebra']) {
+    super(p, linearAlgebra);
+    const n = p.n;
     this.yNew = new Float64Array(n);
-    this.ft = new Float64Array(n);
     this.ys = new Float64Array(n);
     this.k = Array.from({ length: 6 }, () => new Float64Array(n));
     this.q = Array.from({ length: 4 }, () => new Float64Array(n));
-    this.lu = makeIterationMatrix(p, linearAlgebra);
-    this.fd = new FiniteJacobian(n);
     const [q0, q1, q2, q3] = this.q;
     // References: rodas.f, function CONTRO: y(t0 + s h) ≈ (1−s) y0 + s (y1 + (1−s)(q2 + s q3)).
     this.dense = (t, out) => {
@@ -99,30 +80,6 @@ class Rodas {
       const r = 1 - s;
       for (let i = 0; i < n; i++) out[i] = r * q0[i] + s * (q1[i] + r * (q2[i] + s * q3[i]));
     };
-  }
-
-  /** f0 = f(t, y); false when not finite. */
-  evalRhs(t: number, y: Float64Array, work: WorkCounts): boolean {
-    this.p.rhs(t, y, this.f0);
-    work.rhs++;
-    return allFinite(this.f0);
-  }
-
-  /**
-   * J = ∂f/∂y and ft = ∂f/∂t at (t, y), given f0; the ∂f/∂t difference stays short of tLimit.
-   * False when either is not finite: no step size can cure that.
-   */
-  linearise(t: number, y: Float64Array, h: number, tLimit: number, work: WorkCounts): boolean {
-    const { p } = this;
-    const used = this.lu.linearise(t, y, this.f0);
-    work.jacobians++;
-    if (used < 0) return false;
-    work.rhs += used;
-    // ∂f/∂t: zero without differencing where the problem says f does not depend on t.
-    const tFar = t + h;
-    if (p.timeInvariant?.(Math.min(t, tFar), Math.max(t, tFar))) this.ft.fill(0);
-    else work.rhs += this.fd.timeDerivative(p, t, y, this.f0, h, tLimit, this.ft);
-    return allFinite(this.ft);
   }
 
   /**
@@ -136,31 +93,7 @@ class Rodas {
     const { n, k, ys, ft, lu, p } = this;
     work.lu++;
     if (!lu.factor(1 / (h * GAMMA))) return 'singular';
-    for (let s = 0; s < 6; s++) {
-      const ks = k[s];
-      if (s === 0) {
-        ks.set(this.f0);
-      } else {
-        const a = A[s];
-        ys.set(y);
-        for (let j = 0; j < s; j++) {
-          const aj = a[j], kj = k[j];
-          for (let i = 0; i < n; i++) ys[i] += aj * kj[i];
-        }
-        p.rhs(C[s] === 1 ? tLast : t + C[s] * h, ys, ks);
-        work.rhs++;
-        const g = G[s];
-        for (let j = 0; j < s; j++) {
-          const gj = g[j] / h, kj = k[j];
-          for (let i = 0; i < n; i++) ks[i] += gj * kj[i];
-        }
-      }
-      if (D[s] !== 0) {
-        const hd = h * D[s];
-        for (let i = 0; i < n; i++) ks[i] += hd * ft[i];
-      }
-      lu.solve(ks);
-    }
+    rosenbrockStages(RODAS, p, lu, k, ys, this.f0, ft, t, y, h, tLast, work);
     // After the loop ys holds the embedded solution (the argument of stage 6).
     const yNew = this.yNew, err = k[5];
     for (let i = 0; i < n; i++) yNew[i] = ys[i] + err[i];
@@ -190,9 +123,6 @@ class Rodas {
   }
 }
 
-function checkArguments(problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number): void {
-  checkArgs('rosenbrock', problem, t0, y0, tEnd);
-}
 
 /** RODAS for the shared adaptive loop: a fresh f and jacobian at the start of every step. */
 class RodasMachine extends Rodas implements StepMachine {
@@ -250,28 +180,5 @@ export function rosenbrockFixedSteps(
   onStep?: StepCallback,
   linearAlgebra?: IntegrateOptions['linearAlgebra'],
 ): IntegrateResult {
-  checkArguments(problem, t0, y0, tEnd);
-  if (!Number.isInteger(steps) || steps < 1) throw new RangeError(`rosenbrockFixedSteps: steps must be a positive integer, got ${steps}`);
-  const work = zeroWork();
-  const y = Float64Array.from(y0);
-  const st = new Rodas(problem, linearAlgebra);
-  let t = t0;
-  const h = (tEnd - t0) / steps;
-  const tInside = justInside(tEnd, Math.sign(h));
-  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
-    ({ status, t, y: Float64Array.from(y), work, hLast: Math.abs(h), message });
-  for (let i = 1; i <= steps; i++) {
-    const tNew = i === steps ? tEnd : t0 + i * h;
-    const hs = tNew - t;
-    if (!st.evalRhs(t, y, work) || !st.linearise(t, y, hs, tInside, work)) return finish('non-finite', `non-finite rhs or jacobian at t = ${t}`);
-    const outcome = st.attempt(t, y, hs, i === steps ? tInside : tNew, work);
-    if (outcome !== 'ok') return finish(outcome, `${outcome} step at t = ${t}`);
-    work.steps++;
-    st.keepDense(t, hs, y);
-    y.set(st.yNew);
-    const tOld = t;
-    t = tNew;
-    if (onStep?.(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
-  }
-  return finish('completed', `${steps} fixed steps`);
+  return fixedSteps('rosenbrockFixedSteps', new RodasMachine(problem, linearAlgebra), problem, t0, y0, tEnd, steps, onStep);
 }

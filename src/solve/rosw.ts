@@ -26,20 +26,9 @@
  * II, 2nd ed. 1996, §IV.7 (Rosenbrock and W-methods, transformed form, step control);
  * Hairer, Nørsett & Wanner, Solving ODEs I, §II.6 (Hermite interpolation).
  */
-import { FiniteJacobian } from './finite-jacobian.js';
-import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
-import { adaptiveSteps, allFinite, checkArguments, justInside, rmsNorm, type StepMachine } from './step-control.js';
-import {
-  zeroWork,
-  type DenseOutput,
-  type IntegrateOptions,
-  type IntegrateResult,
-  type Integrator,
-  type IntegratorStatus,
-  type OdeProblem,
-  type StepCallback,
-  type WorkCounts,
-} from './types.js';
+import { Linearisation } from './iteration-matrix.js';
+import { adaptiveSteps, allFinite, fixedSteps, rmsNorm, rosenbrockStages, type StepMachine, type Tableau } from './step-control.js';
+import type { DenseOutput, IntegrateOptions, IntegrateResult, Integrator, OdeProblem, StepCallback, WorkCounts } from './types.js';
 
 // ---- Coefficients (standard form α, γ, b, b̂ of Rang & Angermann 2005, ROS34PW2) ------------
 export const ROSW_GAMMA = 4.3586652150845900e-01;
@@ -86,6 +75,7 @@ const M = rowTimesGinv((i) => ROSW_B[i]);
 const E = rowTimesGinv((i) => ROSW_B[i] - ROSW_BHAT[i]);
 const C = ROSW_ALPHA.map((r) => r.reduce((a, b) => a + b, 0));
 const D = ROSW_GAMMA_IJ.map((r) => r.reduce((a, b) => a + b, ROSW_GAMMA));
+const ROS34PW2: Tableau = { a: A, g: G, c: C, d: D };
 
 // ---- Jacobian reuse ------------------------------------------------------------------------
 /** Accepted steps one jacobian serves at most. */
@@ -93,14 +83,11 @@ export const MAX_JACOBIAN_AGE = 20;
 /** An accepted step with an error norm above this asks for a fresh jacobian (measured: bench/integrators.ts). */
 export const KEEP_ERROR = 0.1;
 
-class RosW {
-  readonly n: number;
-  /** f(t, y) at the current point; after an accepted step f(t1, y1). */
-  f0: Float64Array;
+class RosW extends Linearisation {
+  /** After an accepted step f0 holds f(t1, y1) (see keep). */
   private f1: Float64Array;
   readonly yNew: Float64Array;
   readonly dense: DenseOutput;
-  private readonly ft: Float64Array;
   private readonly ys: Float64Array;
   private readonly u: Float64Array[];
   private readonly err: Float64Array;
@@ -108,19 +95,16 @@ class RosW {
   private readonly dy: Float64Array;
   private readonly hf0: Float64Array;
   private readonly hf1: Float64Array;
-  private readonly lu: IterationMatrix;
-  private readonly fd: FiniteJacobian;
   private tOld = 0;
   private hOld = 1;
 
-  constructor(private readonly p: OdeProblem, linearAlgebra?: IntegrateOptions['linearAlgebra']) {
-    const n = (this.n = p.n);
+  constructor(p: OdeProblem, linearAlgebra?: IntegrateOptions['linearAlgebra']) {
+    super(p, linearAlgebra);
+    const n = p.n;
     const v = (): Float64Array => new Float64Array(n);
-    this.f0 = v(); this.f1 = v(); this.yNew = v(); this.ft = v(); this.ys = v(); this.err = v();
+    this.f1 = v(); this.yNew = v(); this.ys = v(); this.err = v();
     this.y0 = v(); this.dy = v(); this.hf0 = v(); this.hf1 = v();
     this.u = Array.from({ length: S }, v);
-    this.lu = makeIterationMatrix(p, linearAlgebra);
-    this.fd = new FiniteJacobian(n);
     const { y0, dy, hf0, hf1 } = this;
     // Hairer, Nørsett & Wanner I, (II.6.7): y(θ) = (1−θ)y0 + θy1 + θ(θ−1)((1−2θ)(y1−y0) + (θ−1)h f0 + θ h f1)
     this.dense = (t, out) => {
@@ -130,54 +114,12 @@ class RosW {
     };
   }
 
-  evalRhs(t: number, y: Float64Array, work: WorkCounts): boolean {
-    this.p.rhs(t, y, this.f0);
-    work.rhs++;
-    return allFinite(this.f0);
-  }
-
-  /** J and ∂f/∂t at (t, y) given f0; false when not finite. */
-  linearise(t: number, y: Float64Array, h: number, tLimit: number, work: WorkCounts): boolean {
-    const used = this.lu.linearise(t, y, this.f0);
-    work.jacobians++;
-    if (used < 0) return false;
-    work.rhs += used;
-    const tFar = t + h;
-    if (this.p.timeInvariant?.(Math.min(t, tFar), Math.max(t, tFar))) this.ft.fill(0);
-    else work.rhs += this.fd.timeDerivative(this.p, t, y, this.f0, h, tLimit, this.ft);
-    return allFinite(this.ft);
-  }
-
   /** One step of signed size h from (t, y) with the current J; tLast is the time of stages at c = 1. */
   attempt(t: number, y: Float64Array, h: number, tLast: number, work: WorkCounts): 'ok' | 'singular' | 'non-finite' {
     const { n, u, ys, ft, lu, p } = this;
     work.lu++;
     if (!lu.factor(1 / (h * ROSW_GAMMA))) return 'singular';
-    for (let s = 0; s < S; s++) {
-      const us = u[s];
-      if (s === 0) {
-        us.set(this.f0);
-      } else {
-        ys.set(y);
-        const a = A[s];
-        for (let j = 0; j < s; j++) {
-          const aj = a[j], uj = u[j];
-          if (aj !== 0) for (let i = 0; i < n; i++) ys[i] += aj * uj[i];
-        }
-        p.rhs(C[s] === 1 ? tLast : t + C[s] * h, ys, us);
-        work.rhs++;
-        const g = G[s];
-        for (let j = 0; j < s; j++) {
-          const gj = g[j] / h, uj = u[j];
-          for (let i = 0; i < n; i++) us[i] += gj * uj[i];
-        }
-      }
-      if (D[s] !== 0) {
-        const hd = h * D[s];
-        for (let i = 0; i < n; i++) us[i] += hd * ft[i];
-      }
-      lu.solve(us);
-    }
+    rosenbrockStages(ROS34PW2, p, lu, u, ys, this.f0, ft, t, y, h, tLast, work);
     const { yNew, err } = this;
     yNew.set(y);
     err.fill(0);
@@ -278,37 +220,14 @@ export const rosw: Integrator = (problem, t0, y0, tEnd, onStep, options: RosWOpt
   adaptiveSteps('rosw', new RosWMachine(problem, options), 3, problem, t0, y0, tEnd, onStep, options);
 
 /**
- * ROS34PW2 with `steps` equal steps and no error control, for order studies. With
- * `freezeJacobian` the jacobian of the starting point serves every step (the W-method's order
- * must survive that). Also returns the last error estimate's norm.
+ * ROS34PW2 with `steps` equal steps and no error control, for order studies: a fresh jacobian
+ * every step, or with `freezeJacobian` the one of the starting point for every step (the
+ * W-method's order must survive that).
  */
 export function roswFixedSteps(
   problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number, steps: number,
   onStep?: StepCallback, freezeJacobian = false,
 ): IntegrateResult {
-  checkArguments('rosw', problem, t0, y0, tEnd);
-  const work = zeroWork();
-  const y = Float64Array.from(y0);
-  const st = new RosW(problem);
-  let t = t0;
-  const h = (tEnd - t0) / steps;
-  const tInside = justInside(tEnd, Math.sign(h));
-  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
-    ({ status, t, y: Float64Array.from(y), work, hLast: Math.abs(h), message });
-  if (!st.evalRhs(t, y, work)) return finish('non-finite', `non-finite rhs at t = ${t}`);
-  for (let i = 1; i <= steps; i++) {
-    const tNew = i === steps ? tEnd : t0 + i * h;
-    const hs = tNew - t;
-    if ((i === 1 || !freezeJacobian) && !st.linearise(t, y, hs, tInside, work)) return finish('non-finite', `non-finite jacobian at t = ${t}`);
-    const outcome = st.attempt(t, y, hs, i === steps ? tInside : tNew, work);
-    if (outcome !== 'ok') return finish(outcome, `${outcome} step at t = ${t}`);
-    if (!st.evalEnd(i === steps ? tInside : tNew, work)) return finish('non-finite', `non-finite rhs at t = ${tNew}`);
-    work.steps++;
-    st.keep(t, hs, y);
-    y.set(st.yNew);
-    const tOld = t;
-    t = tNew;
-    if (onStep?.(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
-  }
-  return finish('completed', `${steps} fixed steps`);
+  const st = new RosWMachine(problem, freezeJacobian ? { jacobianAge: Infinity, keepError: Infinity } : { jacobianAge: 1 });
+  return fixedSteps('rosw', st, problem, t0, y0, tEnd, steps, onStep);
 }

@@ -189,3 +189,86 @@ export function adaptiveSteps(
     h = hNew;
   }
 }
+
+/** A Rosenbrock method in the transformed form of rodas.f: stage arguments a, couplings g, abscissae c, ∂f/∂t weights d. */
+export interface Tableau {
+  readonly a: readonly (readonly number[])[];
+  readonly g: readonly (readonly number[])[];
+  readonly c: readonly number[];
+  readonly d: readonly number[];
+}
+
+/**
+ * The stages of one attempt with the factorised iteration matrix (1/(hγ))·I − J in `lu`:
+ *   (1/(hγ) I − J) k_s = f(t + c_s h, y + Σ_j a_sj k_j) + Σ_j (g_sj / h) k_j + h d_s f_t,
+ * k_0 from f0 = f(t, y); stages at c = 1 are evaluated at tLast. Afterwards `ys` holds the
+ * argument of the last stage.
+ *
+ * References: Hairer & Wanner, Solving ODEs II, 2nd ed. 1996, §IV.7 (transformed form); rodas.f, ROSCOR.
+ */
+export function rosenbrockStages(
+  tab: Tableau, p: OdeProblem, lu: { solve(b: Float64Array): void }, k: readonly Float64Array[], ys: Float64Array,
+  f0: Float64Array, ft: Float64Array, t: number, y: Float64Array, h: number, tLast: number, work: WorkCounts,
+): void {
+  const n = y.length;
+  for (let s = 0; s < k.length; s++) {
+    const ks = k[s];
+    if (s === 0) {
+      ks.set(f0);
+    } else {
+      const a = tab.a[s];
+      ys.set(y);
+      for (let j = 0; j < s; j++) {
+        const aj = a[j], kj = k[j];
+        if (aj !== 0) for (let i = 0; i < n; i++) ys[i] += aj * kj[i];
+      }
+      p.rhs(tab.c[s] === 1 ? tLast : t + tab.c[s] * h, ys, ks);
+      work.rhs++;
+      const g = tab.g[s];
+      for (let j = 0; j < s; j++) {
+        const gj = g[j] / h, kj = k[j];
+        for (let i = 0; i < n; i++) ks[i] += gj * kj[i];
+      }
+    }
+    if (tab.d[s] !== 0) {
+      const hd = h * tab.d[s];
+      for (let i = 0; i < n; i++) ks[i] += hd * ft[i];
+    }
+    lu.solve(ks);
+  }
+}
+
+/**
+ * `steps` equal steps without error control (order studies and tests), with the same machine as
+ * the adaptive loop; onStep (optional) receives the same dense output. Statuses: 'completed',
+ * 'stopped', 'non-finite', 'singular'.
+ */
+export function fixedSteps(
+  name: string, st: StepMachine, problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number, steps: number, onStep?: StepCallback,
+): IntegrateResult {
+  checkArguments(name, problem, t0, y0, tEnd);
+  if (!Number.isInteger(steps) || steps < 1) throw new RangeError(`${name}: steps must be a positive integer, got ${steps}`);
+  const work = zeroWork();
+  const y = Float64Array.from(y0);
+  let t = t0;
+  const h = (tEnd - t0) / steps;
+  const tInside = justInside(tEnd, Math.sign(h));
+  const finish = (status: IntegratorStatus, message: string): IntegrateResult =>
+    ({ status, t, y: Float64Array.from(y), work, hLast: Math.abs(h), message });
+  if (!st.start(t, y, work)) return finish('non-finite', `non-finite rhs at t = ${t}`);
+  for (let i = 1; i <= steps; i++) {
+    const tNew = i === steps ? tEnd : t0 + i * h;
+    const hs = tNew - t;
+    if (!st.prepare(t, y, hs, tInside, work)) return finish('non-finite', `non-finite rhs or jacobian at t = ${t}`);
+    const outcome = st.attempt(t, y, hs, i === steps ? tInside : tNew, work);
+    if (outcome !== 'ok') return finish(outcome, `${outcome} step at t = ${t}`);
+    work.steps++;
+    st.accept(t, hs, y);
+    st.accepted(0, false);
+    y.set(st.yNew);
+    const tOld = t;
+    t = tNew;
+    if (onStep?.(tOld, t, y, st.dense) === false) return finish('stopped', `stopped by the step callback at t = ${t}`);
+  }
+  return finish('completed', `${steps} fixed steps`);
+}

@@ -162,7 +162,7 @@ export class CaseRunner {
     const m = this.model(spec.params);
     if (!m.ok) return invalid(spec, m.diagnostics);
     const model = m.model;
-    const r = simulate(model);
+    const r = simulate(model, { record: 'outcomes' }); // a case keeps its outcome, not its trace
     const completed = r.status === 'completed';
     const chambers: Record<string, ChamberOutcome> = {};
     if (completed) {

@@ -15,12 +15,18 @@ import { diagnoseFault } from './fault.js';
 import type { ChamberSummary, ElementSections, EventTally, LineSummary, RunFault, RunResult, ValveSummary } from './results.js';
 import { spectralRadiusEstimate, STIFF_THRESHOLD } from './stiffness.js';
 import { classifyOutcomes } from './outcome.js';
+import { outcomeKeys, SampleStore, type Recorded } from './samples.js';
 
 export interface SimulateOptions {
   /** Polled every step; return a message to stop (e.g. on Ctrl-C). */
   interrupt?: () => string | null;
   /** Called now and then with the simulated time reached. */
   progress?: (t: number, tEnd: number) => void;
+  /**
+   * Which channels the trace records (samples.ts): 'all' (default), or 'outcomes' when the
+   * trace itself is not wanted (only what the outcome classification and the studies read).
+   */
+  record?: Recorded;
   /**
    * Receives the sampled history as it is taken (e.g. to stream the CSV to disk): `begin` once
    * with the channels, then `sample` at every sample time with the channel values.
@@ -83,7 +89,8 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const nch = channels.length;
   options.samples?.begin(channels);
   const keys = new Map(channels.map((c, i) => [c.key, i] as const));
-  const trace = { channels, times: [] as number[], values: channels.map(() => [] as number[]) };
+  const keys0 = options.record === 'outcomes' ? outcomeKeys(model.chambers.map((c) => c.name)) : undefined;
+  const samples = new SampleStore(channels, duration / sample + 2, keys0 ? (k) => keys0.has(k) : () => true);
   // expectations are judged on the dense output inside every step, not on samples
   const monitor = new ExpectationMonitor(model.expect, { keys, width: nch, n: sys.n, observe: (t, y, row) => sys.observe(t, y, row) },
     model.chambers.map((c) => c.name), model.pa);
@@ -100,8 +107,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const observe = (t: number, y: Float64Array, kind: 'sample' | 'step'): void => {
     sys.observe(t, y, row);
     if (kind === 'sample') {
-      trace.times.push(t);
-      for (let c = 0; c < nch; c++) trace.values[c].push(row[c]);
+      samples.add(t, row);
       options.samples?.sample(t, row);
     }
     for (let s = 0; s < summaries.length; s++) summaries[s].track(t, row);
@@ -174,6 +180,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     }
   }
 
+  const trace = samples.trace();
   const expectations = r.status === 'completed'
     ? monitor.results(r.t, yEnd)
     : [];

@@ -9,6 +9,8 @@ import { readNetlist } from '../../src/netlist/read.js';
 import { resultJson } from '../../src/report/json.js';
 import { traceCsv } from '../../src/report/csv.js';
 import { summaryText } from '../../src/report/table.js';
+import { reportHtml } from '../../src/report/html.js';
+import { reportInput } from '../../src/transient/report-input.js';
 import { at, modelFromText, runChecked } from '../helpers.js';
 
 const R_AIR = 8.314462618 / 0.0289647;
@@ -57,10 +59,12 @@ describe('leak: one table and one element file make it appear everywhere', () =>
     expect(doc.ok && doc.value.elements?.[0].values['discharge-coefficient']).toBe(0.6);
   });
 
-  it('shows up in the CSV, the JSON, the printed summary and the expectations', () => {
-    const r = runChecked(modelFromText(tank(`expect:
+  it('shows up in the CSV, the JSON, the printed summary, the HTML report and the expectations', () => {
+    const model = modelFromText(tank(`expect:
   - { name: gas lost, probe: pinhole.lost, at: end, above: 1 g }
-  - { name: leak flow, probe: pinhole.flow, at: 0 s, near: { value: 0.06 g/s, within: 5% } }`)));
+  - { name: leak flow, probe: pinhole.flow, at: 0 s, near: { value: 0.06 g/s, within: 5% } }`));
+    const r = runChecked(model);
+    expect(reportHtml(reportInput(model, r))).toMatch(/<h3>Leaks<\/h3>.*pinhole/s);
     expect(traceCsv(r.trace).split('\n')[0]).toContain('pinhole.flow [kg/s],pinhole.lost [kg]');
     const json = JSON.parse(resultJson(r));
     expect(json.leaks.pinhole.choked).toBe(true);

@@ -6,6 +6,7 @@
 import { describe, expect, it } from 'vitest';
 import { rosenbrockFixedSteps } from '../../src/solve/rosenbrock.js';
 import type { OdeProblem } from '../../src/solve/types.js';
+import { A, denseError, k, p0, pa, pExact, tank } from './tank-blowdown.js';
 
 /** One RODAS step of size 1 on y' = z·y from y = 1 gives the stability function R(z). */
 function stabilityFunction(z: number): number {
@@ -20,30 +21,6 @@ function stabilityFunction(z: number): number {
   expect(r.status).toBe('completed');
   return r.y[0];
 }
-
-// Rigid 1 L tank discharging through a 0.3 mm × 1 m laminar capillary, isothermal air at
-// 293.15 K: dp/dt = −k(p² − pa²), k = πD⁴/(256 μ L V) (Hagen–Poiseuille at the mean density;
-// Bird, Stewart & Lightfoot, Transport Phenomena, 2nd ed., §2.3). μ from Sutherland's law as
-// in references.md.
-const D = 0.3e-3; // m
-const Lc = 1; // m
-const V = 1e-3; // m³
-const mu = 1.716e-5 * (293.15 / 273.15) ** 1.5 * (273.15 + 110.4) / (293.15 + 110.4); // Pa·s
-const pa = 101325; // Pa
-const p0 = 300e3; // Pa
-const k = (Math.PI * D ** 4) / (256 * mu * Lc * V); // 1/(Pa·s)
-const A = (p0 - pa) / (p0 + pa);
-function pExact(t: number): number {
-  const e = A * Math.exp(-2 * pa * k * t);
-  return (pa * (1 + e)) / (1 - e);
-}
-const tank: OdeProblem = {
-  n: 1,
-  rhs: (_t, y, dydt) => { dydt[0] = -k * (y[0] ** 2 - pa ** 2); },
-  jacobian: (_t, y, J) => { J[0] = -2 * k * y[0]; },
-  rtol: 1e-8,
-  atol: Float64Array.of(1e-4),
-};
 
 describe('RODAS stability function (Hairer & Wanner II, §VI.4 and §IV.3)', () => {
   it('R(z) − e^z = O(z^5): the error ratio when z halves tends to 2^5', () => {
@@ -108,22 +85,8 @@ describe('RODAS convergence with fixed steps (Hairer & Wanner II, §VI.4: order 
   });
 
   it('dense output converges with order 4 (order-3 continuous extension, local error O(h^4))', () => {
-    const out = new Float64Array(1);
-    const denseError = (steps: number) => {
-      let worst = 0;
-      const r = rosenbrockFixedSteps(tank, 0, Float64Array.of(p0), 2000, steps, (tOld, tNew, yNew, dense) => {
-        for (const s of [0.2, 0.4, 0.6, 0.8]) {
-          const t = tOld + s * (tNew - tOld);
-          dense(t, out);
-          worst = Math.max(worst, Math.abs(out[0] - pExact(t)));
-        }
-        dense(tNew, out);
-        expect(Math.abs(out[0] - yNew[0])).toBeLessThan(1e-15 * yNew[0]);
-      });
-      expect(r.status).toBe('completed');
-      return worst;
-    };
-    const [e1, e2, e3] = [128, 256, 512].map(denseError);
+    const denseErr = (steps: number) => denseError((m, cb) => rosenbrockFixedSteps(tank, 0, Float64Array.of(p0), 2000, m, cb), steps);
+    const [e1, e2, e3] = [128, 256, 512].map(denseErr);
     expect(Math.log2(e1 / e2)).toBeGreaterThan(3.6);
     expect(Math.log2(e2 / e3)).toBeGreaterThan(3.8);
     expect(Math.log2(e2 / e3)).toBeLessThan(4.3);

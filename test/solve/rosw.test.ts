@@ -8,6 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { rosw, roswFixedSteps, ROSW_ALPHA, ROSW_B, ROSW_BHAT, ROSW_GAMMA, ROSW_GAMMA_IJ } from '../../src/solve/rosw.js';
 import type { OdeProblem } from '../../src/solve/types.js';
+import { denseError, p0, pExact, tank } from './tank-blowdown.js';
 
 const s = 4;
 const alpha = (i: number, j: number): number => (j < i ? ROSW_ALPHA[i][j] : 0);
@@ -85,20 +86,6 @@ describe('ROS34PW2 stability function (Hairer & Wanner II, §IV.3)', () => {
   });
 });
 
-// Rigid 1 L tank discharging through a 0.3 mm × 1 m laminar capillary (docs/references.md).
-const D = 0.3e-3, Lc = 1, V = 1e-3, pa = 101325, p0 = 300e3;
-const mu = 1.716e-5 * (293.15 / 273.15) ** 1.5 * (273.15 + 110.4) / (293.15 + 110.4);
-const k = (Math.PI * D ** 4) / (256 * mu * Lc * V);
-const A = (p0 - pa) / (p0 + pa);
-const pExact = (t: number): number => { const e = A * Math.exp(-2 * pa * k * t); return (pa * (1 + e)) / (1 - e); };
-const tank: OdeProblem = {
-  n: 1,
-  rhs: (_t, y, dydt) => { dydt[0] = -k * (y[0] ** 2 - pa ** 2); },
-  jacobian: (_t, y, J) => { J[0] = -2 * k * y[0]; },
-  rtol: 1e-8,
-  atol: Float64Array.of(1e-4),
-};
-
 describe('ROS34PW2 convergence with fixed steps (order 3, also with an old jacobian)', () => {
   for (const freeze of [false, true]) {
     it(`observed order on the tank blowdown is 3 ± 0.25 (${freeze ? 'jacobian of t = 0 kept: W-method' : 'fresh jacobian each step'})`, () => {
@@ -129,22 +116,8 @@ describe('ROS34PW2 convergence with fixed steps (order 3, also with an old jacob
   });
 
   it('dense output (cubic Hermite) converges with order 3 or better and meets the step ends', () => {
-    const out = new Float64Array(1);
-    const denseError = (steps: number) => {
-      let worst = 0;
-      const r = roswFixedSteps(tank, 0, Float64Array.of(p0), 2000, steps, (tOld, tNew, yNew, dense) => {
-        for (const th of [0.2, 0.4, 0.6, 0.8]) {
-          const t = tOld + th * (tNew - tOld);
-          dense(t, out);
-          worst = Math.max(worst, Math.abs(out[0] - pExact(t)));
-        }
-        dense(tNew, out);
-        expect(Math.abs(out[0] - yNew[0])).toBeLessThan(1e-15 * yNew[0]);
-      });
-      expect(r.status).toBe('completed');
-      return worst;
-    };
-    const [e1, e2, e3] = [64, 128, 256].map(denseError);
+    const denseErr = (steps: number) => denseError((m, cb) => roswFixedSteps(tank, 0, Float64Array.of(p0), 2000, m, cb), steps);
+    const [e1, e2, e3] = [64, 128, 256].map(denseErr);
     expect(Math.log2(e1 / e2)).toBeGreaterThan(2.8);
     expect(Math.log2(e2 / e3)).toBeGreaterThan(2.8);
   });
