@@ -164,6 +164,26 @@ export class BranchElement extends BranchState implements Element {
         },
       }];
     }
+    if (op?.kind === 'regulator' && !this.b.vent) {
+      // the kinks of the regulator's law: lock-up at the set pressure, full opening at set − band
+      const at = (limit: number) => (): number => n.p[c] - pa - limit;
+      return [
+        {
+          kind: 'regulator', element: name, value: at(op.set), direction: () => 0,
+          fire: (t, rising, log) => {
+            log.push({ t, what: `regulator ${name} ${rising ? 'locks up (downstream at its set pressure)' : 'opens'}`, kind: 'regulator', element: name });
+            return true;
+          },
+        },
+        {
+          kind: 'regulator', element: name, value: at(op.set - op.band), direction: () => 0,
+          fire: (t, rising, log) => {
+            log.push({ t, what: `regulator ${name} ${rising ? 'throttles' : 'is fully open (downstream below set − band)'}`, kind: 'regulator', element: name });
+            return true;
+          },
+        },
+      ];
+    }
     if (op?.kind === 'check') {
       /** +1 after the valve last opened, −1 after it last closed (see CHECK_DEADBAND). */
       let side = -1;
@@ -198,8 +218,7 @@ export class BranchElement extends BranchState implements Element {
   openingNow(): number {
     const op = this.b.valve?.operation;
     if (op?.kind === 'check') return this.nodes.p[this.from] - op.cracking - this.nodes.p[this.to] > 0 ? 1 : 0;
-    if (op?.kind === 'relief' && op.fullLiftAt !== undefined) return this.lift(this.nodes.p[this.from]);
-    return this.opening(this.t);
+    return this.opening(this.t, this.nodes.p[this.from], this.nodes.p[this.to]);
   }
 
   channels(): Channel[] {

@@ -15,6 +15,11 @@
  * Both relief kinds discharge from → to only: with the downstream side at the higher pressure
  * the valve is seated and passes nothing (its rating says nothing about reverse flow, and a
  * relief valve's disc is pressed onto its seat by back pressure).
+ * - regulator: the opening follows the downstream (`to`) gauge pressure (physics/regulator.ts);
+ *   a relieving regulator's vent is a branch of its own (`<name>.vent`, `to` → ambient) whose
+ *   opening follows the same pressure, its upstream end. Neither passes gas backwards (a
+ *   regulator's seat is a check against reverse flow; common practice).
+ * - driven: the opening is `command`, set by the controller that drives the valve.
  */
 import { ANR, GASES, ISO6358_RHO0, R_UNIVERSAL, type Gas } from '../physics/gas.js';
 
@@ -23,6 +28,7 @@ import { frictionSlope, RE_LAMINAR } from '../physics/tube.js';
 import { emptyLineFlow, lineFlowInto, type LineFlow } from '../physics/line-flow.js';
 import { valveFlowInto, type ValveFlow } from '../physics/valve-flow.js';
 import { brent } from '../physics/roots.js';
+import { regulatorOpening, ventOpening } from '../physics/regulator.js';
 import type { BranchModel } from '../model/types.js';
 import { makeSchedule, type Schedule } from '../model/schedule.js';
 import type { ValveRating } from '../netlist/types.js';
@@ -86,6 +92,10 @@ export class BranchState {
   readonly schedule: Schedule | null;
   /** Relief valve state. */
   open = false;
+  /** Opening commanded by a controller (driven valves), 0..1. */
+  command = 0;
+  /** Lagged position z ∈ [−1, 1] of a regulator with a time constant (its vent reads −z), set from the state. */
+  position = 0;
   readonly dEq: number;
   // Scratch, so that evaluating a flow never allocates (it runs inside the rhs).
   private readonly tube: LineFlow = emptyLineFlow();
@@ -112,13 +122,22 @@ export class BranchState {
     return lineFlowInto(this.tube, p1, p2, Tup, this.gas, l.diameter, l.length, l.roughness);
   }
 
-  /** Opening fraction 0..1 at time t (schedules and relief state; check valves are 1). */
-  opening(t: number): number {
+  /**
+   * Opening fraction 0..1 at time t and end pressures p1, p2 (Pa absolute): schedules, relief
+   * state, regulators (downstream pressure), a controller's command; check valves are 1.
+   */
+  opening(t: number, p1: number, p2: number): number {
     const op = this.b.valve?.operation;
     if (!op) return 1;
-    if (op.kind === 'schedule') return (this.schedule as Schedule).at(t);
-    if (op.kind === 'relief') return this.open ? 1 : 0;
-    return 1;
+    switch (op.kind) {
+      case 'schedule': return (this.schedule as Schedule).at(t);
+      case 'relief': return op.fullLiftAt !== undefined ? this.lift(p1) : this.open ? 1 : 0;
+      case 'regulator':
+        if (op.timeConstant > 0) return this.b.vent ? Math.max(-this.position, 0) : Math.max(this.position, 0);
+        return this.b.vent ? ventOpening(p1 - this.pa, op.set, op.band) : regulatorOpening(p2 - this.pa, op.set, op.band);
+      case 'driven': return this.command;
+      default: return 1;
+    }
   }
 
   /** Opening of a proportional relief valve at upstream pressure pFrom (Pa abs): 0..1. */
@@ -140,7 +159,7 @@ export class BranchState {
       return valveFlowInto(out, v.rating, pEff, p2, T1, T2, this.gas, opening);
     }
     valveFlowInto(out, v.rating, p1, p2, T1, T2, this.gas, opening);
-    if (op.kind === 'relief' && out.mdot < 0) { out.mdot = 0; out.choked = false; }
+    if ((op.kind === 'relief' || op.kind === 'regulator') && out.mdot < 0) { out.mdot = 0; out.choked = false; }
     return out;
   }
 
@@ -153,8 +172,7 @@ export class BranchState {
       lineExtras(out, f);
       return;
     }
-    const op = b.valve.operation;
-    const opening = op.kind === 'relief' && op.fullLiftAt !== undefined ? this.lift(p1) : this.opening(t);
+    const opening = this.opening(t, p1, p2);
     if (!b.line) {
       const r = this.valveOnly(p1, p2, T1, T2, opening);
       out.mdot = r.mdot; out.choked = r.choked; out.regime = 'orifice';

@@ -162,4 +162,10 @@ export interface Element {
    * the system then takes the whole jacobian by coloured differences over the pattern.
    */
   readonly numericJacobian?: boolean;
+  /**
+   * True when it reserves no jacobian entries for its states and their couplings (a controller,
+   * a regulator's lag): the assembler then differences the whole right-hand side for the
+   * jacobian instead of assembling it (fine for the small networks such elements sit in).
+   */
+  readonly differenced?: boolean;
 }

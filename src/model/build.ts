@@ -11,7 +11,7 @@ import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
 import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
 import { display } from '../units/display.js';
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
-import type { BranchModel, ChamberModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import type { BranchModel, ChamberModel, ControllerModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
 import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
 import { buildCylinder, type CylinderModel } from './cylinder.js';
@@ -207,6 +207,14 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
     if (v.inLine) continue;
     branches.push({ name: v.name, kind: 'valve', from: node(v.from), to: node(v.to), valve: { rating: v.rating, operation: v.operation } });
   }
+  // the vents of relieving regulators: their own branches, downstream node → ambient
+  const nb = branches.length;
+  for (let k = 0; k < nb; k++) {
+    const op = branches[k].valve?.operation;
+    if (op?.kind !== 'regulator' || !op.relieving) continue;
+    const b = branches[k];
+    branches.push({ name: `${b.name}.vent`, kind: 'valve', from: b.to, to: node(AMBIENT), valve: { rating: b.valve!.rating, operation: op }, vent: { of: k, set: op.set, band: op.band } });
+  }
 
   // Kinds read from their table alone: name parameters become nodes (after the lines, so that
   // the order of the reservoirs, `ambient` among them, does not depend on them).
@@ -311,7 +319,24 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
     T: f.temperature ?? Ta,
     initially: f.initially,
     steps: f.steps,
+    ...(f.curve ? {
+      curve: {
+        p: Float64Array.from([...f.curve.pressure, ...(f.curve.shutOff > f.curve.pressure[f.curve.pressure.length - 1] ? [f.curve.shutOff] : [])]),
+        q: Float64Array.from([...f.curve.flow.map((x) => (x.kind === 'mass' ? x.value : x.value * rhoAnr)), ...(f.curve.shutOff > f.curve.pressure[f.curve.pressure.length - 1] ? [0] : [])]),
+      },
+    } : {}),
   }));
+
+  const branchIndex = new Map(branches.map((b, k) => [b.name, k] as const));
+  for (const b of branches) if (b.hostLine) branchIndex.set(b.hostLine, branchIndex.get(b.name) as number);
+  const controllers: ControllerModel[] = doc.controllers.map((c) => {
+    const m = c.measure;
+    const ci = chamberIndex.get(m.element);
+    const measure = ci !== undefined
+      ? { kind: 'chamber' as const, index: ci, quantity: m.quantity }
+      : { kind: 'branch' as const, index: branchIndex.get(m.element) as number, quantity: m.quantity };
+    return { name: c.name, spec: c, measure, valve: branchIndex.get(c.drives) as number };
+  });
 
   if (doc.heat === 'exchange') {
     for (const c of doc.chambers) {
@@ -323,7 +348,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
 
   if (errs.length) return { ok: false, diagnostics: errs };
   const model: Model = {
-    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders,
+    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders, controllers,
     ...(elements.length ? { elements } : {}),
     simulate: doc.simulate, expect: doc.expect,
   };
