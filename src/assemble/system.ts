@@ -24,8 +24,10 @@ import type { Assembly, Channel, Element, ElementEvent, LoggedEvent, StateSlot }
 import { K, Nodes } from '../elements/nodes.js';
 import { createElements } from '../elements/registry.js';
 import { BranchElement } from '../elements/branch-element.js';
+import { WaveLineElement } from '../elements/wave-line.js';
 import type { BranchFlow, BranchState } from '../elements/branch.js';
 import { NetworkJacobian } from './jacobian.js';
+import { patternFromEntries } from '../linalg/sparse-pattern.js';
 
 export type { Channel, LoggedEvent };
 
@@ -131,7 +133,21 @@ export class NetworkSystem implements EventfulProblem {
     for (const e of made) e.breakpoints?.().forEach((t) => bps.add(t));
     this.breakpoints = [...bps].sort((a, b) => a - b);
     this.events = made.flatMap((e) => e.events?.() ?? []);
+    if (made.some((e) => e.differenced)) {
+      // an element without jacobian entries of its own: the solver differences the whole rhs
+      Object.defineProperty(this, 'jacobianSparse', { value: undefined });
+      this.differenced = true;
+    }
+    else if (made.some((e) => e.numericJacobian)) {
+      // an element that reserves its pattern but loads no values (a wave line): the integrators
+      // difference the reserved pattern
+      Object.defineProperty(this, 'jacobianSparse', { value: undefined });
+    }
   }
+
+  /** True when the jacobian is left to differences of the whole rhs (see Element.differenced). */
+  readonly differenced: boolean = false;
+  private densePattern: SparsePattern | null = null;
 
   get nEvents(): number { return this.events.length; }
 
@@ -155,9 +171,10 @@ export class NetworkSystem implements EventfulProblem {
     return this.branchElements().map((e) => e.current);
   }
 
-  private branchList: BranchElement[] | null = null;
+  private branchList: (BranchElement | WaveLineElement)[] | null = null;
+  /** In model branch order (a wave line has a flow but no BranchState: the equilibria refuse it). */
   private branchElements(): BranchElement[] {
-    return (this.branchList ??= this.elements.filter((e): e is BranchElement => e instanceof BranchElement));
+    return (this.branchList ??= this.elements.filter((e): e is BranchElement | WaveLineElement => e instanceof BranchElement || e instanceof WaveLineElement)) as BranchElement[];
   }
 
   initialState(): Float64Array {
@@ -229,6 +246,7 @@ export class NetworkSystem implements EventfulProblem {
 
   /** Where ∂f/∂y may be nonzero (see jacobian.ts); reserved on first use. */
   get jacobianPattern(): SparsePattern {
+    if (this.differenced) return (this.densePattern ??= denseEntries(this.n));
     this.jac ??= new NetworkJacobian(this);
     return this.jac.pattern;
   }
@@ -270,8 +288,11 @@ export class NetworkSystem implements EventfulProblem {
     return this.events[k].fire(t, rising, this.log, y);
   }
 
-  atBreakpoint(t: number, _y: Float64Array): void {
+  atBreakpoint(t: number, y: Float64Array): void {
+    // elements that act at a breakpoint (a sampled controller) read the state there
+    this.evaluate(t, y);
     for (const e of this.elements) e.atBreakpoint?.(t, this.log);
+    this.invalidate();
   }
 
   /** Events that hold at the start (a relief valve already above its set point). */
@@ -315,4 +336,12 @@ export class NetworkSystem implements EventfulProblem {
     for (const k of this.held) s += y[k];
     return s;
   }
+}
+
+/** Every entry of an n×n matrix, as a sparsity pattern. */
+function denseEntries(n: number): SparsePattern {
+  const ri = new Int32Array(n * n);
+  const ci = new Int32Array(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) { ri[i * n + j] = i; ci[i * n + j] = j; }
+  return patternFromEntries(n, ri, ci);
 }

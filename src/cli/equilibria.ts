@@ -24,6 +24,8 @@ export const MAX_GROUP_CHAMBERS = 2000;
 
 /** Refuses, as a usage error, a network whose largest joined group exceeds `limit` chambers. */
 export function refuseLargeGroup(model: Model, file: string, limit: number, command: string, cost: string): void {
+  const wave = model.branches.find((b) => b.line?.wave);
+  if (wave) throw new UsageError(`${file}: line ${wave.name} is a wave line, which ${command} does not analyse yet (its segment states have no rest-state treatment); make it \`model: lumped\` for the rest-state analysis: at rest a line carries no wave`);
   const largest = largestJoinedGroup(model);
   if (largest <= limit) return;
   throw new UsageError(`${file}: ${largest} chambers are joined in one group; ${cost}, and ${command} takes groups of up to ${limit} chambers; analyse a part of the network in a netlist of its own`);

@@ -1,6 +1,6 @@
 /** `plenum kinds`: element kinds and wall laws with their parameters, from the parameter tables. */
 import {
-  CHAMBER, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
+  CHAMBER, CONTROLLER, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, FEED, FRICTION, LINE, MOUNTING, PORT_START, RESERVOIR, SPRING, VALVE,
   VALVE_OPERATIONS, VALVE_RATINGS, WALL_LAWS, type KindTable, type ParamSpec,
 } from '../netlist/kinds.js';
 
@@ -16,6 +16,7 @@ const GROUPS: { title: string; tables: KindTable[]; label: (t: KindTable) => str
     tables: [CYLINDER, DEAD_VOLUME, SPRING, FRICTION, MOUNTING, CYLINDER_START, PORT_START],
     label: (t) => (t.kind === 'cylinder' ? 'cylinder' : t.kind === 'port-start' ? 'cylinder start: cap / rod' : `cylinder ${t.kind.replace('cylinder-', '')}`),
   },
+  { title: 'controllers', tables: [CONTROLLER], label: () => 'controller' },
   ...ELEMENT_TABLES.map((k) => ({ title: k.key, tables: [k], label: () => k.kind })),
 ];
 
@@ -24,7 +25,12 @@ function dim(p: ParamSpec): string {
     case 'absolute-pressure': return 'pressure (gauge or abs)';
     case 'gauge-pressure': return 'pressure (gauge or abs)';
     case 'enum': return (p.values ?? []).join(' | ');
-    case 'structure': return p.shape === 'points' || p.shape === 'schedule' ? 'list' : 'map';
+    case 'structure':
+      if (p.shape === 'gain') return 'gain (with units)';
+      if (p.shape === 'target') return 'value, table or expression';
+      if (p.shape === 'boolean') return 'true | false';
+      if (p.shape === 'opening') return 'opening';
+      return p.shape === 'points' || p.shape === 'schedule' || p.shape === 'feed-curve' ? 'list' : 'map';
     default: return p.dimension;
   }
 }

@@ -12,7 +12,7 @@
  */
 import type { BranchModel } from '../model/types.js';
 import type { Schedule } from '../model/schedule.js';
-import { BranchState, type BranchFlow, type BranchPartials } from './branch.js';
+import { BranchState, emptyBranchFlow, type BranchFlow, type BranchPartials } from './branch.js';
 import type { Assembly, Channel, Element, ElementEvent, ElementSummary, JacobianReserve, EventSink } from './contract.js';
 import type { Nodes } from './nodes.js';
 
@@ -28,6 +28,13 @@ import type { Nodes } from './nodes.js';
  * reopen the valve.
  */
 const CHECK_DEADBAND = 1e-7;
+
+/**
+ * Laminar lines neglect the gas's acceleration (physics/line-flow.ts); a run warns when the
+ * neglected term exceeds this fraction of the friction term (the flow is then high by about half
+ * of it).
+ */
+const ACCEL_WARN = 0.05;
 
 function pct(x: number): string {
   return `${Math.round(x * 1000) / 10} %`;
@@ -67,7 +74,7 @@ export class BranchElement extends BranchState implements Element {
   readonly kind: string;
   readonly name: string;
   /** The flow at the evaluated point. */
-  readonly current: BranchFlow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' };
+  readonly current: BranchFlow = emptyBranchFlow();
   private readonly nodes: Nodes;
   private readonly withT: boolean;
   private readonly bp: BranchPartials = { q: 0, dp1: 0, dp2: 0, dT1: 0, dT2: 0 };
@@ -122,6 +129,20 @@ export class BranchElement extends BranchState implements Element {
   events(): ElementEvent[] {
     const op = this.b.valve?.operation;
     const n = this.nodes, a = this.from, c = this.to, name = this.name, st = this, pa = this.asm.pa;
+    if (op?.kind === 'relief' && op.fullLiftAt !== undefined) {
+      // proportional lift: the flow is continuous in the pressure; the events only restart the
+      // integrator at the two kinks of the lift curve and log them
+      const kink = (at: number, up: string, down: string): ElementEvent => ({
+        kind: 'lift', element: name,
+        value: () => n.p[a] - pa - at,
+        direction: () => 0,
+        fire: (t, rising, log) => {
+          log.push({ t, what: `relief valve ${name} ${rising ? up : down}`, kind: 'lift', element: name });
+          return true;
+        },
+      });
+      return [kink(op.opensAbove, 'starts lifting', 'reseats'), kink(op.fullLiftAt, 'reaches full lift', 'leaves full lift')];
+    }
     if (op?.kind === 'relief') {
       return [{
         kind: 'relief', element: name,
@@ -142,6 +163,26 @@ export class BranchElement extends BranchState implements Element {
           }
         },
       }];
+    }
+    if (op?.kind === 'regulator' && !this.b.vent) {
+      // the kinks of the regulator's law: lock-up at the set pressure, full opening at set − band
+      const at = (limit: number) => (): number => n.p[c] - pa - limit;
+      return [
+        {
+          kind: 'regulator', element: name, value: at(op.set), direction: () => 0,
+          fire: (t, rising, log) => {
+            log.push({ t, what: `regulator ${name} ${rising ? 'locks up (downstream at its set pressure)' : 'opens'}`, kind: 'regulator', element: name });
+            return true;
+          },
+        },
+        {
+          kind: 'regulator', element: name, value: at(op.set - op.band), direction: () => 0,
+          fire: (t, rising, log) => {
+            log.push({ t, what: `regulator ${name} ${rising ? 'throttles' : 'is fully open (downstream below set − band)'}`, kind: 'regulator', element: name });
+            return true;
+          },
+        },
+      ];
     }
     if (op?.kind === 'check') {
       /** +1 after the valve last opened, −1 after it last closed (see CHECK_DEADBAND). */
@@ -177,7 +218,7 @@ export class BranchElement extends BranchState implements Element {
   openingNow(): number {
     const op = this.b.valve?.operation;
     if (op?.kind === 'check') return this.nodes.p[this.from] - op.cracking - this.nodes.p[this.to] > 0 ? 1 : 0;
-    return this.opening(this.t);
+    return this.opening(this.t, this.nodes.p[this.from], this.nodes.p[this.to]);
   }
 
   channels(): Channel[] {
@@ -203,16 +244,34 @@ export class BranchElement extends BranchState implements Element {
 
   summaries(): ElementSummary[] {
     const b = this.b, f = this.current;
-    const pk = { flow: 0, re: 0, choked: false };
-    const track = (): void => {
+    const pk = { flow: 0, re: 0, choked: false, lineChoked: false, mach: 0, accel: 0, tAccel: 0 };
+    const lineName = b.kind === 'line' ? b.name : b.hostLine;
+    // a line starting or stopping to choke, seen at samples and step ends (so within one step)
+    let chokedNow = false;
+    const seen: { t: number; what: string }[] = [];
+    const track = (t: number): void => {
       if (Math.abs(f.mdot) > Math.abs(pk.flow)) pk.flow = f.mdot;
       if (f.reynolds > pk.re) pk.re = f.reynolds;
       if (f.choked) pk.choked = true;
+      if (!lineName) return;
+      if (f.lineChoked) pk.lineChoked = true;
+      if (f.mach > pk.mach) pk.mach = f.mach;
+      if (f.regime === 'laminar' && f.accel > pk.accel) { pk.accel = f.accel; pk.tAccel = t; }
+      if (f.lineChoked !== chokedNow) {
+        chokedNow = f.lineChoked;
+        seen.push({ t, what: `line ${lineName} ${chokedNow ? 'starts' : 'stops'} choking` });
+      }
     };
     const out: ElementSummary[] = [];
-    const lineName = b.kind === 'line' ? b.name : b.hostLine;
     if (lineName) {
-      out.push({ section: 'lines', name: lineName, track, result: () => ({ peak_flow: pk.flow, peak_reynolds: pk.re, regime: regimeOf(pk.re) }) });
+      out.push({
+        section: 'lines', name: lineName, track,
+        result: () => ({ peak_flow: pk.flow, peak_reynolds: pk.re, regime: regimeOf(pk.re), choked: pk.lineChoked, peak_mach: pk.mach }),
+        warnings: () => (pk.accel > ACCEL_WARN
+          ? [`line ${lineName}: laminar flow, where the gas's acceleration is neglected (compressible Hagen–Poiseuille law); the neglected term reached ${(100 * pk.accel).toPrecision(2)} % of the friction term at t = ${+pk.tAccel.toPrecision(4)} s, so the flow there is high by about ${(50 * pk.accel).toPrecision(2)} %`]
+          : []),
+        seen: () => seen,
+      });
     }
     if (b.kind === 'valve') {
       // the opening's range and its value at the end; a relief or check valve's openings counted
@@ -228,7 +287,7 @@ export class BranchElement extends BranchState implements Element {
       const self = this.operation === 'check' || this.operation === 'relief';
       out.push({
         section: 'valves', name: b.name,
-        track: lineName ? trackOpening : () => { track(); trackOpening(); },
+        track: lineName ? trackOpening : (t: number) => { track(t); trackOpening(); },
         result: () => ({
           peak_flow: pk.flow, choked: pk.choked,
           opening: { final: op.last, min: Number.isFinite(op.min) ? op.min : op.last, max: Number.isFinite(op.max) ? op.max : op.last },

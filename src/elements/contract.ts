@@ -94,6 +94,12 @@ export interface ElementSummary {
   result(end: Float64Array): Record<string, unknown>;
   /** Warnings from what it tracked (a chamber near vacuum). */
   warnings?(): string[];
+  /**
+   * Changes it saw while tracking (a line starting or stopping to choke), as entries of the run's
+   * event list; the run merges them with the log in time order. Their times are those of the
+   * sample or step end at which the change was first seen.
+   */
+  seen?(): { t: number; what: string }[];
   /** Its row in the printed table, as (column, text) pairs (default: the result's fields flattened). */
   row?(result: Record<string, unknown>): [string, string][];
 }
@@ -151,4 +157,15 @@ export interface Element {
   /** Writes its channels' values at the evaluated point from out[k]; returns the next k. */
   observe?(y: Float64Array, out: Float64Array, k: number): number;
   summaries?(column: (key: string) => number): ElementSummary[];
+  /**
+   * True for an element that reserves its jacobian pattern but loads no values (a wave line):
+   * the system then takes the whole jacobian by coloured differences over the pattern.
+   */
+  readonly numericJacobian?: boolean;
+  /**
+   * True when it reserves no jacobian entries for its states and their couplings (a controller,
+   * a regulator's lag): the assembler then differences the whole right-hand side for the
+   * jacobian instead of assembling it (fine for the small networks such elements sit in).
+   */
+  readonly differenced?: boolean;
 }

@@ -45,7 +45,10 @@ import { restSetup } from './rest.js';
 import { makeParameter } from './trace-parameter.js';
 import { GroupProblem } from './trace-problem.js';
 import type { TraceBranch, TraceOptions, TraceOutcome } from './trace-types.js';
+import type { ValveState } from './types.js';
 import { Tracer } from './tracer.js';
+import { hasLoopStates } from './closed-loop.js';
+import { traceLoop } from './loop-trace.js';
 
 export type { TraceOptions, TraceResult, TraceBranch, TracePoint, TraceOutcome } from './trace-types.js';
 
@@ -76,6 +79,12 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   const maxStep = options.maxStep ?? 0.05;
   const maxPoints = options.maxPoints ?? 1000;
   const notes: string[] = [];
+  if (hasLoopStates(model)) {
+    // controllers and regulators: the rest state followed over the parameter, stability watched
+    const branches = traceLoop(param, valves, notes);
+    notes.push('controllers or regulators: the rest state followed by Newton at sampled values of the parameter, a change of stability located by bisection');
+    return traceResult(model, param, valves, branches, notes);
+  }
   const base = restSetup(model, valves);
   const baseMasses = Float64Array.from(model.chambers.map((c) => c.m0));
   const branches: TraceBranch[] = [];
@@ -115,6 +124,11 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   if (closedTraced && param.gasFollows && !param.massOf) notes.push('the parameter is a start value: the gas each closed group holds follows it');
   else if (closedTraced && !param.massOf) notes.push('each closed group keeps the gas it holds in the netlist as written');
   if (branches.length === 0) notes.push('no equilibrium found at any start value');
+  return traceResult(model, param, valves, branches, notes);
+}
+
+/** The result of a trace. */
+function traceResult(model: Model, param: { vary: string; from: number; to: number; unit: string }, valves: ValveState, branches: TraceBranch[], notes: string[]): TraceOutcome {
   return {
     ok: true,
     value: {

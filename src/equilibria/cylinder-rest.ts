@@ -58,6 +58,8 @@ function conducts(model: Model, k: number, valves: 'open' | 'closed' | 'end'): b
   if (!op) return true;
   if (op.kind === 'relief') return false;
   if (op.kind === 'check') return true;
+  // a regulator and a controlled valve pass gas as their law sets
+  if (op.kind === 'regulator' || op.kind === 'driven') return true;
   if (valves === 'open') return true;
   if (valves === 'closed') return false;
   const last = op.steps.length ? op.steps[op.steps.length - 1].open : op.initially;

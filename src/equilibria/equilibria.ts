@@ -57,6 +57,7 @@ import type { Model, NodeRef } from '../model/types.js';
 import type { RunResult } from '../transient/results.js';
 import { simulate } from '../transient/transient.js';
 import { groupEquilibria, groupMassesOf, oneWayChecks, worst } from './group.js';
+import { hasLoopStates, loopEquilibria } from './closed-loop.js';
 import { restSetup, type RestGroup, type RestSetup } from './rest.js';
 import type { StabilityVerdict } from './stability.js';
 import { DEFAULT_MAX_COMBINATIONS, DEFAULT_MAX_LISTED, REACHED, type ChamberRest, type EquilibriaOptions, type EquilibriaResult, type GroupEquilibrium, type GroupResult, type NetworkEquilibrium, type TransientMatch } from './types.js';
@@ -143,6 +144,33 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
     if (closing.length) notes.push(`${closing.map((b) => b.name).join(', ')} ${closing.length === 1 ? 'is' : 'are'} shut at rest but open during the run: each side is given the gas it holds at the start (use --gas end for the split the transient leaves)`);
     const fedAtStart = model.feeds.some((f) => f.initially > 0 || f.steps.length > 0);
     if (fedAtStart) notes.push('feeds add gas during the run; the equilibria use the gas held at the start (use --gas end to include what the feeds delivered)');
+  }
+
+  if (hasLoopStates(model)) {
+    // controllers and regulators couple the groups through their states: the whole state at once
+    const { group, rests } = loopEquilibria(model, valves, masses, run);
+    const equilibria = rests.map((r) => r.equilibrium);
+    let transient: TransientMatch | null = null;
+    if (run) {
+      const settled = (run.outcomes ?? []).every((o) => o.outcome === 'settled');
+      const end = Float64Array.from(model.chambers.map((c) => run!.chambers[c.name].final.mass));
+      const total = end.reduce((a, b) => a + b, 0) || 1;
+      const dist = equilibria.map((e) => Math.max(...model.chambers.map((c, i) => Math.abs(e.chambers[c.name].mass - end[i]) / total)));
+      const nearest = dist.length ? dist.indexOf(Math.min(...dist)) : null;
+      const distance = nearest !== null ? dist[nearest] : null;
+      const reached = settled && distance !== null && distance <= REACHED ? nearest : null;
+      const message = run.status === 'failed' ? `the transient did not complete: ${run.message}`
+        : reached !== null ? `the transient settles at equilibrium #${reached + 1}`
+          : !settled ? 'the transient has not settled by the end of the simulation' : 'the transient settles at a state not in the list';
+      transient = { status: run.status, end: run.end, outcomes: run.outcomes ?? [], reached, nearest, distance, message };
+    }
+    const failed = equilibria.some((e, k) => !group.equilibria[k].stability.ok);
+    return {
+      format: 1, title: model.doc.title, file: model.doc.file,
+      status: failed ? 'failed' : 'ok',
+      message: `${equilibria.length} equilibri${equilibria.length === 1 ? 'um' : 'a'}`,
+      valves, gas, heat: model.heat, ambient: model.pa, groups: [group], equilibria, count: equilibria.length, transient, notes,
+    };
   }
 
   // open groups first: their pressures are the known side of one-way valves next to closed groups

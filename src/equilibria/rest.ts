@@ -141,7 +141,8 @@ export function restSetup(model: Model, valves: ValveState): RestSetup {
     const op = b.valve?.operation;
     if (!op) return true;
     if (op.kind === 'schedule') return op.initially > 0;
-    return false;
+    // a regulator and a controlled valve pass gas at rest as their law sets (closed-loop.ts)
+    return op.kind === 'regulator' || op.kind === 'driven';
   };
   const feedActive = (k: number): boolean => feeds[k].initially * feeds[k].rate > 0;
   // A one-way valve passes gas at rest only in steady flow: between two open sides (a reservoir,

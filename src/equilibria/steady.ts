@@ -4,6 +4,7 @@
  */
 import { DenseLu } from '../linalg/dense-lu.js';
 import type { RestGroup, RestSetup } from './rest.js';
+import { emptyBranchFlow } from '../elements/branch.js';
 import type { NodeRef } from '../model/types.js';
 
 // ---- open groups: steady flow ------------------------------------------------------------
@@ -25,7 +26,7 @@ export function steadyPressures(setup: RestSetup, g: RestGroup): { p: Float64Arr
   const nc = setup.chambers.length;
   const pAll = new Float64Array(nc), TAll = Float64Array.from(setup.chambers, (c) => c.T);
   const inflow = new Float64Array(nc), inScale = new Float64Array(nc);
-  const flow = { mdot: 0, reynolds: 0, choked: false, regime: 'laminar' as const } as { mdot: number; reynolds: number; choked: boolean; regime: 'laminar' | 'transitional' | 'turbulent' | 'orifice' };
+  const flow = emptyBranchFlow();
   const scale = new Float64Array(n);
   const residual = (x: Float64Array, out: Float64Array): void => {
     out.fill(0);

@@ -57,7 +57,7 @@ export interface GroupResult {
   kind: 'closed' | 'open' | 'fed';
   /** Gas the group holds (closed groups), kg. */
   mass: number | null;
-  method: 'enumeration' | 'deflation' | 'steady-flow' | 'none';
+  method: 'enumeration' | 'deflation' | 'steady-flow' | 'closed-loop' | 'none';
   /** Branch combinations examined, or starts of the deflated search. */
   combinations: number;
   /** False when the method cannot promise that every equilibrium is listed. */

@@ -5,12 +5,13 @@
  * relation) are diagnostics with the chamber's position.
  */
 import type { Diagnostic, Result } from '../diag/diagnostic.js';
+import { defaultSegments, fastestValveRamp, soundSpeed } from './wave.js';
 import { anrDensity, makeGas, type Gas } from '../physics/gas.js';
 import { makeWall, pvMonotone, type WallLaw } from '../physics/wall.js';
 import type { ChamberSpec, NetlistDoc, SourcePos, WallSpec } from '../netlist/types.js';
 import { display } from '../units/display.js';
 import { MAX_GAS_PRESSURE } from '../units/pressure.js';
-import type { BranchModel, ChamberModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
+import type { BranchModel, ChamberModel, ControllerModel, ElementModel, FeedModel, Model, NodeRef, ReservoirModel } from './types.js';
 import { ELEMENT_TABLES } from '../netlist/kinds.js';
 import { solveVolume, vacuumVolume, type VolumeScratch } from './volume.js';
 import { buildCylinder, type CylinderModel } from './cylinder.js';
@@ -174,16 +175,30 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   const deadPort = doc.cylinders.map(() => ({ cap: 0, rod: 0 }));
   const hostedBy = new Map(doc.valves.filter((v) => v.inLine).map((v) => [v.inLine as string, v] as const));
   const branches: BranchModel[] = [];
+  const tRamp = fastestValveRamp(doc);
+  const c = soundSpeed(gas, Ta);
   for (const l of doc.lines) {
     const half = (Math.PI * l.diameter * l.diameter * l.length) / 8;
     const from = node(l.from);
     const to = node(l.to);
-    for (const end of [from, to]) {
-      if (end.kind === 'chamber') dead[end.index] += half;
-      if (end.kind === 'port') deadPort[end.index][end.side] += half;
-    }
-    const line = { diameter: l.diameter, length: l.length, roughness: l.roughness };
     const v = hostedBy.get(l.name);
+    const line: BranchModel['line'] = { diameter: l.diameter, length: l.length, roughness: l.roughness };
+    if (l.model === 'wave') {
+      // a wave line holds its own gas in its segments (model/wave.ts, elements/wave-line.ts)
+      line.wave = { segments: l.segments ?? defaultSegments(l.length, c, tRamp), given: l.segments !== undefined };
+      if (v) errs.push(diag(v.pos, 'unsupported', `valve ${v.name} sits in wave line ${l.name}: a valve inside a wave line is not supported`, 'put the valve between the line and a small chamber, or make the line `model: lumped`'));
+      if (from.kind === 'port' || to.kind === 'port') errs.push(diag(l.pos, 'unsupported', `wave line ${l.name} ends at a cylinder port: not supported yet`, 'put a small chamber between the line and the cylinder, or make the line `model: lumped`'));
+    } else {
+      for (const end of [from, to]) {
+        if (end.kind === 'chamber') dead[end.index] += half;
+        if (end.kind === 'port') deadPort[end.index][end.side] += half;
+      }
+      if (l.length / c > 0.1 * tRamp) {
+        warnings.push({ ...diag(l.pos, 'wave-travel', `line ${l.name}: a pressure wave needs ${+(1000 * l.length / c).toPrecision(3)} ms to travel it (L/c), more than a tenth of the fastest valve ramp (${+(1000 * tRamp).toPrecision(3)} ms); the lumped line passes pressure changes at once`, v
+          ? `to see the delay and the reflections, give the valve ${v.name} its own small chamber and make the line \`model: wave\` (a valve inside a wave line is not supported)`
+          : 'add `model: wave` to the line to see the delay and the reflections'), severity: 'warning' });
+      }
+    }
     branches.push(v
       ? { name: v.name, kind: 'valve', from, to, line, hostLine: l.name, valve: { rating: v.rating, operation: v.operation } }
       : { name: l.name, kind: 'line', from, to, line });
@@ -191,6 +206,14 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
   for (const v of doc.valves) {
     if (v.inLine) continue;
     branches.push({ name: v.name, kind: 'valve', from: node(v.from), to: node(v.to), valve: { rating: v.rating, operation: v.operation } });
+  }
+  // the vents of relieving regulators: their own branches, downstream node → ambient
+  const nb = branches.length;
+  for (let k = 0; k < nb; k++) {
+    const op = branches[k].valve?.operation;
+    if (op?.kind !== 'regulator' || !op.relieving) continue;
+    const b = branches[k];
+    branches.push({ name: `${b.name}.vent`, kind: 'valve', from: b.to, to: node(AMBIENT), valve: { rating: b.valve!.rating, operation: op }, vent: { of: k, set: op.set, band: op.band } });
   }
 
   // Kinds read from their table alone: name parameters become nodes (after the lines, so that
@@ -296,7 +319,24 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
     T: f.temperature ?? Ta,
     initially: f.initially,
     steps: f.steps,
+    ...(f.curve ? {
+      curve: {
+        p: Float64Array.from([...f.curve.pressure, ...(f.curve.shutOff > f.curve.pressure[f.curve.pressure.length - 1] ? [f.curve.shutOff] : [])]),
+        q: Float64Array.from([...f.curve.flow.map((x) => (x.kind === 'mass' ? x.value : x.value * rhoAnr)), ...(f.curve.shutOff > f.curve.pressure[f.curve.pressure.length - 1] ? [0] : [])]),
+      },
+    } : {}),
   }));
+
+  const branchIndex = new Map(branches.map((b, k) => [b.name, k] as const));
+  for (const b of branches) if (b.hostLine) branchIndex.set(b.hostLine, branchIndex.get(b.name) as number);
+  const controllers: ControllerModel[] = doc.controllers.map((c) => {
+    const m = c.measure;
+    const ci = chamberIndex.get(m.element);
+    const measure = ci !== undefined
+      ? { kind: 'chamber' as const, index: ci, quantity: m.quantity }
+      : { kind: 'branch' as const, index: branchIndex.get(m.element) as number, quantity: m.quantity };
+    return { name: c.name, spec: c, measure, valve: branchIndex.get(c.drives) as number };
+  });
 
   if (doc.heat === 'exchange') {
     for (const c of doc.chambers) {
@@ -308,7 +348,7 @@ export function buildModel(doc: NetlistDoc): Result<Model> {
 
   if (errs.length) return { ok: false, diagnostics: errs };
   const model: Model = {
-    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders,
+    doc, gas, pa, Ta, heat: doc.heat, chambers, reservoirs, branches, feeds, cylinders, controllers,
     ...(elements.length ? { elements } : {}),
     simulate: doc.simulate, expect: doc.expect,
   };

@@ -6,7 +6,7 @@ import type { Gas } from '../physics/gas.js';
 import type { WallLaw } from '../physics/wall.js';
 import type { CylinderModel } from './cylinder.js';
 import type {
-  ChamberSpec, ExpectSpec, NetlistDoc, ScheduleStep, SimulateSpec, TimeSeries, ValveOperation, ValveRating,
+  ChamberSpec, ControllerSpec, ExpectSpec, ProbeQuantity, NetlistDoc, ScheduleStep, SimulateSpec, TimeSeries, ValveOperation, ValveRating,
 } from '../netlist/types.js';
 
 export type HeatMode = NetlistDoc['heat'];
@@ -40,7 +40,13 @@ export interface ReservoirModel {
   T: number;
 }
 
-export interface LineGeometry { diameter: number; length: number; roughness: number }
+export interface LineGeometry {
+  diameter: number;
+  length: number;
+  roughness: number;
+  /** A wave line (elements/wave-line.ts): its segment count, and whether the netlist gave it. */
+  wave?: { segments: number; given: boolean };
+}
 
 export interface BranchModel {
   name: string;
@@ -52,6 +58,12 @@ export interface BranchModel {
   /** Name of the line hosting this valve (the line itself is then not a separate branch). */
   hostLine?: string;
   valve?: { rating: ValveRating; operation: ValveOperation };
+  /**
+   * The vent of a relieving regulator (named `<regulator>.vent`): from the regulator's
+   * downstream node to ambient, through the regulator's own rating, opening as
+   * physics/regulator.ts says. `of` is the regulator's branch index.
+   */
+  vent?: { of: number; set: number /* Pa gauge */; band: number /* Pa */ };
 }
 
 export interface FeedModel {
@@ -62,6 +74,21 @@ export interface FeedModel {
   T: number;             // K
   initially: number;
   steps: ScheduleStep[];
+  /** Delivery curve: pressures (Pa absolute, increasing, the last the shut-off) and flows (kg/s, the last 0). */
+  curve?: { p: Float64Array; q: Float64Array };
+}
+
+/** What a controller measures: a chamber's or a branch's quantity. */
+export type MeasureRef =
+  | { kind: 'chamber'; index: number; quantity: ProbeQuantity }
+  | { kind: 'branch'; index: number; quantity: ProbeQuantity };
+
+export interface ControllerModel {
+  name: string;
+  spec: ControllerSpec;
+  measure: MeasureRef;
+  /** Branch index of the driven valve. */
+  valve: number;
 }
 
 /**
@@ -88,6 +115,7 @@ export interface Model {
   branches: BranchModel[];
   feeds: FeedModel[];
   cylinders: CylinderModel[];
+  controllers: ControllerModel[];
   /** Elements of kinds read from their table alone (absent when there are none). */
   elements?: ElementModel[];
   simulate: SimulateSpec;

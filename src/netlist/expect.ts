@@ -14,7 +14,7 @@ import { parseFraction } from '../units/quantity.js';
 import type { Checker } from './checker.js';
 import { ELEMENT_TABLES, EXPECT, NEAR, PROBE_QUANTITIES, SETTLES, SIMULATE, SPHERE_LAWS, STATS } from './kinds.js';
 import type { Names } from './names.js';
-import type { ChamberSpec, Comparison, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
+import type { ChamberSpec, Comparison, ControllerSpec, ExpectSpec, Probe, ProbeQuantity, SimulateSpec } from './types.js';
 import type { YMap, YNode, YScalar } from './yaml-types.js';
 
 const PROBE_HINT = 'write `<element>.<quantity>`, e.g. `cell_a.gauge`, `supply.flow` or `total.mass`';
@@ -22,7 +22,8 @@ const COMPARISONS = ['below', 'above', 'near'] as const;
 /** Most output samples a run may record (a million rows; every row is kept in memory). */
 export const MAX_SAMPLES = 1_000_000;
 
-const QUANTITY_DIMENSION: Record<string, Dimension> = {
+/** Dimension of each quantity; a controller's `error` takes its measure's (see probeValueKind). */
+export const QUANTITY_DIMENSION: Record<string, Dimension> = {
   pressure: 'pressure',
   gauge: 'pressure',
   volume: 'volume',
@@ -73,13 +74,35 @@ export function readSimulate(ck: Checker, node: YNode | undefined, root: YMap): 
   return spec;
 }
 
-interface ExpectContext {
+export interface ExpectContext {
   names: Names;
   chambers: Map<string, ChamberSpec>;
+  /** Controllers read so far (their `error` probe has the dimension of what they measure). */
+  controllers?: Map<string, ControllerSpec>;
   duration?: number;
 }
 
-function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefined {
+/**
+ * How a value compared with a probe is read: an absolute pressure (`pressure`, `gauge`), a
+ * pressure difference (a controller's error on a pressure), a fraction (a controller's output),
+ * or a quantity of a dimension.
+ */
+export type ProbeValueKind = 'absolute-pressure' | 'pressure-difference' | 'fraction' | Dimension;
+
+export function probeValueKind(probe: Probe, controllers?: Map<string, ControllerSpec>): ProbeValueKind {
+  if (probe.quantity === 'output') return 'fraction';
+  if (probe.quantity === 'error') {
+    const m = controllers?.get(probe.element)?.measure;
+    if (!m || m.quantity === 'output' || m.quantity === 'error') return 'dimensionless';
+    const d = probeDimension(m.quantity);
+    return d === 'pressure' ? 'pressure-difference' : d === 'temperature' ? 'temperature-difference' : d;
+  }
+  const d = probeDimension(probe.quantity);
+  return d === 'pressure' ? 'absolute-pressure' : d;
+}
+
+/** Reads `<element>.<quantity>`; `forControl` refuses controller probes (a controller measures the network). */
+export function readProbe(ck: Checker, node: YNode, cx: ExpectContext, forControl = false): Probe | undefined {
   const text = ck.text(node, '`probe`', PROBE_HINT);
   if (text === undefined) return undefined;
   // the element may be a cylinder's side: `clamp.cap.gauge`
@@ -97,10 +120,13 @@ function readProbe(ck: Checker, node: YNode, cx: ExpectContext): Probe | undefin
     }
   } else {
     const entry = cx.names.get(element);
-    if (!entry || !(entry.kind in PROBE_QUANTITIES)) {
-      const candidates = [...cx.names.values()].filter((n) => n.kind in PROBE_QUANTITIES).map((n) => n.name);
-      const why = entry ? `\`${element}\` is a ${entry.kind}, which has no probes` : `the probe names \`${element}\`, which is not defined`;
-      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? 'probe a chamber, a line, a valve, a cylinder (or its side `<cylinder>.cap`), or `total.mass`');
+    const probed = (k: string): boolean => (forControl ? k === 'chamber' || k === 'line' || k === 'valve' : k in PROBE_QUANTITIES);
+    if (!entry || !probed(entry.kind)) {
+      const candidates = [...cx.names.values()].filter((n) => probed(n.kind)).map((n) => n.name);
+      const why = entry
+        ? `\`${element}\` is a ${entry.kind}, which has no probes${forControl && entry.kind === 'controller' ? ' a controller can measure' : ''}`
+        : `the probe names \`${element}\`, which is not defined`;
+      ck.error(node, 'unknown-reference', why, (entry ? undefined : didYouMean(element, [...candidates, 'total'])) ?? (forControl ? 'measure a chamber, a line or a valve' : 'probe a chamber, a line, a valve, a cylinder (or its side `<cylinder>.cap`), a controller, or `total.mass`'));
       return undefined;
     }
     kind = entry.kind;
@@ -130,27 +156,29 @@ function readTime(ck: Checker, node: YNode, what: string, duration?: number): nu
 }
 
 /** A comparison value in the probe's dimension (pressures say gauge or abs → Pa absolute). */
-function readProbeValue(ck: Checker, node: YNode, q: ProbeQuantity, what: string): number | undefined {
-  const dim = probeDimension(q);
-  if (dim === 'pressure') return ck.absolutePressure(node, what);
-  return ck.quantity(node, dim, what);
+export function readProbeValue(ck: Checker, node: YNode, kind: ProbeValueKind, what: string): number | undefined {
+  if (kind === 'absolute-pressure') return ck.absolutePressure(node, what);
+  if (kind === 'pressure-difference') return ck.pressureDifference(node, what);
+  if (kind === 'fraction') return ck.fraction(node, what);
+  return ck.quantity(node, kind, what);
 }
 
-function readWithin(ck: Checker, node: YNode, q: ProbeQuantity): { abs: number } | { rel: number } | undefined {
-  if (node.kind === 'scalar' && typeof node.value === 'string' && node.value.trim().endsWith('%')) {
+function readWithin(ck: Checker, node: YNode, kind: ProbeValueKind): { abs: number } | { rel: number } | undefined {
+  if (kind !== 'fraction' && node.kind === 'scalar' && typeof node.value === 'string' && node.value.trim().endsWith('%')) {
     const r = ck.checked(node, parseFraction(node.value), '`within`', { gt: 0 });
     return r === undefined ? undefined : { rel: r };
   }
-  const dim = probeDimension(q);
   const bounds = { gt: 0 };
   const abs =
-    dim === 'pressure'
+    kind === 'absolute-pressure' || kind === 'pressure-difference'
       ? ck.pressureDifference(node, '`within`', bounds)
-      : ck.quantity(node, dim === 'temperature' ? 'temperature-difference' : dim, '`within`', bounds);
+      : kind === 'fraction'
+        ? ck.fraction(node, '`within`', bounds)
+        : ck.quantity(node, kind === 'temperature' ? 'temperature-difference' : kind, '`within`', bounds);
   return abs === undefined ? undefined : { abs };
 }
 
-function readComparison(ck: Checker, map: YMap, q: ProbeQuantity, what: string): Comparison | undefined {
+function readComparison(ck: Checker, map: YMap, q: ProbeValueKind, what: string): Comparison | undefined {
   const given = COMPARISONS.filter((k) => ck.get(map, k) !== undefined);
   if (given.length !== 1) {
     const where = given.length ? ck.keyWhere(map, given[1]) : ck.missingAt(map, 'below');
@@ -201,7 +229,7 @@ function readWhen(ck: Checker, map: YMap, cx: ExpectContext, what: string): Extr
     return undefined;
   }
   if (t0 === undefined || t1 === undefined || s === undefined) return undefined;
-  return { over: [t0, t1], stat: s as 'max' | 'min' | 'mean' };
+  return { over: [t0, t1], stat: s as 'max' | 'min' | 'mean' | 'overshoot' };
 }
 
 function scalarText(node: YNode | undefined): string {
@@ -220,7 +248,7 @@ function defaultName(map: YMap): string {
 }
 
 function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): ExpectSpec | undefined {
-  const extra = map.entries.find((e) => e.key !== 'name' && e.key !== 'settles');
+  const extra = map.entries.find((e) => e.key !== 'name' && e.key !== 'settles' && e.key !== 'probe');
   if (extra) {
     ck.error({ pos: extra.keyPos, path: [...map.path, extra.key] }, 'conflicting-keys', `\`settles\` stands alone; \`${extra.key}\` does not go with it`, 'put probe checks in their own list item');
     return undefined;
@@ -234,10 +262,14 @@ function readSettles(ck: Checker, map: YMap, name: string, cx: ExpectContext): E
     ck.error(ck.get(s, 'within') ?? s, 'out-of-range', `\`within\` (${within} s) is after the end of the simulation (${cx.duration} s)`, 'choose a time within `simulate.duration`');
     return undefined;
   }
-  if (within === undefined || v.band === undefined) return undefined;
+  const probeNode = ck.get(map, 'probe');
+  const probe = probeNode ? readProbe(ck, probeNode, cx) : undefined;
+  if (within === undefined || v.band === undefined || (probeNode && !probe)) return undefined;
   if (ck.get(s, 'relative-to') && v['relative-to'] === undefined) return undefined;
   const relativeTo = (v['relative-to'] ?? 'excursion') as 'excursion' | 'final-value';
-  return { kind: 'settles', name, within, band: v.band as number, relativeTo, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  const spec: ExpectSpec = { kind: 'settles', name, within, band: v.band as number, relativeTo, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
+  if (probe) spec.probe = probe;
+  return spec;
 }
 
 /** The quantity a probe's text names (`x.gauge` → gauge), whatever its element; or undefined. */
@@ -266,8 +298,10 @@ function readOne(ck: Checker, item: YNode, cx: ExpectContext): ExpectSpec | unde
   const when = readWhen(ck, map, cx, what);
   // a probe that cannot be resolved (a misspelt element) still names its quantity: the values
   // are checked in that dimension too, so that every problem shows in one pass
+  const overshoot = when !== undefined && 'over' in when && when.stat === 'overshoot';
   const quantity = probe?.quantity ?? probeQuantity(probeNode);
-  const compare = quantity ? readComparison(ck, map, quantity, what) : undefined;
+  const valueKind = overshoot ? 'fraction' : probe ? probeValueKind(probe, cx.controllers) : quantity ? probeValueKind({ element: '', quantity, text: '' }, cx.controllers) : undefined;
+  const compare = valueKind ? readComparison(ck, map, valueKind, what) : undefined;
   if (!probe || !when || !compare) return undefined;
   return { kind: 'probe', name, probe, when, compare, pos: ck.sourcePos({ pos: map.pos, path: map.path }) };
 }

@@ -67,6 +67,7 @@ export type Section =
   | 'schedule-step'
   | 'feed'
   | 'cylinder'
+  | 'controller'
   | 'element'
   | 'simulate'
   | 'expect';
@@ -90,11 +91,14 @@ function opt(name: string, dimension: ParamDimension, doc: string, extra: Partia
 
 export const GAS_NAMES = ['air', 'nitrogen', 'helium', 'carbon-dioxide'] as const;
 export const HEAT_MODES = ['isothermal', 'adiabatic', 'exchange'] as const;
+export const LINE_MODELS = ['lumped', 'wave'] as const;
 export const METHODS = ['auto', 'explicit', 'implicit'] as const;
-export const STATS = ['max', 'min', 'mean'] as const;
+export const STATS = ['max', 'min', 'mean', 'overshoot'] as const;
 /** What a `settles` band is a fraction of. */
 export const SETTLE_REFERENCES = ['excursion', 'final-value'] as const;
 export const SPHERE_LAWS = ['neo-hookean', 'mooney-rivlin', 'gent'] as const;
+export const CONTROLLER_KINDS = ['pid'] as const;
+export const ANTI_WINDUP = ['clamping', 'back-calculation'] as const;
 
 // ---- walls ---------------------------------------------------------------------------------
 
@@ -219,6 +223,8 @@ export const LINE: KindTable = {
       default: 0,
       bounds: NON_NEGATIVE,
     }),
+    opt('model', 'enum', 'lumped: one resistance, the line volume split between its ends; wave: segments of gas mass, momentum and energy, so pressure waves travel at the speed of sound', { values: LINE_MODELS, default: 'lumped' }),
+    opt('segments', 'integer', 'segments of a wave line (default from its length and the fastest valve ramp: docs/wave-lines.md)', { bounds: { ge: 1, le: 2000 } }),
   ],
 };
 
@@ -274,10 +280,30 @@ export const VALVE_OPERATIONS: KindTable[] = [
   {
     kind: 'relief',
     section: 'valve-operation',
-    doc: 'relief valve: opens when the upstream gauge pressure rises above opens-above, recloses below reseats-below',
-    params: [p('relief', 'structure', '{ opens-above, reseats-below } (gauge or abs)', { shape: 'relief' })],
+    doc: 'relief valve: pop action (opens above opens-above, recloses below reseats-below) or proportional lift (opens in proportion from opens-above to full-lift-at, recloses on the same curve); discharges from → to only',
+    params: [p('relief', 'structure', '{ opens-above, reseats-below } (pop action) or { opens-above, full-lift-at } (proportional lift), gauge or abs', { shape: 'relief' })],
+  },
+  {
+    kind: 'regulator',
+    section: 'valve-operation',
+    doc: 'pressure-reducing valve: opening follows the downstream gauge pressure, fully open at set − band, shut at set (proportional, with droop)',
+    params: [
+      p('regulates', 'structure', '{ set, band }: set pressure (gauge or abs) and proportional band (a pressure difference)', { shape: 'regulates' }),
+      opt('relieving', 'structure', '`true`: above the set pressure it vents downstream gas to ambient through its own rating', { shape: 'boolean', default: 'false' }),
+      opt('time-constant', 'time', 'first-order lag of the opening behind the downstream pressure (0: none)', { default: 0, bounds: NON_NEGATIVE }),
+    ],
   },
 ];
+
+export const REGULATES: KindTable = {
+  kind: 'regulates',
+  section: 'valve-operation',
+  doc: 'regulator settings (downstream gauge pressure)',
+  params: [
+    p('set', 'gauge-pressure', 'downstream pressure at which it shuts (lock-up)'),
+    p('band', 'pressure-difference', 'proportional band: fully open at set − band', { bounds: { gt: 0 } }),
+  ],
+};
 
 export const CHECK: KindTable = {
   kind: 'check-settings',
@@ -291,8 +317,9 @@ export const RELIEF: KindTable = {
   section: 'valve-operation',
   doc: 'relief valve settings (upstream gauge pressure)',
   params: [
-    p('opens-above', 'gauge-pressure', 'opens when the upstream pressure rises above this'),
-    p('reseats-below', 'gauge-pressure', 'closes again when the upstream pressure falls below this (< opens-above)'),
+    p('opens-above', 'gauge-pressure', 'set pressure: opens when the upstream pressure rises above this'),
+    opt('reseats-below', 'gauge-pressure', 'pop action: closes again when the upstream pressure falls below this (< opens-above)'),
+    opt('full-lift-at', 'gauge-pressure', 'proportional lift: fully open at this upstream pressure (> opens-above; about 10 % above the set pressure is common practice)'),
   ],
 };
 
@@ -313,10 +340,45 @@ export const FEED: KindTable = {
   doc: 'a mass source into a chamber',
   params: [
     p('into', 'name', 'the chamber fed'),
-    p('rate', 'structure', 'mass flow (`0.5 g/s`) or standard volume flow at ISO 8778 (`10 L/min ANR`)', { shape: 'rate' }),
+    opt('rate', 'structure', 'mass flow (`0.5 g/s`) or standard volume flow at ISO 8778 (`10 L/min ANR`); required unless `curve` is given', { shape: 'rate' }),
+    opt('curve', 'structure', 'delivered flow against the fed chamber’s pressure: [[pressure, flow], ...] (a compressor or pump); pressures gauge or abs, increasing; flows as `rate`', { shape: 'feed-curve' }),
+    opt('shut-off', 'absolute-pressure', 'pressure at which delivery has stopped (dead-head): the curve falls linearly from its last point to zero here; needs `curve`'),
     opt('temperature', 'temperature', 'temperature of the entering gas (default ambient)', { bounds: POSITIVE }),
     opt('initially', 'structure', 'initial fraction of the rate (default 100%)', { shape: 'opening', default: '100%' }),
     opt('schedule', 'structure', 'list of { at, open, over } scaling the rate', { shape: 'schedule' }),
+  ],
+};
+
+// ---- control ------------------------------------------------------------------------------
+
+export const CONTROLLER: KindTable = {
+  kind: 'controller',
+  section: 'controller',
+  doc: 'a PI/PID controller: measures a probe, drives a valve’s opening (u = kp·e + ∫ki·e dt + D, e = target − measure)',
+  params: [
+    p('kind', 'enum', 'control law', { values: CONTROLLER_KINDS }),
+    p('measure', 'text', 'the probe it measures, `<element>.<quantity>` (e.g. `cell.gauge`)'),
+    p('target', 'structure', 'set point in the probe’s dimension: a constant, a time table [[t, value], ...] or an expression in t (pressures say gauge or abs)', { shape: 'target' }),
+    p('drives', 'name', 'the valve whose opening it sets (that valve has no schedule, check, relief or regulator of its own)'),
+    p('kp', 'structure', 'proportional gain: opening per unit of the measure, e.g. `2 %/kPa` (a bare number is SI: 1/Pa for a pressure)', { shape: 'gain' }),
+    opt('ki', 'structure', 'integral gain: opening per unit of the measure and second, e.g. `5 %/(kPa*s)`', { shape: 'gain', default: 0 }),
+    opt('kd', 'structure', 'derivative gain (on the measure, filtered): opening·s per unit of the measure, e.g. `0.1 %*s/kPa`', { shape: 'gain', default: 0 }),
+    opt('derivative-filter', 'time', 'time constant of the derivative filter (default kd/(10·kp), or 1 ms without kp)', { bounds: POSITIVE }),
+    opt('limits', 'structure', '{ min, max }: output (opening) limits, default 0 % and 100 %', { shape: 'output-limits' }),
+    opt('anti-windup', 'enum', 'clamping (integration stops once the output saturates with the error driving it further, until the error turns) or back-calculation', { values: ANTI_WINDUP, default: 'clamping' }),
+    opt('tracking-time', 'time', 'back-calculation tracking time Tt (default √(Ti·Td), or Ti = kp/ki without kd)', { bounds: POSITIVE }),
+    opt('sample', 'time', 'sample period of a discrete controller (output held between samples); absent: continuous', { bounds: POSITIVE }),
+    opt('initially', 'structure', 'integral part at t = 0: the output at zero error, as if it had held the plant before the run (default the lower limit); an error at t = 0 acts through kp at once', { shape: 'opening' }),
+  ],
+};
+
+export const OUTPUT_LIMITS: KindTable = {
+  kind: 'output-limits',
+  section: 'controller',
+  doc: 'controller output limits',
+  params: [
+    opt('min', 'fraction', 'lowest opening', { default: '0%' }),
+    opt('max', 'fraction', 'highest opening', { default: '100%' }),
   ],
 };
 
@@ -494,11 +556,11 @@ export const EXPECT: KindTable = {
     opt('probe', 'text', '<element>.<quantity> or total.mass'),
     opt('at', 'structure', 'a time or `end`', { shape: 'at' }),
     opt('over', 'structure', '[t0, t1], with stat', { shape: 'over' }),
-    opt('stat', 'enum', 'statistic over the interval', { values: STATS }),
+    opt('stat', 'enum', 'statistic over the interval; `overshoot`: how far the probe passes its final value, as a fraction of its step over the interval (compare with e.g. `below: 10%`)', { values: STATS }),
     opt('below', 'structure', 'passes when the value is below this (in the probe’s dimension)', { shape: 'probe-value' }),
     opt('above', 'structure', 'passes when the value is above this', { shape: 'probe-value' }),
     opt('near', 'structure', '{ value, within: <abs or %> }', { shape: 'near' }),
-    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber stays within band (of its excursion) of its final value after `within`', { shape: 'settles' }),
+    opt('settles', 'structure', '{ within: <time>, band: <%> }: every chamber (or, with `probe`, that probe) stays within band (of its excursion) of its final value after `within`', { shape: 'settles' }),
   ],
 };
 
@@ -540,6 +602,7 @@ export const TOP: KindTable = {
     opt('valves', 'structure', 'valves by name', { shape: 'valves' }),
     opt('feeds', 'structure', 'feeds by name', { shape: 'feeds' }),
     opt('cylinders', 'structure', 'cylinders by name', { shape: 'cylinders' }),
+    opt('controllers', 'structure', 'controllers by name', { shape: 'controllers' }),
     ...ELEMENT_TABLES.map((k) => opt(k.key, 'structure', `${k.kind}s by name`, { shape: k.key })),
     p('simulate', 'structure', 'duration and solver settings', { shape: 'simulate' }),
     opt('expect', 'structure', 'checks for CI', { shape: 'expect' }),
@@ -549,7 +612,7 @@ export const TOP: KindTable = {
 /** Every table, for `plenum kinds` and the README. */
 export const ALL_TABLES: KindTable[] = [
   TOP, AMBIENT, CUSTOM_GAS, VISCOSITY, CHAMBER, ...WALL_LAWS, START, LIMITS, RESERVOIR, LINE, VALVE,
-  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, SCHEDULE_STEP, FEED, CYLINDER, DEAD_VOLUME, SPRING, FRICTION,
+  ...VALVE_RATINGS, ...VALVE_OPERATIONS, CHECK, RELIEF, REGULATES, SCHEDULE_STEP, FEED, CONTROLLER, OUTPUT_LIMITS, CYLINDER, DEAD_VOLUME, SPRING, FRICTION,
   MOUNTING, CYLINDER_START, PORT_START, ...ELEMENT_TABLES, SIMULATE, EXPECT, NEAR, SETTLES,
 ];
 
@@ -565,6 +628,7 @@ export const PROBE_QUANTITIES: Readonly<Record<string, readonly string[]>> = {
   valve: ['flow', 'reynolds'],
   cylinder: ['position', 'velocity', 'stroke-time', 'impact-velocity', 'dissipated'],
   port: ['pressure', 'gauge', 'volume', 'mass', 'temperature'],
+  controller: ['output', 'error'],
   total: ['mass'],
   ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, Object.keys(k.probes)])),
 };

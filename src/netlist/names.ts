@@ -9,7 +9,7 @@ import { ELEMENT_TABLES } from './kinds.js';
 import type { YMap, YNode } from './yaml-types.js';
 
 /** Built-in kinds, and kinds read from their table alone (kinds.ts: ELEMENT_TABLES). */
-export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'cylinder' | (string & {});
+export type ElementKind = 'chamber' | 'reservoir' | 'line' | 'valve' | 'feed' | 'cylinder' | 'controller' | (string & {});
 /** What a name can stand for: an element, or one side of a cylinder (`clamp.cap`, `clamp.rod`). */
 export type NameKind = ElementKind | 'port';
 export const SECTIONS: Readonly<Record<string, string>> = {
@@ -19,6 +19,7 @@ export const SECTIONS: Readonly<Record<string, string>> = {
   valve: 'valves',
   feed: 'feeds',
   cylinder: 'cylinders',
+  controller: 'controllers',
   ...Object.fromEntries(ELEMENT_TABLES.map((k) => [k.kind, k.key])),
 };
 export const AMBIENT = 'ambient';
@@ -26,7 +27,7 @@ export const AMBIENT = 'ambient';
 export const PORT_NAME = /^([A-Za-z][A-Za-z0-9_]*)\.(cap|rod)$/;
 
 const NOUN: Record<NameKind, string> = {
-  chamber: 'chamber', reservoir: 'reservoir', line: 'line', valve: 'valve', feed: 'feed', cylinder: 'cylinder', port: 'cylinder side',
+  chamber: 'chamber', reservoir: 'reservoir', line: 'line', valve: 'valve', feed: 'feed', cylinder: 'cylinder', port: 'cylinder side', controller: 'controller',
 };
 
 export interface NameEntry {

@@ -13,13 +13,14 @@ import { readFeed, readLine, readValve } from './branches.js';
 import { readChamber } from './chambers.js';
 import { readCylinder } from './cylinders.js';
 import { Checker } from './checker.js';
+import { drivenValves, readController } from './controllers.js';
 import { readExpect, readSimulate } from './expect.js';
 import { namedGas } from './gases.js';
 import { AMBIENT, CUSTOM_GAS, ELEMENT_TABLES, GAS_NAMES, HEAT_MODES, RESERVOIR, TOP, VISCOSITY } from './kinds.js';
 import { readElement } from './elements.js';
 import { collectNames, registerPorts, SECTIONS, type ElementKind, type NameEntry, type Names } from './names.js';
 import { readPressureSeries } from './time-series.js';
-import type { ChamberSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
+import type { ChamberSpec, ControllerSpec, GasSpec, LineSpec, NetlistDoc, ReservoirSpec } from './types.js';
 import { parseYamlTree } from './yaml-tree.js';
 import type { YamlTree, YMap, YNode } from './yaml-types.js';
 
@@ -193,14 +194,19 @@ function readChecked(tree: YamlTree, source: string, file: string): Result<Netli
   const lines = defined(sections.line.map((e) => readLine(ck, e, names)));
   const lineMap = new Map<string, LineSpec>(lines.map((l) => [l.name, l]));
   const taken = new Map<string, string>();
-  const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken)));
+  const driven = drivenValves(ck, root);
+  const valves = defined(sections.valve.map((e) => readValve(ck, e, names, lineMap, taken, driven.get(e.name))));
   const feeds = defined(sections.feed.map((e) => readFeed(ck, e, names)));
+  const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
+  const carriesDriven = new Set<string>();
+  for (const v of valves) if (driven.has(v.name)) { carriesDriven.add(v.name); if (v.inLine) carriesDriven.add(v.inLine); }
+  const controllers = defined(sections.controller.map((e) => readController(ck, e, names, driven, { names, chambers: chamberMap, duration: simulate?.duration }, carriesDriven)));
   const cylinders = defined(sections.cylinder.map((e) => readCylinder(ck, e, heat as NetlistDoc['heat'])));
   const elements = defined(ELEMENT_TABLES.flatMap((k) => sections[k.kind].map((e) => readElement(ck, e, k, names))));
   checkConnected(ck, root, sections);
   // every element either reads or says why not: none may vanish without a diagnostic
   if (!ck.hasErrors) {
-    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, cylinder: cylinders };
+    const read: Record<ElementKind, { name: string }[]> = { chamber: chambers, reservoir: reservoirs, line: lines, valve: valves, feed: feeds, cylinder: cylinders, controller: controllers };
     for (const k of ELEMENT_TABLES) read[k.kind] = elements.filter((e) => e.kind === k.kind);
     for (const kind of Object.keys(SECTIONS)) {
       const got = new Set(read[kind].map((x) => x.name)); // a set: ten thousand chambers are read
@@ -210,9 +216,9 @@ function readChecked(tree: YamlTree, source: string, file: string): Result<Netli
     }
   }
 
-  const chamberMap = new Map<string, ChamberSpec>(chambers.map((c) => [c.name, c]));
+  const controllerMap = new Map<string, ControllerSpec>(controllers.map((c) => [c.name, c]));
   const expectNode = ck.get(root, 'expect');
-  const expect = expectNode ? readExpect(ck, expectNode, { names, chambers: chamberMap, duration: simulate?.duration }) : [];
+  const expect = expectNode ? readExpect(ck, expectNode, { names, chambers: chamberMap, controllers: controllerMap, duration: simulate?.duration }) : [];
 
   const diagnostics = ck.diagnostics.slice().sort(byPosition);
   if (ck.hasErrors || !simulate) return { ok: false, diagnostics };
@@ -231,6 +237,7 @@ function readChecked(tree: YamlTree, source: string, file: string): Result<Netli
     valves,
     feeds,
     cylinders,
+    controllers,
     ...(elements.length ? { elements } : {}),
     simulate,
     expect,

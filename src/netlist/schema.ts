@@ -6,8 +6,8 @@
  */
 import { DIMENSIONS, type Dimension } from '../units/dimensions.js';
 import {
-  AMBIENT, CHAMBER, CHECK, CUSTOM_GAS, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, EXPECT, FEED, FRICTION, GAS_NAMES, LIMITS,
-  LINE, MOUNTING, NEAR, PORT_START, RELIEF, RESERVOIR, SCHEDULE_STEP, SETTLES, SIMULATE, SPRING, START, TOP, VALVE,
+  AMBIENT, CHAMBER, CHECK, CONTROLLER, CUSTOM_GAS, CYLINDER, CYLINDER_START, DEAD_VOLUME, ELEMENT_TABLES, EXPECT, FEED, FRICTION, GAS_NAMES, LIMITS,
+  LINE, MOUNTING, NEAR, OUTPUT_LIMITS, PORT_START, REGULATES, RELIEF, RESERVOIR, SCHEDULE_STEP, SETTLES, SIMULATE, SPRING, START, TOP, VALVE,
   VALVE_OPERATIONS, VALVE_RATINGS, VISCOSITY, WALL_LAWS,
   type Bounds, type KindTable, type ParamSpec,
 } from './kinds.js';
@@ -99,6 +99,21 @@ function shapes(): Record<string, () => Schema> {
     schedule: () => ({ type: 'array', description: 'Steps in time order: from `at`, ramp to `open` over `over`.', items: objectOf(SCHEDULE_STEP) }),
     check: () => objectOf(CHECK),
     relief: () => objectOf(RELIEF),
+    regulates: () => objectOf(REGULATES),
+    boolean: () => ({ type: 'boolean' }),
+    'feed-curve': () => ({
+      type: 'array',
+      description: 'Rows [pressure (gauge or abs), flow (mass flow or `L/min ANR`)], pressures increasing.',
+      minItems: 1,
+      items: pair(qualifiedPressure('Pressure of the fed chamber'), { anyOf: [{ type: 'number', minimum: 0 }, { type: 'string', pattern: WITH_UNIT }] }, '[pressure, flow]'),
+    }),
+    target: () => ({
+      description: 'Set point in the measured quantity: a constant (pressures say gauge or abs), a time table [[t, value], ...], or an expression in t.',
+      anyOf: [{ type: 'number' }, { type: 'string' }, { type: 'array', items: pair(timeValue, { anyOf: [{ type: 'number' }, { type: 'string' }] }, '[time, value]') }, { type: 'object' }],
+    }),
+    gain: () => ({ description: 'A gain with units, e.g. `2 %/kPa`, `5 %/(kPa*s)`; a bare number is SI.', anyOf: [{ type: 'number' }, { type: 'string', pattern: NUMBER_TEXT }] }),
+    'output-limits': () => objectOf(OUTPUT_LIMITS),
+    controllers: () => namedMap(objectOf(CONTROLLER), 'Controllers by name.'),
     rate: () => ({
       description: 'A mass flow (`0.5 g/s`; bare number kg/s) or a standard volume flow at ISO 8778 (`10 L/min ANR`).',
       anyOf: [{ type: 'number', exclusiveMinimum: 0 }, { type: 'string', pattern: WITH_UNIT }],

@@ -70,6 +70,10 @@ export interface LineSpec {
   diameter: number;   // m
   length: number;     // m
   roughness: number;  // m
+  /** `lumped` (one resistance) or `wave` (segments; elements/wave-line.ts). */
+  model: 'lumped' | 'wave';
+  /** Segments of a wave line when given (else the default of model/wave.ts). */
+  segments?: number;
   pos: SourcePos;
 }
 
@@ -83,7 +87,20 @@ export interface ScheduleStep { at: number; open: number; over: number }
 export type ValveOperation =
   | { kind: 'schedule'; initially: number /* 0..1 */; steps: ScheduleStep[] }
   | { kind: 'check'; cracking: number /* Pa */ }
-  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */ };
+  /**
+   * Pop action (`fullLiftAt` absent): discrete, opens above `opensAbove`, reseats below
+   * `reseatsBelow`. Proportional lift: opening (p_gauge − opensAbove)/(fullLiftAt − opensAbove)
+   * clamped to 0..1, the same curve both ways; `reseatsBelow` then equals `opensAbove`.
+   */
+  | { kind: 'relief'; opensAbove: number /* Pa gauge */; reseatsBelow: number /* Pa gauge */; fullLiftAt?: number /* Pa gauge */ }
+  /**
+   * Pressure-reducing valve: opening = clamp((set − p_to,gauge)/band, 0, 1); with `relieving`,
+   * a vent from `to` to ambient at opening clamp((p_to,gauge − set)/band, 0, 1); the opening
+   * lags the law by `timeConstant` (s, 0 = none).
+   */
+  | { kind: 'regulator'; set: number /* Pa gauge */; band: number /* Pa */; relieving: boolean; timeConstant: number }
+  /** Opening set by a controller (controllers.<controller>). */
+  | { kind: 'driven'; controller: string };
 
 export interface ValveSpec {
   name: string;
@@ -96,10 +113,22 @@ export interface ValveSpec {
   pos: SourcePos;
 }
 
+export type FlowValue = { kind: 'mass'; value: number /* kg/s */ } | { kind: 'anr'; value: number /* m³/s at ISO 8778 */ };
+
+/** Delivered flow against the fed chamber's pressure (Pa absolute, strictly increasing). */
+export interface FeedCurve {
+  pressure: number[];
+  flow: FlowValue[];
+  /** Pa absolute where delivery has fallen to zero (the last point's pressure when it ends at zero flow). */
+  shutOff: number;
+}
+
 export interface FeedSpec {
   name: string;
   into: string;
-  rate: { kind: 'mass'; value: number /* kg/s */ } | { kind: 'anr'; value: number /* m³/s at ISO 8778 */ };
+  /** For a feed with a curve: the flow at the curve's first point (for reports). */
+  rate: FlowValue;
+  curve?: FeedCurve;
   /** Temperature of the entering gas, K; undefined means ambient. */
   temperature?: number;
   initially: number;       // 0..1
@@ -132,6 +161,30 @@ export interface CylinderSpec {
   fieldPos: Record<string, SourcePos>;
 }
 
+/** A controller's set point: SI in the measured quantity's dimension (pressures absolute Pa). */
+export interface ControllerSpec {
+  name: string;
+  kind: 'pid';
+  measure: Probe;
+  target: TimeSeries;
+  drives: string;
+  /** Gains in SI: 1/[measure], 1/([measure]·s), s/[measure]. */
+  kp: number;
+  ki: number;
+  kd: number;
+  /** Derivative filter time constant (s). */
+  filter: number;
+  limits: { min: number; max: number };
+  antiWindup: 'clamping' | 'back-calculation';
+  /** Back-calculation tracking time (s). */
+  tracking: number;
+  /** Sample period (s) of a discrete controller; undefined: continuous. */
+  sample?: number;
+  /** Output at t = 0. */
+  initially: number;
+  pos: SourcePos;
+}
+
 export interface SimulateSpec {
   duration: number;        // s
   sample?: number;         // s
@@ -147,7 +200,8 @@ export interface SimulateSpec {
 export type ProbeQuantity =
   | 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch'
   | 'flow' | 'reynolds'
-  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated' | (string & {});
+  | 'position' | 'velocity' | 'stroke-time' | 'impact-velocity' | 'dissipated'
+  | 'output' | 'error' | (string & {});
 
 export interface Probe {
   /** Element name (a cylinder's side: `clamp.cap`), or 'total' with quantity 'mass'. */
@@ -170,7 +224,11 @@ export type ExpectSpec =
       kind: 'probe';
       name: string;
       probe: Probe;
-      when: { at: number | 'end' } | { over: [number, number]; stat: 'max' | 'min' | 'mean' };
+      /**
+       * `overshoot`: how far the probe goes past its final value (at t1) beyond the step from its
+       * value at t0, as a fraction of that step: max over [t0, t1] of (x − x1)·sgn(x1 − x0)/|x1 − x0|, ≥ 0.
+       */
+      when: { at: number | 'end' } | { over: [number, number]; stat: 'max' | 'min' | 'mean' | 'overshoot' };
       compare: Comparison;
       pos: SourcePos;
     }
@@ -180,6 +238,8 @@ export type ExpectSpec =
     band: number;
     /** `excursion` (default): |q − q_end| ≤ band·max(E, 0.1 %·|q_end|); `final-value`: ≤ band·|q_end|. */
     relativeTo?: 'excursion' | 'final-value';
+    /** With `probe`: that one probe instead of every chamber's pressure and volume. */
+    probe?: Probe;
     pos: SourcePos;
   };
 
@@ -211,6 +271,7 @@ export interface NetlistDoc {
   valves: ValveSpec[];
   feeds: FeedSpec[];
   cylinders: CylinderSpec[];
+  controllers: ControllerSpec[];
   /** Elements of kinds read from their table alone. */
   elements?: ElementSpec[];
   simulate: SimulateSpec;

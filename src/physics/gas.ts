@@ -52,6 +52,33 @@ export interface Gas {
   cv: number;
   /** Dynamic viscosity (Pa·s) at temperature T (K). */
   viscosity(T: number): number;
+  /**
+   * Factor on an air-rated ISO 6358 flow for this gas (1 for air): the choked mass-flow ratio of
+   * this gas to air through one effective area, see `iso6358GasFactor`.
+   */
+  isoFactor: number;
+}
+
+/** ψ(γ) = (2/(γ+1))^((γ+1)/(2(γ−1))), the critical-flow function of an ideal nozzle. */
+export function nozzlePsi(gamma: number): number {
+  return Math.pow(2 / (gamma + 1), (gamma + 1) / (2 * (gamma - 1)));
+}
+
+/**
+ * Conversion of an ISO 6358 rating (measured with air) to another gas through the equivalent
+ * nozzle: the rating's choked flow of air at the reference state, C·ρ0·p1, is that of an ideal
+ * nozzle of effective area A_e = C·ρ0·√(R_air·T0)/(√γ_air·ψ(γ_air)); the other gas flows through
+ * the same area with its own γ and R, so its choked mass flow is the air value times
+ *   √(γ/R)·ψ(γ) / (√(γ_air/R_air)·ψ(γ_air))       (0.394 for helium, 1.017 for nitrogen).
+ * Anderson, Modern Compressible Flow, 3rd ed., ch. 5 (nozzle mass flow); the use of an equivalent
+ * nozzle to carry a rating across gases is common practice (from memory, not confirmed against a
+ * standard text). The subsonic shape (b, m) is kept as measured with air: a modelling choice
+ * (for an ideal nozzle the critical ratio moves with γ, 0.528 for air, 0.487 for helium).
+ */
+export function iso6358GasFactor(gamma: number, R: number): number {
+  const air = GASES.air;
+  const Rair = R_UNIVERSAL / air.molarMass;
+  return (Math.sqrt(gamma / R) * nozzlePsi(gamma)) / (Math.sqrt(air.gamma / Rair) * nozzlePsi(air.gamma));
 }
 
 /** Sutherland: μ(T) = μref (T/Tref)^1.5 (Tref + S)/(T + S). Pa·s, K. */
@@ -72,6 +99,7 @@ export function makeGas(spec: GasSpec): Gas {
     cp: spec.gamma * cv,
     cv,
     viscosity: (T: number) => sutherland(T, value, at, S),
+    isoFactor: iso6358GasFactor(spec.gamma, R),
   };
 }
 

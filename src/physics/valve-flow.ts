@@ -3,7 +3,11 @@
  * direction, at an opening fraction 0..1 that scales the effective area (orifice) or the sonic
  * conductance (ISO 6358) proportionally.
  *
- * Upstream is the side with the higher pressure; its temperature is used.
+ * Upstream is the side with the higher pressure; its temperature is used. An ISO 6358 rating
+ * is air's: for another gas the flow is scaled by the equivalent-nozzle factor `gas.isoFactor`
+ * (gas.ts), 0.394 for helium. A rating describes the valve in its rated direction; it is used
+ * for flow either way (a valve body that passes less backwards is not modelled), except that
+ * check and relief valves never pass reverse flow (elements/branch.ts).
  *
  * Linear patch near equal pressures. Both laws behave like √(1 − r) as r = p_down/p_up → 1, so
  * dṁ/dΔp is infinite at Δp = 0: an implicit integrator's Jacobian blows up and Newton
@@ -41,7 +45,8 @@ export interface ValveFlow {
 /** One-way flow of the rated law at full-law ratio r ≤ 1 (p_down = r·p_up), scaled by opening. */
 function lawFlow(rating: ValveRating, pUp: number, r: number, Tup: number, gas: Gas, opening: number): number {
   if (rating.kind === 'iso6358') {
-    return iso6358MassFlow(pUp, r * pUp, Tup, rating.conductance * opening, rating.criticalRatio, rating.subsonicIndex);
+    // the rating is air's; another gas through its equivalent nozzle (gas.ts, iso6358GasFactor)
+    return gas.isoFactor * iso6358MassFlow(pUp, r * pUp, Tup, rating.conductance * opening, rating.criticalRatio, rating.subsonicIndex);
   }
   const A = (Math.PI / 4) * rating.diameter * rating.diameter * opening;
   return orificeMassFlow(pUp, r * pUp, Tup, gas.R, gas.gamma, A, rating.dischargeCoefficient);

@@ -31,7 +31,7 @@ type Json = null | boolean | number | string | Json[] | { [k: string]: Json };
 const UNIT_OF_LAST: Record<string, string> = {
   pressure: 'Pa', gauge: 'Pa', volume: 'm^3', mass: 'kg', temperature: 'K', stretch: '-',
   at: 's', peak_flow: 'kg/s', peak_reynolds: '-', initial: 'kg', final: 'kg', through_boundaries: 'kg',
-  regime: '', choked: '',
+  regime: '', choked: '', peak_mach: '-',
 };
 
 /** The unit of a summary key, from its last part. */

@@ -45,7 +45,8 @@ export function equilibriaText(r: EquilibriaResult): string {
       : g.kind === 'open' ? `open${g.flowing.length ? `, gas passing ${g.flowing.join(', ')}` : ''}` : 'fed, no outlet';
     const how = g.method === 'enumeration' ? `by enumeration of ${g.combinations} branch combination${g.combinations === 1 ? '' : 's'}`
       : g.method === 'deflation' ? `by deflated Newton from ${g.combinations} starts (may be incomplete)`
-        : g.method === 'steady-flow' ? 'from the steady flow' : '';
+        : g.method === 'steady-flow' ? 'from the steady flow'
+          : g.method === 'closed-loop' ? `by Newton on the whole state (controllers, regulators) from ${g.combinations} start${g.combinations === 1 ? '' : 's'} (may be incomplete)` : '';
     out.push(`group ${nameList(g.chambers)} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
     for (const n of g.notes) out.push(`  note: ${n}`);
   }

@@ -73,8 +73,8 @@ export function summaryText(r: RunResult): string {
   const lnAll = Object.entries(r.lines);
   const ln = largest(lnAll, (l) => Math.abs(l.peak_flow));
   if (ln.length) {
-    out.push(table(['line', 'peak flow (+ from→to)', 'peak Re', 'regime'],
-      ln.map(([n, l]) => [n, display(l.peak_flow, 'flow'), display(l.peak_reynolds, 'reynolds'), l.regime])));
+    out.push(table(['line', 'peak flow (+ from→to)', 'peak Re', 'regime', 'peak Mach', 'choked'],
+      ln.map(([n, l]) => [n, display(l.peak_flow, 'flow'), display(l.peak_reynolds, 'reynolds'), l.regime, l.peak_mach.toFixed(2), l.choked ? 'yes' : 'no'])));
     out.push(...more(ln.length, lnAll.length, 'lines', 'peak flow'));
     out.push('');
   }

@@ -34,7 +34,7 @@
  */
 import { bandScale } from './settle-band.js';
 import { ELEMENT_TABLES } from '../netlist/kinds.js';
-import type { ExpectSpec } from '../netlist/types.js';
+import type { ExpectSpec, ProbeQuantity } from '../netlist/types.js';
 import type { DenseOutput } from '../solve/types.js';
 import type { DisplayKind } from '../units/display.js';
 import type { ExpectationResult } from './results.js';
@@ -78,6 +78,7 @@ type Plan =
   | { kind: 'at'; spec: ProbeSpec; c: number; i: number }
   | { kind: 'extremum'; spec: ProbeSpec; c: number; i: number }
   | { kind: 'mean'; spec: ProbeSpec; c: number; i: number }
+  | { kind: 'overshoot'; spec: ProbeSpec; c: number; hi: number; lo: number; first: number; last: number }
   | { kind: 'settles'; spec: SettlesSpec; parts: SettlePart[] };
 
 // ---- formatting for people (engineering units, enough digits to tell values apart) ----------
@@ -93,6 +94,7 @@ function unitFor(kind: DisplayKind, magnitude: number): Shown {
     case 'temperature': return { scale: 1, offset: -273.15, unit: ' °C' };
     case 'flow': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' g/s' } : { scale: 1, offset: 0, unit: ' kg/s' };
     case 'time': return magnitude < 1 && magnitude > 0 ? { scale: 1e3, offset: 0, unit: ' ms' } : { scale: 1, offset: 0, unit: ' s' };
+    case 'opening': return { scale: 100, offset: 0, unit: ' %' };
     case 'position': return magnitude < 1 ? { scale: 1e3, offset: 0, unit: ' mm' } : { scale: 1, offset: 0, unit: ' m' };
     case 'velocity': return { scale: 1, offset: 0, unit: ' m/s' };
     case 'energy': return { scale: 1, offset: 0, unit: ' J' };
@@ -186,6 +188,11 @@ class NodeSet {
 
 /** How a probe quantity is shown: built-in quantities by name, a kind's own by its dimension (kinds.ts). */
 function displayKindOf(q: string): DisplayKind {
+  // a controller's output is an opening; its error is shown in SI (the dimension of what it measures)
+  if (q === 'output') return 'opening';
+  if (q === 'stroke-time') return 'time';
+  if (q === 'impact-velocity') return 'velocity';
+  if (q === 'dissipated') return 'energy';
   const named: readonly string[] = ['pressure', 'gauge', 'volume', 'mass', 'temperature', 'stretch', 'flow', 'reynolds', 'time', 'position', 'velocity', 'energy'];
   if (named.includes(q)) return q as DisplayKind;
   const dim = ELEMENT_TABLES.find((k) => q in k.probes)?.probes[q];
@@ -225,6 +232,15 @@ export class ExpectationMonitor {
   }
 
   private plan(spec: ExpectSpec, chambers: string[]): Plan {
+    if (spec.kind === 'settles' && spec.probe) {
+      const key = `${spec.probe.element}.${spec.probe.quantity}`;
+      const c = this.src.keys.get(key);
+      if (c === undefined) return { kind: 'missing', spec };
+      return {
+        kind: 'settles', spec,
+        parts: [{ key, c, hi: this.track(c, spec.within, Infinity, 1), lo: this.track(c, spec.within, Infinity, -1), hiAll: this.track(c, 0, Infinity, 1, false), loAll: this.track(c, 0, Infinity, -1, false) }],
+      };
+    }
     if (spec.kind === 'settles') {
       const parts: SettlePart[] = [];
       for (const name of chambers) {
@@ -256,6 +272,11 @@ export class ExpectationMonitor {
     if (w.stat === 'mean') {
       this.integrals.push({ c, t0, t1, sum: 0 });
       return { kind: 'mean', spec, c, i: this.integrals.length - 1 };
+    }
+    if (w.stat === 'overshoot') {
+      this.points.push({ c, t: t0, value: Number.NaN, seen: false }, { c, t: t1, value: Number.NaN, seen: false });
+      const last = this.points.length - 1;
+      return { kind: 'overshoot', spec, c, hi: this.track(c, t0, t1, 1), lo: this.track(c, t0, t1, -1), first: last - 1, last };
     }
     return { kind: 'extremum', spec, c, i: this.track(c, t0, t1, w.stat === 'max' ? 1 : -1) };
   }
@@ -401,6 +422,8 @@ export class ExpectationMonitor {
       const m = this.integrals[p.i];
       v = m.sum / (m.t1 - m.t0);
       when = `over [${time(m.t0)}, ${time(m.t1)}]`;
+    } else if (p.kind === 'overshoot') {
+      return { name: s.name, ...where, ...this.overshoot(p, tEnd, end) };
     } else {
       const x = this.extrema[p.i];
       v = x.sign * x.best;
@@ -436,6 +459,31 @@ export class ExpectationMonitor {
     };
   }
 
+  /** Overshoot past the final value as a fraction of the step over the window (see netlist/types.ts). */
+  private overshoot(p: Extract<Plan, { kind: 'overshoot' }>, tEnd: number, end: Float64Array): { passed: boolean; actual: number; message: string } {
+    const s = p.spec;
+    const a = this.points[p.first], b = this.points[p.last];
+    const x0 = a.seen ? a.value : Number.NaN;
+    const x1 = b.seen ? b.value : b.t >= tEnd ? end[p.c] : Number.NaN;
+    const hi = this.extrema[p.hi], lo = this.extrema[p.lo];
+    const step = x1 - x0;
+    const past = step >= 0 ? hi.best - x1 : x1 - lo.sign * lo.best;
+    const at = step >= 0 ? hi.at : lo.at;
+    const v = Math.max(0, past) / Math.abs(step);
+    const cmp = s.compare;
+    let passed = cmp.kind === 'below' ? v < cmp.value : cmp.kind === 'above' ? v > cmp.value
+      : Math.abs(v - cmp.value) <= ('abs' in cmp.within ? cmp.within.abs : cmp.within.rel * Math.abs(cmp.value));
+    if (!Number.isFinite(v)) passed = false;
+    const want = cmp.kind === 'near' ? `${pct(cmp.value)} ± ${'abs' in cmp.within ? pct(cmp.within.abs) : pct(cmp.within.rel * cmp.value)}` : `${cmp.kind} ${pct(cmp.value)}`;
+    const kind: DisplayKind = displayKindOf(s.probe.quantity);
+    const shown = (x: number): string => fmtDelta(x, kind);
+    const w = s.when as { over: [number, number] };
+    return {
+      passed, actual: v,
+      message: `overshoot of ${s.probe.text} over [${time(w.over[0])}, ${time(w.over[1])}] is ${pct(v)} of its step of ${shown(step)}${v > 0 && Number.isFinite(at) ? ` (peak at t = ${time(at)})` : ''}; expected ${want}`,
+    };
+  }
+
   private settles(s: SettlesSpec, parts: SettlePart[], end: Float64Array): { passed: boolean; actual: number; message: string } {
     const ofFinal = s.relativeTo === 'final-value';
     let worst = { rel: 0, key: '', t: s.within, fin: Number.NaN, scale: Number.NaN };
@@ -455,6 +503,14 @@ export class ExpectationMonitor {
     }
     const passed = worst.rel <= s.band;
     const after = `for t ≥ ${time(s.within)}`;
+    if (s.probe) {
+      const q = s.probe.quantity;
+      const kind: DisplayKind = displayKindOf(q);
+      return {
+        passed, actual: worst.rel,
+        message: `${s.probe.text} ${passed ? 'stays' : 'does not stay'} within ${pct(s.band)} ${ofFinal ? 'of its final value' : 'of its excursion from its final value'} ${fmt(parts[0] ? end[parts[0].c] : Number.NaN, kind)} ${after} (largest deviation ${pct(worst.rel)}${worst.key ? ` at t = ${time(worst.t)}` : ''})`,
+      };
+    }
     const of = ofFinal ? 'of their final values' : 'of their excursions from their final values';
     if (passed) {
       return {

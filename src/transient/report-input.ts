@@ -176,7 +176,11 @@ function describeOperation(op: ValveOperation): string {
       return `scheduled: ${parts.join(', ')}`;
     }
     case 'check': return `check valve, cracks at ${significant(op.cracking / 1000, 3)} kPa`;
-    case 'relief': return `relief, opens above ${display(op.opensAbove, 'gauge')}, reseats below ${display(op.reseatsBelow, 'gauge')}`;
+    case 'relief': return op.fullLiftAt !== undefined
+      ? `relief, lifts from ${display(op.opensAbove, 'gauge')}, full lift at ${display(op.fullLiftAt, 'gauge')}`
+      : `relief, opens above ${display(op.opensAbove, 'gauge')}, reseats below ${display(op.reseatsBelow, 'gauge')}`;
+    case 'regulator': return `regulator, shuts at ${display(op.set, 'gauge')}, band ${significant(op.band / 1000, 3)} kPa${op.relieving ? ', relieving' : ''}${op.timeConstant > 0 ? `, lag ${display(op.timeConstant, 'time')}` : ''}`;
+    case 'driven': return `driven by controller ${op.controller}`;
   }
 }
 

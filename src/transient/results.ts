@@ -6,7 +6,18 @@ export interface ChamberSummary {
   least: { gauge: number; at: number };
 }
 
-export interface LineSummary { peak_flow: number; peak_reynolds: number; regime: 'laminar' | 'transitional' | 'turbulent' }
+export interface LineSummary {
+  peak_flow: number;
+  peak_reynolds: number;
+  regime: 'laminar' | 'transitional' | 'turbulent';
+  /** The line was choked at its exit at some time in the run. */
+  choked: boolean;
+  /** Largest exit Mach number (isothermal lines choke at 1/√γ; physics/line-flow.ts). */
+  peak_mach: number;
+  /** Segments of a wave line (elements/wave-line.ts). */
+  segments?: number;
+}
+export interface ValveSummary { peak_flow: number; choked: boolean }
 export interface ValveSummary {
   peak_flow: number;
   choked: boolean;

@@ -46,6 +46,13 @@ const DEFAULT_SAMPLES = 1000;
 /** Relative mass drift above which a run warns (the integrators conserve mass to round-off). */
 const DRIFT_WARN = 1e-9;
 
+/** The run log and the changes summaries saw, in time order (stable: the log first at equal times). */
+function mergeSeen(log: readonly { t: number; what: string }[], seen: { t: number; what: string }[]): { t: number; what: string }[] {
+  const all = log.map((e) => ({ t: e.t, what: e.what }));
+  if (seen.length === 0) return all;
+  return all.concat(seen).map((e, k) => ({ e, k })).sort((a, b) => a.e.t - b.e.t || a.k - b.k).map((x) => x.e);
+}
+
 export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array): { integrator: Integrator; name: string; why: string } {
   const m = model.simulate.method;
   if (m === 'explicit') return { integrator: odex, name: 'odex', why: 'method: explicit' };
@@ -81,6 +88,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const started = Date.now();
   const sys = new NetworkSystem(model);
   const y0 = sys.initialState();
+  const initialMass = sys.totalMass(y0); // the chambers' gas, and any held by wave lines
   sys.settleInitialModes(0, y0);
   const { integrator, name: chosen } = chooseMethod(model, sys, y0);
   const duration = model.simulate.duration;
@@ -153,7 +161,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     if (s.row) (rows[s.section] ??= {})[s.name] = s.row(res);
   }
   const { chambers = {}, lines = {}, valves = {}, ...more } = sections;
-  const initial = sys.totalMass(y0);
+  const initial = initialMass;
   const final = sys.totalMass(yEnd);
   const through = sys.boundaryInflow(yEnd);
   // relative to the larger of the gas held at the start and the gas that came in or left: a
@@ -200,7 +208,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
     ...(Object.keys(more).length ? { sections: more } : {}),
     ...(Object.keys(rows).length ? { rows } : {}),
     mass: { initial, final, through_boundaries: through, drift },
-    events: sys.log.entries().map((e) => ({ t: e.t, what: e.what })),
+    events: mergeSeen(sys.log.entries(), summaries.flatMap((s) => s.seen?.() ?? [])),
     ...(sys.log.omitted > 0 ? { events_omitted: sys.log.omitted, event_counts: tallyByElement(counts) } : {}),
     warnings,
     expectations,

@@ -2,11 +2,11 @@
  * SI numbers → engineering units for people (tables, messages). Machine outputs stay SI.
  */
 
-export type DisplayKind = 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch' | 'flow' | 'reynolds' | 'time' | 'position' | 'velocity' | 'energy';
+export type DisplayKind = 'pressure' | 'gauge' | 'volume' | 'mass' | 'temperature' | 'stretch' | 'flow' | 'reynolds' | 'time' | 'position' | 'velocity' | 'energy' | 'opening';
 
 const TINY: Record<DisplayKind, number> = {
   pressure: 1e-6, gauge: 1e-6, volume: 1e-15, mass: 1e-15, temperature: 0, stretch: 1e-12, flow: 1e-15, reynolds: 1e-9, time: 1e-12,
-  position: 1e-12, velocity: 1e-12, energy: 1e-12,
+  position: 1e-12, velocity: 1e-12, energy: 1e-12, opening: 1e-12,
 };
 
 function sig(x: number, digits = 4): string {
@@ -29,6 +29,7 @@ export function display(value: number, kind: DisplayKind): string {
     case 'temperature': return `${sig(value - 273.15)} °C`;
     case 'flow': return a < 1 ? `${sig(value * 1e3)} g/s` : `${sig(value)} kg/s`;
     case 'time': return a < 1 && a > 0 ? `${sig(value * 1e3)} ms` : `${sig(value)} s`;
+    case 'opening': return `${sig(value * 100)} %`;
     case 'position': return a < 1 ? `${sig(value * 1e3)} mm` : `${sig(value)} m`;
     case 'velocity': return `${sig(value)} m/s`;
     case 'energy': return `${sig(value)} J`;
@@ -57,6 +58,7 @@ export function displayScale(kind: DisplayKind, magnitude: number): DisplayScale
     case 'temperature': return { unit: '°C', factor: 1, offset: -273.15 };
     case 'flow': return a < 1 ? { unit: 'g/s', factor: 1e3, offset: 0 } : { unit: 'kg/s', factor: 1, offset: 0 };
     case 'time': return a < 1 && a > 0 ? { unit: 'ms', factor: 1e3, offset: 0 } : { unit: 's', factor: 1, offset: 0 };
+    case 'opening': return { unit: '%', factor: 100, offset: 0 };
     case 'position': return a < 1 ? { unit: 'mm', factor: 1e3, offset: 0 } : { unit: 'm', factor: 1, offset: 0 };
     case 'velocity': return { unit: 'm/s', factor: 1, offset: 0 };
     case 'energy': return { unit: 'J', factor: 1, offset: 0 };

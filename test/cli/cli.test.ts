@@ -61,6 +61,30 @@ describe('plenum CLI', () => {
     expect(existsSync(out)).toBe(false);
   });
 
+  it('a wave line with zero segments and a relief valve whose full lift is below its set pressure: exit 2 with file:line:column, nothing written', () => {
+    const cases: [string, string, RegExp][] = [
+      ['zero-segments.yaml', 'lines:\n  hose: { from: tank, to: ambient, diameter: 4 mm, length: 10 m, model: wave, segments: 0 }\n', /zero-segments\.yaml:9:89: error \[out-of-range\] `segments`/],
+      ['low-lift.yaml', 'valves:\n  relief:\n    from: tank\n    to: ambient\n    orifice: 2 mm\n    discharge-coefficient: 0.6\n    relief: { opens-above: 5 barg, full-lift-at: 4.5 barg }\n', /low-lift\.yaml:14:50: error \[out-of-range\] `full-lift-at` must be higher than `opens-above`/],
+    ];
+    for (const [name, tail, where] of cases) {
+      const file = join(tmp, name);
+      writeFileSync(file, `format: 1
+chambers:
+  tank:
+    wall: rigid
+    volume: 1 L
+    start: { pressure: 6 barg }
+simulate: { duration: 1 s }
+${tail}`);
+      const out = join(tmp, `${name}.json`);
+      const r = plenum('run', file, '--json', out);
+      expect(r.code, r.err).toBe(2);
+      expect(r.err).toMatch(where);
+      expect(r.err).not.toMatch(/\n\s+at .*\(.*:\d+:\d+\)/);
+      expect(existsSync(out)).toBe(false);
+    }
+  });
+
   it('a missing file and an unknown option exit 2', () => {
     expect(plenum('run', join(tmp, 'nope.yaml')).code).toBe(2);
     expect(plenum('run', 'networks/cushion-settle.yaml', '--bogus').code).toBe(2);

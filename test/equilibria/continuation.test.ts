@@ -12,7 +12,7 @@ import type { Model } from '../../src/model/types.js';
 import { modelFromFile } from '../helpers.js';
 
 const R = 8.314462618 / 0.0289647;
-const LMAX = Math.pow(7, 1 / 6); // neo-Hookean pressure maximum (Treloar 1975; references.md)
+const LMAX = Math.pow(7, 1 / 6); // neo-Hookean pressure maximum (Treloar 1975; docs/references.md)
 
 function traced(model: Model, vary: string, from: string, to: string): TraceResult {
   const r = traceEquilibria(model, { vary, from, to, maxStep: 0.1, interior: 1 });

@@ -315,6 +315,17 @@ describe('readNetlist: values', () => {
     expectAt(src, 'out-of-range', 16, 57);
   });
 
+  it('proportional relief: full lift must be above the set pressure', () => {
+    const src = BASE + VALVE_BLOCK(ORIFICE + '    relief: { opens-above: 50 kPa gauge, full-lift-at: 45 kPa gauge }\n');
+    const d = expectAt(src, 'out-of-range', 16, 56);
+    expect(d.message).toContain('`full-lift-at` must be higher than `opens-above`');
+  });
+
+  it('relief: pop action or proportional lift, not both, not neither', () => {
+    expectAt(BASE + VALVE_BLOCK(ORIFICE + '    relief: { opens-above: 50 kPa gauge, reseats-below: 45 kPa gauge, full-lift-at: 55 kPa gauge }\n'), 'conflicting-keys', 16, 85);
+    expectAt(BASE + VALVE_BLOCK(ORIFICE + '    relief: { opens-above: 50 kPa gauge }\n'), 'missing-key', 16, 13);
+  });
+
   it('a valve that opens in two ways', () => {
     const src = BASE + VALVE_BLOCK(ORIFICE + '    initially: open\n    check: { cracking: 5 kPa }\n');
     expectAt(src, 'conflicting-keys', 17, 5);

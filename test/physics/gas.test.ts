@@ -4,7 +4,7 @@ import { ANR, GASES, R_UNIVERSAL, anrDensity, makeGas, sutherland } from '../../
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
 describe('gas constants', () => {
-  it('dry air R, cp, cv from R = 8.314462618 (CODATA 2018) and M = 28.9647 g/mol (references.md)', () => {
+  it('dry air R, cp, cv from R = 8.314462618 (CODATA 2018) and M = 28.9647 g/mol (docs/references.md)', () => {
     const air = makeGas(GASES.air);
     expect(R_UNIVERSAL).toBe(8.314462618);
     expect(rel(air.R, 287.055)).toBeLessThan(2e-6);
@@ -24,7 +24,7 @@ describe('gas constants', () => {
 describe('Sutherland viscosity', () => {
   const air = makeGas(GASES.air);
 
-  it('reproduces the worked values μ(300 K) = 1.84592e-5 and μ(293.15 K) = 1.81332e-5 Pa·s (references.md)', () => {
+  it('reproduces the worked values μ(300 K) = 1.84592e-5 and μ(293.15 K) = 1.81332e-5 Pa·s (docs/references.md)', () => {
     expect(rel(air.viscosity(300), 1.84592e-5)).toBeLessThan(3e-6);
     expect(rel(air.viscosity(293.15), 1.81332e-5)).toBeLessThan(3e-6);
     expect(air.viscosity(273.15)).toBe(1.716e-5);

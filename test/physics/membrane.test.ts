@@ -7,11 +7,11 @@ const fd = (law: Membrane, l: number): number => {
   return (membranePressure(law, l + h).dp - membranePressure(law, l - h).dp) / (2 * h);
 };
 
-// μ = 0.4 MPa, t0/r0 = 0.02 (references.md worked example).
+// μ = 0.4 MPa, t0/r0 = 0.02 (docs/references.md worked example).
 const nh: Membrane = { kind: 'neo-hookean', r0: 0.05, t0: 0.001, mu: 0.4e6 };
 
 describe('thin spherical membrane (Treloar 1975; Ogden 1984; Gent 1996)', () => {
-  it('neo-Hookean: Δp(2) = 7875.000 Pa and Δp(7^(1/6)) = 9915.703 Pa = 1.2394629 μ t0/r0 (references.md)', () => {
+  it('neo-Hookean: Δp(2) = 7875.000 Pa and Δp(7^(1/6)) = 9915.703 Pa = 1.2394629 μ t0/r0 (docs/references.md)', () => {
     expect(rel(membranePressure(nh, 2).dp, 7875)).toBeLessThan(1e-12);
     const lmax = 7 ** (1 / 6);
     expect(rel(lmax, 1.3830876)).toBeLessThan(1e-7);

@@ -7,11 +7,11 @@ const air = makeGas(GASES.air);
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
 describe('isentropic orifice (Anderson, Modern Compressible Flow, 3rd ed., ch. 5)', () => {
-  it('critical pressure ratio 0.528281788 for γ = 1.4 (references.md)', () => {
+  it('critical pressure ratio 0.528281788 for γ = 1.4 (docs/references.md)', () => {
     expect(rel(criticalPressureRatio(1.4), 0.528281788)).toBeLessThan(1e-9);
   });
 
-  it('A = 1 mm², p0 = 600 kPa, T0 = 293.15 K: choked 1.416263e-3, at p2 = 400 kPa 1.354813e-3 kg/s (references.md)', () => {
+  it('A = 1 mm², p0 = 600 kPa, T0 = 293.15 K: choked 1.416263e-3, at p2 = 400 kPa 1.354813e-3 kg/s (docs/references.md)', () => {
     expect(rel(orificeMassFlow(600e3, 100e3, 293.15, air.R, 1.4, 1e-6), 1.416263e-3)).toBeLessThan(5e-7);
     expect(rel(orificeMassFlow(600e3, 400e3, 293.15, air.R, 1.4, 1e-6), 1.354813e-3)).toBeLessThan(5e-7);
   });
@@ -28,7 +28,7 @@ describe('isentropic orifice (Anderson, Modern Compressible Flow, 3rd ed., ch. 5
 });
 
 describe('ISO 6358-1:2013 characteristic (Beater, Pneumatic Drives, 2007, eq. 5.1)', () => {
-  it('C = 1e-8 m³/(s·Pa), b = 0.3, 600 → 400 kPa, 293.15 K: qm = 6.056550e-3 kg/s (references.md)', () => {
+  it('C = 1e-8 m³/(s·Pa), b = 0.3, 600 → 400 kPa, 293.15 K: qm = 6.056550e-3 kg/s (docs/references.md)', () => {
     expect(rel(iso6358MassFlow(600e3, 400e3, 293.15, 1e-8, 0.3), 6.05655e-3)).toBeLessThan(2e-7);
   });
 

@@ -20,7 +20,7 @@ describe('laminar: compressible Hagen–Poiseuille (Bird, Stewart & Lightfoot, T
   const L = 1;
   const mu = air.viscosity(T);
 
-  it('D = 0.3 mm, L = 1 m, 300 → 101.325 kPa: ṁ = 5.19403e-6 kg/s, Re = 1215.7 (references.md)', () => {
+  it('D = 0.3 mm, L = 1 m, 300 → 101.325 kPa: ṁ = 5.19403e-6 kg/s, Re = 1215.7 (docs/references.md)', () => {
     const f = tubeFlow(300e3, 101.325e3, T, air, D, L, 0);
     const closed = (Math.PI * D ** 4 * (300e3 ** 2 - 101.325e3 ** 2)) / (256 * mu * L * air.R * T);
     expect(rel(f.mdot, closed)).toBeLessThan(1e-12);

@@ -13,7 +13,7 @@ const ori: ValveRating = { kind: 'orifice', diameter: 1e-3, dischargeCoefficient
 describe('valve flow from a rating (ISO 6358-1:2013; Anderson ch. 5)', () => {
   it('forward flow equals the rated law, scaled by the opening; choked flag', () => {
     const a = valveFlow(iso, 600e3, 400e3, 293.15, 300, air, 1);
-    expect(rel(a.mdot, 6.05655e-3)).toBeLessThan(2e-7); // references.md, ISO 6358 worked value
+    expect(rel(a.mdot, 6.05655e-3)).toBeLessThan(2e-7); // docs/references.md, ISO 6358 worked value
     expect(a.choked).toBe(false);
     expect(rel(valveFlow(iso, 600e3, 400e3, 293.15, 300, air, 0.25).mdot, 0.25 * a.mdot)).toBeLessThan(1e-14);
     expect(valveFlow(iso, 600e3, 100e3, 293.15, 300, air, 1).choked).toBe(true);
@@ -57,6 +57,47 @@ describe('valve flow from a rating (ISO 6358-1:2013; Anderson ch. 5)', () => {
         else expect(f.mdot).toBeGreaterThan(prev);
         prev = f.mdot;
       }
+    }
+  });
+});
+
+describe('an air-rated ISO 6358 valve passing another gas (equivalent nozzle; docs/references.md, "Compressible flow limits")', () => {
+  const rating = { kind: 'iso6358' as const, conductance: 1e-8, criticalRatio: 0.3, subsonicIndex: 0.5 };
+  const airGas = makeGas(GASES.air);
+  const he = makeGas(GASES.helium);
+  const n2 = makeGas(GASES.nitrogen);
+  const ratio = (g: typeof he, p2: number): number =>
+    valveFlow(rating, 600e3, p2, 293.15, 293.15, g, 1).mdot / valveFlow(rating, 600e3, p2, 293.15, 293.15, airGas, 1).mdot;
+
+  it('helium: choked flow 0.394 of air’s (±5 %), the nozzle ratio √(γ/R)ψ(γ) for γ = 5/3, M = 4.0026 g/mol', () => {
+    const psi = (g: number): number => Math.pow(2 / (g + 1), (g + 1) / (2 * (g - 1)));
+    const Rhe = 8.314462618 / 4.002602e-3;
+    const Rair = 8.314462618 / 28.9647e-3;
+    const closed = (Math.sqrt((5 / 3) / Rhe) * psi(5 / 3)) / (Math.sqrt(1.4 / Rair) * psi(1.4));
+    expect(Math.abs(closed - 0.394) / 0.394).toBeLessThan(2e-3); // the published 0.394
+    const r = ratio(he, 100e3);
+    expect(Math.abs(r - 0.394) / 0.394).toBeLessThan(0.05);
+    expect(Math.abs(r - closed)).toBeLessThan(1e-12);
+    expect(valveFlow(rating, 600e3, 100e3, 293.15, 293.15, he, 1).choked).toBe(true);
+  });
+
+  it('air is unchanged (factor exactly 1); nitrogen 1.017 (M 28.01 against 28.96 g/mol, same γ: √(M_N2/M_air))', () => {
+    expect(airGas.isoFactor).toBe(1);
+    expect(Math.abs(ratio(n2, 100e3) - Math.sqrt(28.0134 / 28.9647))).toBeLessThan(1e-12);
+    expect(valveFlow(rating, 600e3, 400e3, 293.15, 293.15, airGas, 1).mdot).toBeCloseTo(6.05655e-3, 7);
+  });
+
+  it('the same factor in subsonic flow (the shape b, m stays air’s) and the equivalent orifice agrees when choked', () => {
+    expect(Math.abs(ratio(he, 500e3) - he.isoFactor)).toBeLessThan(1e-12);
+    // the equivalent nozzle of the rating: A_e = C ρ0 √(R_air T0)/(√γ ψ(γ)) with air's constants
+    const Rair = 8.314462618 / 28.9647e-3;
+    const psiC = Math.sqrt(1.4) * Math.pow(2 / 2.4, 2.4 / 0.8);
+    const Ae = (1e-8 * 1.185 * Math.sqrt(Rair * 293.15)) / psiC;
+    const orifice = { kind: 'orifice' as const, diameter: Math.sqrt((4 * Ae) / Math.PI), dischargeCoefficient: 1 };
+    for (const g of [airGas, he, n2]) {
+      const iso = valveFlow(rating, 600e3, 100e3, 293.15, 293.15, g, 1).mdot;
+      const noz = valveFlow(orifice, 600e3, 100e3, 293.15, 293.15, g, 1).mdot;
+      expect(Math.abs(iso / noz - 1)).toBeLessThan(1e-12);
     }
   });
 });

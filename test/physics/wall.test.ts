@@ -15,7 +15,7 @@ const fdSlope = (w: WallLaw, V: number): number => {
   return (at(w, V + h).p - at(w, V - h).p) / (2 * h);
 };
 
-// μ = 0.4 MPa, t0/r0 = 0.02 (references.md worked example), r0 = 5 cm.
+// μ = 0.4 MPa, t0/r0 = 0.02 (docs/references.md worked example), r0 = 5 cm.
 const nhSpec: WallSpec = { law: 'neo-hookean', radius: 0.05, thickness: 0.001, shearModulus: 0.4e6 };
 const mrSpec = (ratio: number): WallSpec => ({ law: 'mooney-rivlin', radius: 0.05, thickness: 0.001, c1: 0.2e6, c2: 0.2e6 * ratio });
 const gentSpec: WallSpec = { law: 'gent', radius: 0.05, thickness: 0.001, shearModulus: 0.4e6, limit: 97.2 };
@@ -25,7 +25,7 @@ const V0 = (4 / 3) * Math.PI * 0.05 ** 3;
 describe('sphere walls (Treloar 1975; Ogden 1984; Gent 1996)', () => {
   const nh = makeWall(nhSpec, P);
 
-  it('neo-Hookean: V0 = (4/3)π r0³, stretch round trip, Δp at λ = 2 is 7875.000 Pa (references.md)', () => {
+  it('neo-Hookean: V0 = (4/3)π r0³, stretch round trip, Δp at λ = 2 is 7875.000 Pa (docs/references.md)', () => {
     expect(nh.sphere).toBe(true);
     expect(nh.rigid).toBe(false);
     expect(rel(nh.V0, V0)).toBeLessThan(1e-15);
@@ -34,7 +34,7 @@ describe('sphere walls (Treloar 1975; Ogden 1984; Gent 1996)', () => {
     expect(rel(at(nh, nh.volumeAtStretch(2)).p, 7875)).toBeLessThan(1e-12);
   });
 
-  it('neo-Hookean: one maximum, at λ = 7^(1/6) to 1e-12, Δp_max = 9915.703 Pa (references.md)', () => {
+  it('neo-Hookean: one maximum, at λ = 7^(1/6) to 1e-12, Δp_max = 9915.703 Pa (docs/references.md)', () => {
     expect(nh.extrema).toHaveLength(1);
     const [e] = nh.extrema;
     expect(e.kind).toBe('max');
@@ -42,7 +42,7 @@ describe('sphere walls (Treloar 1975; Ogden 1984; Gent 1996)', () => {
     expect(rel(e.p, 9915.703)).toBeLessThan(1e-7);
   });
 
-  it('Mooney–Rivlin: max then min for C2/C1 = 0.1, none for 0.3; threshold ≈ 0.214 (references.md, from memory)', () => {
+  it('Mooney–Rivlin: max then min for C2/C1 = 0.1, none for 0.3; threshold ≈ 0.214 (docs/references.md, from memory)', () => {
     const k1 = makeWall(mrSpec(0.1), P).extrema;
     expect(k1.map((e) => e.kind)).toEqual(['max', 'min']);
     expect(k1[0].V).toBeLessThan(k1[1].V);

@@ -49,7 +49,7 @@ export function syntheticInput(n = 401, duration = 2): ReportInput {
       cell: { final: { pressure: gaugeA[last] + PA, gauge: gaugeA[last], volume: VA[last], mass: mA[last], temperature: 293.15, stretch: lam[last] }, peak: { gauge: gaugeA.reduce((a, v) => Math.max(a, v), -Infinity), at: 0.3 }, least: { gauge: gaugeA[last], at: duration } },
       bag: { final: { pressure: gaugeB[last] + PA, gauge: gaugeB[last], volume: Vb[last], mass: mB[last], temperature: 293.15 }, peak: { gauge: gaugeB[last], at: duration }, least: { gauge: 0, at: 0 } },
     },
-    lines: { hose: { peak_flow: 2e-4, peak_reynolds: 900, regime: 'laminar' } },
+    lines: { hose: { peak_flow: 2e-4, peak_reynolds: 900, regime: 'laminar', choked: false, peak_mach: 0.02 } },
     valves: { vent: { peak_flow: 5e-5, choked: true } },
     mass: { initial: mA[0] + mB[0], final: mA[last] + mB[last], through_boundaries: 0, drift: 0 },
     events: [

@@ -1,7 +1,7 @@
 // Behaviour both integrators share through the Integrator contract (src/solve/types.ts):
 // accuracy against closed forms, dense output, work counts, invariants and statuses.
 // Sources are named per test; the tank closed form and its worked numbers are from
-// /work/shared/references.md ("Rigid tank through a laminar capillary").
+// docs/references.md ("Rigid tank through a laminar capillary").
 import { describe, expect, it } from 'vitest';
 import { odex } from '../../src/solve/odex.js';
 import { rosenbrock } from '../../src/solve/rosenbrock.js';
@@ -10,7 +10,7 @@ import type { IntegrateResult, Integrator, OdeProblem, StepCallback } from '../.
 // ---- Problems -------------------------------------------------------------------------------
 
 // Tank blowdown through a laminar capillary: dp/dt = −k(p² − pa²), k = πD⁴/(256 μ L V);
-// V = 1 L, D = 0.3 mm, L = 1 m, air at 293.15 K with Sutherland μ (references.md).
+// V = 1 L, D = 0.3 mm, L = 1 m, air at 293.15 K with Sutherland μ (docs/references.md).
 const pa = 101325; // Pa
 const p0 = 300e3; // Pa
 const mu = 1.716e-5 * (293.15 / 273.15) ** 1.5 * (273.15 + 110.4) / (293.15 + 110.4); // Pa·s
@@ -94,7 +94,7 @@ const integrators: [string, Integrator][] = [['rosenbrock', rosenbrock], ['odex'
 // ---- Tests ----------------------------------------------------------------------------------
 
 describe.each(integrators)('%s', (name, integrate) => {
-  it('matches the tank blowdown worked numbers at rtol 1e-8 (references.md; closed form)', () => {
+  it('matches the tank blowdown worked numbers at rtol 1e-8 (docs/references.md; closed form)', () => {
     for (const analytic of [true, false]) {
       for (const [tEnd, pRef] of [[100, 262498.02], [600, 170397.16]]) {
         const r = integrate(tank(1e-8, analytic), 0, Float64Array.of(p0), tEnd, keepGoing);

@@ -2,7 +2,7 @@
 // Sources: Hairer & Wanner, Solving ODEs II, 2nd ed. 1996, §VI.4 (RODAS: order 4, L-stable,
 // stiffly accurate, dense output of order 3) and §IV.3 (stability function R(z) of a
 // one-step method applied to y' = λy, z = hλ); the tank closed form from
-// /work/shared/references.md ("Rigid tank through a laminar capillary").
+// docs/references.md ("Rigid tank through a laminar capillary").
 import { describe, expect, it } from 'vitest';
 import { rosenbrockFixedSteps } from '../../src/solve/rosenbrock.js';
 import type { OdeProblem } from '../../src/solve/types.js';
@@ -44,7 +44,7 @@ describe('RODAS stability function (Hairer & Wanner II, §VI.4 and §IV.3)', () 
 });
 
 describe('RODAS convergence with fixed steps (Hairer & Wanner II, §VI.4: order 4)', () => {
-  it('closed form of the tank blowdown matches the worked numbers in references.md', () => {
+  it('closed form of the tank blowdown matches the worked numbers in docs/references.md', () => {
     // The worked numbers are printed to 0.01 Pa and 0.001 s: agree to within that rounding.
     expect(Math.abs(pExact(100) - 262498.02)).toBeLessThanOrEqual(0.005 + 1e-9);
     expect(Math.abs(pExact(600) - 170397.16)).toBeLessThanOrEqual(0.005 + 1e-9);

@@ -21,7 +21,8 @@ describe('the gripper walk-through', () => {
     });
     if (!r.ok) throw new Error(r.diagnostics.map((d) => d.message).join('\n'));
     expect(r.value.status).toBe('converged');
-    expect(r.value.warnings).toEqual([]);
+    // the one warning is the feed tube's wave travel time against the 5 ms solenoid ramp (model/wave.ts)
+    expect(r.value.warnings.filter((w) => !w.includes('a pressure wave needs'))).toEqual([]);
     const [g, mu] = r.value.parameters;
     expect(g.low).toBeLessThan(0.34e-8);
     expect(g.high).toBeGreaterThan(0.34e-8);

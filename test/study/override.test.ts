@@ -48,7 +48,7 @@ describe('checkPath', () => {
 
 describe('applyOverrides', () => {
   it('sets values (numbers as numbers), keeps everything else, and the result reads', () => {
-    const text = applyOverrides(source, [ov('chambers.cell_a.thickness', '1.4 mm'), ov('chambers.cell_b.start.stretch', '1.65'), ov('simulate.duration', '7 s')]);
+    const text = applyOverrides(source, [ov('chambers.cell_a.thickness', '1.4 mm'), ov('chambers.cell_b.start.stretch', '1.65'), ov('simulate.duration', '9 s')]);
     const doc = readNetlist(text, FILE);
     expect(doc.ok).toBe(true);
     if (!doc.ok) return;
@@ -56,7 +56,7 @@ describe('applyOverrides', () => {
     const b = doc.value.chambers.find((c) => c.name === 'cell_b');
     expect(a?.wall).toMatchObject({ thickness: 0.0014 });
     expect(b?.start).toEqual({ by: 'stretch', value: 1.65 });
-    expect(doc.value.simulate.duration).toBe(7);
+    expect(doc.value.simulate.duration).toBe(9);
     expect(doc.value.expect.length).toBe(3);
     expect(text).toContain('# Two cells of an inflatable seat cushion');
   });
@@ -73,14 +73,14 @@ describe('readWithOverrides', () => {
   });
 
   it('a problem elsewhere caused by an override points at the original line and names the override', () => {
-    // A shorter duration puts the expectation window [0 s, 6 s] past the end of the run.
+    // A shorter duration puts the expectation window [0 s, 8 s] past the end of the run.
     const r = readWithOverrides(source, FILE, [ov('simulate.duration', '2 s')]);
     const all = r.ok ? r.warnings : r.diagnostics;
     const d = all.find((x) => x.path[0] === 'expect');
     expect(d, JSON.stringify(all)).toBeDefined();
     if (!d) return;
     expect(d.file).toBe(FILE);
-    const line = source.split('\n').findIndex((l) => l.includes('over: [0 s, 6 s]')) + 1;
+    const line = source.split('\n').findIndex((l) => l.includes('over: [0 s, 8 s]')) + 1;
     expect(d.line).toBe(line);
     expect(d.message).toContain('with simulate.duration = 2 s');
   });

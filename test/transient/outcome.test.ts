@@ -110,7 +110,7 @@ simulate: { duration: 30 s, sample: 0.05 s }
 
 describe('snap-through and limit events', () => {
   it('a cell fed past its pressure maximum logs the crossing at stretch 7^(1/6), then its stretch limit, with a warning', () => {
-    const lmax = Math.pow(7, 1 / 6); // neo-Hookean maximum (Treloar 1975; references.md)
+    const lmax = Math.pow(7, 1 / 6); // neo-Hookean maximum (Treloar 1975; docs/references.md)
     const r = runChecked(modelFromText(`
 format: 1
 ${AMBIENT}

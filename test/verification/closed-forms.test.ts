@@ -1,5 +1,5 @@
 /**
- * Transients against closed-form solutions (../shared/references.md, computed independently).
+ * Transients against closed-form solutions (docs/references.md, computed independently).
  */
 import { describe, expect, it } from 'vitest';
 import { at, channel, modelFromText, runChecked } from '../helpers.js';
@@ -10,7 +10,7 @@ describe('rigid tank blowing down through a laminar capillary (isothermal closed
   // dp/dt = −k(p² − pa²), k = πD⁴/(256 μ L V); p(t) = pa(1 + A e^(−2 pa k t))/(1 − A e^(−2 pa k t)).
   // The line's own volume is lumped half into the tank (plenum's documented choice), so the
   // closed form is evaluated with V = 1 L + πD²L/8; with V = 1 L exactly the reference
-  // numbers are p(100 s) = 262498.02 Pa, p(600 s) = 170397.16 Pa (references.md).
+  // numbers are p(100 s) = 262498.02 Pa, p(600 s) = 170397.16 Pa (docs/references.md).
   const D = 0.3e-3, L = 1, V = 1e-3, pa = 101325, p0 = 300e3, T = 293.15;
   const mu = 1.716e-5 * Math.pow(T / 273.15, 1.5) * (273.15 + 110.4) / (T + 110.4);
   const closed = (Veff: number, t: number): number => {
@@ -67,7 +67,7 @@ simulate: { duration: 20 s, sample: 20 ms, tolerance: 1e-10, method: implicit }
       checked++;
     });
     expect(checked).toBeGreaterThan(100);
-    // the worked number: at 600 kPa the formula gives 384.441 K (references.md)
+    // the worked number: at 600 kPa the formula gives 384.441 K (docs/references.md)
     expect(600e3 / (pi / Ti + (600e3 - pi) / (g * Tin))).toBeCloseTo(384.441, 3);
     expect(p[p.length - 1]).toBeGreaterThan(590e3);
   });
@@ -97,7 +97,7 @@ simulate: { duration: 10 s, sample: 5 ms, tolerance: 1e-10, method: implicit }
   });
 });
 
-describe('neo-Hookean pressure maximum seen in a transient (Treloar 1975; references.md)', () => {
+describe('neo-Hookean pressure maximum seen in a transient (Treloar 1975; docs/references.md)', () => {
   it('the snap-through event fires at stretch 7^(1/6) = 1.3830876 while a feed inflates a sphere', () => {
     const model = modelFromText(`
 format: 1
@@ -112,7 +112,7 @@ simulate: { duration: 3 s, sample: 10 ms, tolerance: 1e-10 }
     const ev = r.events.find((e) => e.what.includes('passes its pressure maximum'));
     expect(ev, JSON.stringify(r.events)).toBeDefined();
     expect(at(r, 'pod.stretch', ev!.t)).toBeCloseTo(Math.pow(7, 1 / 6), 5);
-    // the peak gauge is the published maximum 1.2394629 μ t0/r0 = 24.79 kPa (references.md)
+    // the peak gauge is the published maximum 1.2394629 μ t0/r0 = 24.79 kPa (docs/references.md)
     expect(r.chambers.pod.peak.gauge / (1.2394629 * 0.4e6 * 0.05)).toBeCloseTo(1, 6);
     // mass added equals the feed's total
     expect(r.mass.through_boundaries).toBeCloseTo(0.05e-3 * 3, 12);

@@ -104,8 +104,11 @@ cylinders:
     friction: { viscous: 60 N*s/m }
 lines:
   feed: { from: supply, to: c.cap, diameter: 6 mm, length: 0.5 m }
-simulate: { duration: 3 s, tolerance: 1e-9 }
+simulate: { duration: 3 s, tolerance: 1e-9, method: implicit }
 `));
+    // implicit: the line starts near choking (its flow limited by the gas's acceleration), so
+    // `auto` sees a mild problem at the start and picks the explicit method, which then crawls
+    // through the stiff rest of the laminar line at equilibrium
     const A = Math.PI * 0.025 ** 2 / 4;
     const want = (150e3 * A - 15 - 12) / 800;
     expect(want).toBeGreaterThan(0.05);

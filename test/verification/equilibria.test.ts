@@ -7,7 +7,7 @@
  * to 5 %. The model equations are the same, so plenum is held to much tighter limits here.
  *
  * The two-chamber criterion (Müller & Strehlow, Rubber and Rubber Balloons, Springer LNP 637,
- * 2004, from memory; see ../shared references): d(δm1)/dt = −G(1/C1 + 1/C2)·δm1 with
+ * 2004, from memory; docs/references.md): d(δm1)/dt = −G(1/C1 + 1/C2)·δm1 with
  * C = dm/dp = ((V + Vd)/(n p) + dV/dp)·ρ, n = 1 isothermal; a sphere has C < 0 exactly past its
  * pressure maximum. It is evaluated in this file from the neo-Hookean law and compressible
  * Hagen–Poiseuille, independently of plenum's code.

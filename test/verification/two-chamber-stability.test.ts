@@ -1,6 +1,6 @@
 /**
  * The two-chamber stability criterion (Müller & Strehlow, Rubber and Rubber Balloons, Springer
- * LNP 637, 2004, from memory; stated in ../shared/references.md): two chambers at equal
+ * LNP 637, 2004, from memory; stated in docs/references.md): two chambers at equal
  * pressure joined by a conductance G = ∂ṁ/∂Δp evolve as d(δm1)/dt = −G(1/C1 + 1/C2)·δm1 with
  * the mass capacitance C = dm/dp = (V/(n p) + dV/dp)·ρ (n = 1 isothermal). A sphere has C < 0
  * exactly past its pressure maximum, so two equal spheres there run away, and before it they
