@@ -25,6 +25,7 @@
  * output for the GBS method"; section numbers from memory); odex 2.0.4, a port of Hairer's
  * odex.f.
  */
+import { checkArguments } from './step-control.js';
 import { odexSolve, type OdexDense, type OdexOutput, type OdexRun } from './odex-core.js';
 import {
   zeroWork,
@@ -65,10 +66,7 @@ class Stalled {}
  */
 export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: IntegrateOptions = {}) => {
   const n = problem.n;
-  if (y0.length !== n || problem.atol.length !== n) {
-    throw new RangeError(`odex: y0 has ${y0.length} and atol ${problem.atol.length} entries, problem.n is ${n}`);
-  }
-  if (!Number.isFinite(t0) || !Number.isFinite(tEnd)) throw new RangeError('odex: t0 and tEnd must be finite');
+  checkArguments('odex', problem, t0, y0, tEnd);
   const work = zeroWork();
   const y = Float64Array.from(y0);
   let t = t0;
