@@ -56,6 +56,7 @@ export class Tracer {
   private readonly J: Float64Array;
   private readonly F: Float64Array;
   private readonly Fl: Float64Array;
+  private start: { x: Float64Array; point: TracePoint | null } | null = null;
 
   constructor(readonly prob: GroupProblem, readonly maxStep: number, readonly maxPoints: number) {
     this.n = prob.n;
@@ -162,7 +163,9 @@ export class Tracer {
     const nodes: Float64Array[] = [];
     const first = this.tangent(x0, null, sign);
     if (!first) return { points, nodes, why: 'no tangent at the start (singular equations)' };
-    const p0 = this.prob.point(x0);
+    // a branch is followed both ways from one start: its stability is taken once
+    const p0 = this.start?.x === x0 ? this.start.point : this.prob.point(x0, undefined, Number.NaN);
+    this.start = { x: x0, point: p0 };
     if (!p0) return { points, nodes, why: 'the start is outside the model' };
     let cur: Node = { x: x0, t: first.t, det: first.det, growth: p0.growth_rate ?? Number.NaN };
     points.push(p0);
@@ -185,12 +188,12 @@ export class Tracer {
         const w = (lb - cur.x[n]) / (l - cur.x[n]);
         const guess = cur.x.map((v, i) => v + w * (c.x[i] - v));
         const end = this.atParameter(guess, lb);
-        const pt = end ? this.prob.point(end, 'end') : null;
+        const pt = end ? this.prob.point(end, 'end', cur.growth) : null;
         if (pt && end && Math.abs(cur.x[n] - lb) > 1e-12) { points.push(pt); nodes.push(end); }
         why = `reached ${this.prob.param.vary} = ${+this.prob.param.value(lb).toPrecision(6)}${this.prob.param.unit ? ` ${this.prob.param.unit}` : ''}`;
         break;
       }
-      const pt = this.prob.point(c.x);
+      const pt = this.prob.point(c.x, undefined, cur.growth);
       if (!pt) { h *= 0.5; if (h < H_MIN) { why = 'the netlist is not valid beyond this value'; break; } continue; }
       if (Object.values(pt.chambers).some((ch) => (ch.stretch ?? 0) > MAX_STRETCH) || c.x.some((v, i) => i < n && v > Math.log(MAX_U))) {
         points.push(pt);
