@@ -4,6 +4,9 @@
  * branch points and stability changes by bisection along the arc (see continuation.ts).
  */
 import { DenseLu } from '../linalg/dense-lu.js';
+import { SparseLu } from '../linalg/sparse-lu.js';
+import { patternFromEntries, type SparsePattern } from '../linalg/sparse-pattern.js';
+import { SPARSE_STABILITY_MIN } from './rightmost.js';
 import { GroupProblem } from './trace-problem.js';
 import type { TracePoint } from './trace-types.js';
 
@@ -44,6 +47,51 @@ function augmented(n: number, J: Float64Array, Fl: Float64Array, t: Float64Array
   return sign;
 }
 
+/**
+ * The augmented system of a large group by sparse LU: the equations' jacobian has at most a full
+ * first row (the gas balance), a full first column (the pressure of the first chamber) and the
+ * diagonal (trace-problem.ts), bordered by ∂F/∂ℓ and the tangent. The minimum-degree order puts
+ * the two full rows last; pivots are static (sparse-lu.ts), and when one is too small the dense
+ * factorisation with partial pivoting takes over. The determinant's sign is that of the product
+ * of the pivots (a symmetric permutation leaves the determinant unchanged).
+ */
+class SparseAugmented {
+  private readonly pattern: SparsePattern;
+  private readonly values: Float64Array;
+  private readonly lu: SparseLu;
+
+  constructor(readonly n: number) {
+    const N = n + 1;
+    const rows: number[] = [];
+    const cols: number[] = [];
+    for (let j = 0; j < N; j++) { rows.push(0, n); cols.push(j, j); }
+    for (let i = 1; i < n; i++) { rows.push(i, i, i); cols.push(0, i, n); }
+    this.pattern = patternFromEntries(N, rows, cols);
+    this.values = new Float64Array(this.pattern.rowPtr[N]);
+    this.lu = new SparseLu(this.pattern);
+  }
+
+  /** As `augmented`; null when the static pivots fail (the caller then factorises densely). */
+  solve(J: Float64Array, Fl: Float64Array, t: Float64Array, rhs: Float64Array): number | null {
+    const n = this.n;
+    const v = this.values;
+    const { rowPtr, colIdx } = this.pattern;
+    for (let i = 0; i <= n; i++) {
+      for (let a = rowPtr[i]; a < rowPtr[i + 1]; a++) {
+        const j = colIdx[a];
+        v[a] = i === n ? t[j] : j === n ? Fl[i] : J[i * n + j];
+      }
+    }
+    // entries of J outside the pattern must be zero, or the sparse solve would be of another matrix
+    for (let i = 1; i < n; i++) {
+      for (let j = 1; j < n; j++) if (j !== i && J[i * n + j] !== 0) return null;
+    }
+    if (!this.lu.factor(v)) return null;
+    this.lu.solve(rhs);
+    return this.lu.negativePivots() % 2 === 0 ? 1 : -1;
+  }
+}
+
 function norm(v: Float64Array): number {
   return Math.sqrt(v.reduce((a, x) => a + x * x, 0));
 }
@@ -57,6 +105,7 @@ export class Tracer {
   private readonly F: Float64Array;
   private readonly Fl: Float64Array;
   private start: { x: Float64Array; point: TracePoint | null } | null = null;
+  private readonly sparse: SparseAugmented | null;
 
   constructor(readonly prob: GroupProblem, readonly maxStep: number, readonly maxPoints: number) {
     this.n = prob.n;
@@ -64,6 +113,13 @@ export class Tracer {
     this.J = new Float64Array(this.n * this.n);
     this.F = new Float64Array(this.n);
     this.Fl = new Float64Array(this.n);
+    this.sparse = this.n + 1 >= SPARSE_STABILITY_MIN ? new SparseAugmented(this.n) : null;
+  }
+
+  /** Solves the augmented system (sparse for large groups, else or when that fails dense); the determinant's sign. */
+  private augmented(J: Float64Array, Fl: Float64Array, t: Float64Array, rhs: Float64Array): number {
+    const s = this.sparse?.solve(J, Fl, t, rhs);
+    return s ?? augmented(this.n, J, Fl, t, rhs, this.lu);
   }
 
   /** Tangent at a solution x, oriented along `prev` (or with ℓ increasing × sign); det sign too. */
@@ -73,12 +129,12 @@ export class Tracer {
     const c = prev ?? (() => { const e = new Float64Array(n + 1); e[n] = 1; return e; })();
     const z = new Float64Array(n + 1);
     z[n] = 1;
-    let det = augmented(n, this.J, this.Fl, c, z, this.lu);
+    let det = this.augmented(this.J, this.Fl, c, z);
     if (det === 0) {
       // at a fold the ℓ direction is tangent-orthogonal: orient by a fixed generic vector
       const g = new Float64Array(n + 1).map((_, i) => 1 + 0.1 * i);
       z.fill(0); z[n] = 1;
-      det = augmented(n, this.J, this.Fl, g, z, this.lu);
+      det = this.augmented(this.J, this.Fl, g, z);
       if (det === 0) return null;
     }
     const s = norm(z);
@@ -86,7 +142,7 @@ export class Tracer {
     if (!prev && z[n] * sign < 0) for (let i = 0; i <= n; i++) z[i] = -z[i];
     // the determinant with the tangent itself as the last row
     const w = new Float64Array(n + 1);
-    const dsign = augmented(n, this.J, this.Fl, z, w, this.lu);
+    const dsign = this.augmented(this.J, this.Fl, z, w);
     return { t: z, det: dsign };
   }
 
@@ -107,7 +163,7 @@ export class Tracer {
       let c = 0;
       for (let i = 0; i < N; i++) c += t[i] * (y[i] - pred[i]);
       rhs[n] = -c;
-      if (augmented(n, J, Fl, t, rhs, this.lu) === 0) return null;
+      if (this.augmented(J, Fl, t, rhs) === 0) return null;
       for (let i = 0; i < N; i++) y[i] += rhs[i];
       if (!this.prob.eval(y, F, J)) return null;
       const r = F.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
