@@ -19,6 +19,8 @@
  */
 import type { NetworkSystem } from '../assemble/system.js';
 import { eigenvalues, restrictToComplement } from '../linalg/eigen.js';
+import { scatterDense } from '../linalg/sparse-pattern.js';
+import { SPARSE_STABILITY_MIN, sparseScaledJacobian } from './rightmost.js';
 
 /** Relative central-difference increment: round-off ε/h and truncation h² balance near ε^(1/3). */
 const FD_STEP = 1e-6;
@@ -111,9 +113,25 @@ export function reducedSpectrum(J: Float64Array, n: number, conserved: number[][
   };
 }
 
+/**
+ * The scaled jacobian, dense. For many coordinates by coloured differences over the reserved
+ * pattern (rightmost.ts): the same entries (columns that share no row are perturbed together,
+ * so each entry comes from the same two evaluations of its own row) for a handful of rhs
+ * evaluations instead of two per coordinate.
+ */
+function jacobianOf(sys: NetworkSystem, L: Linearisation): Float64Array {
+  const n = L.coords.length;
+  if (n < SPARSE_STABILITY_MIN) return scaledJacobian(sys, L);
+  const sp = sparseScaledJacobian(sys, L);
+  if (!sp) return new Float64Array(n * n).fill(Number.NaN);
+  const J = new Float64Array(n * n);
+  scatterDense(sp.pattern, sp.values, J);
+  return J;
+}
+
 /** Linearises `sys` at a state and classifies it. */
 export function stabilityAt(sys: NetworkSystem, L: Linearisation): Stability {
-  const J = scaledJacobian(sys, L);
+  const J = jacobianOf(sys, L);
   for (const v of J) {
     if (!Number.isFinite(v)) return { eigenvalues: [], growth_rate: Number.NaN, time_constant: null, stability: 'marginal', ok: false };
   }

@@ -107,7 +107,10 @@ export class Tracer {
   private start: { x: Float64Array; point: TracePoint | null } | null = null;
   private readonly sparse: SparseAugmented | null;
 
-  constructor(readonly prob: GroupProblem, readonly maxStep: number, readonly maxPoints: number) {
+  /** Set when the deadline stopped a branch. */
+  timedOut = false;
+
+  constructor(readonly prob: GroupProblem, readonly maxStep: number, readonly maxPoints: number, readonly deadline = Infinity) {
     this.n = prob.n;
     this.lu = new DenseLu(this.n + 1);
     this.J = new Float64Array(this.n * this.n);
@@ -229,6 +232,7 @@ export class Tracer {
     let h = Math.min(this.maxStep, 0.01);
     let why = `reached ${this.maxPoints} points`;
     while (points.length < this.maxPoints) {
+      if (performance.now() > this.deadline) { this.timedOut = true; why = 'the time budget ran out (--max-wall)'; break; }
       const c = this.correct(cur.x, cur.t, h);
       const tn = c ? this.tangent(c.x, cur.t, 1) : null;
       const turn = tn ? tn.t.reduce((a, v, i) => a + v * cur.t[i], 0) : -1;
