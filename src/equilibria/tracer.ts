@@ -106,6 +106,8 @@ export class Tracer {
   private readonly Fl: Float64Array;
   private start: { x: Float64Array; point: TracePoint | null } | null = null;
   private readonly sparse: SparseAugmented | null;
+  private work: { Fl: Float64Array; F: Float64Array; J: Float64Array } | null = null;
+  private luN: DenseLu | null = null;
 
   /** Set when the deadline stopped a branch. */
   timedOut = false;
@@ -156,9 +158,8 @@ export class Tracer {
     const y = new Float64Array(N);
     for (let i = 0; i < N; i++) y[i] = x[i] + h * t[i];
     const pred = Float64Array.from(y);
-    const Fl = new Float64Array(n);
-    const F = new Float64Array(n);
-    const J = new Float64Array(n * n);
+    // the corrector's own buffers (n² doubles: kept, not allocated at every call)
+    const { Fl, F, J } = (this.work ??= { Fl: new Float64Array(n), F: new Float64Array(n), J: new Float64Array(n * n) });
     if (!this.prob.eval(y, F, J) || !this.prob.dl(y, F, Fl)) return null;
     for (let it = 1; it <= NEWTON_MAX; it++) {
       const rhs = new Float64Array(N);
@@ -181,9 +182,8 @@ export class Tracer {
     const n = this.n;
     const y = Float64Array.from(guess);
     y[n] = l;
-    const F = new Float64Array(n);
-    const J = new Float64Array(n * n);
-    const lu = new DenseLu(n);
+    const { F, J } = (this.work ??= { Fl: new Float64Array(n), F: new Float64Array(n), J: new Float64Array(n * n) });
+    const lu = (this.luN ??= new DenseLu(n));
     for (let it = 0; it < 30; it++) {
       if (!this.prob.eval(y, F, J)) return null;
       const r = F.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
