@@ -3,6 +3,7 @@
  * coordinates from many starts (Farrell, Birkisson & Funke, SIAM J. Sci. Comput. 37 (2015)
  * A2026; shifted operator with p = 2, σ = 1). See equilibria.ts for the choice of starts.
  */
+import { seededRandom } from '../linalg/arnoldi.js';
 import { DenseLu } from '../linalg/dense-lu.js';
 import { solveVolume } from '../model/volume.js';
 import type { WallPoint } from '../physics/wall.js';
@@ -13,18 +14,6 @@ import { chamberAt, segmentOfVolume, type AtP, type RestChamber } from './rest.j
 
 /** Ordered starts (after the hints) tried whatever the deadline. */
 const MIN_STARTS = 8;
-
-/** Deterministic pseudo-random numbers in [0, 1) (mulberry32). */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Pressure (Pa abs), volume and dp/dm of a chamber holding mass m; NaN outside its law. */
 export function pressureOfMass(ch: RestChamber, m: number, pa: number, s: WallPoint, guess: number): { p: number; V: number; dpdm: number } {
@@ -85,7 +74,7 @@ export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts
   const d = new Float64Array(n);
   const guess = chs.map((c) => c.wall.V0);
   const found: Float64Array[] = [];
-  const rng = random(20250601);
+  const rng = seededRandom(20250601);
 
   /** Residual at u (masses / M); false outside the laws. */
   const residual = (u: Float64Array, withJ: boolean): boolean => {

@@ -27,15 +27,15 @@ export interface RitzValues {
   ok: boolean;
 }
 
-/** Deterministic pseudo-random numbers in [−1, 1) (mulberry32), for the start vector. */
-function noise(seed: number): () => number {
+/** Deterministic pseudo-random numbers in [0, 1) (mulberry32): start vectors, search starts. */
+export function seededRandom(seed: number): () => number {
   let a = seed >>> 0;
   return () => {
     a = (a + 0x6d2b79f5) >>> 0;
     let t = a;
     t = Math.imul(t ^ (t >>> 15), t | 1);
     t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return (((t ^ (t >>> 14)) >>> 0) / 4294967296) * 2 - 1;
+    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
   };
 }
 
@@ -57,9 +57,9 @@ export function shiftInvertArnoldi(
   const m = Math.max(1, Math.min(steps, n));
   const V: Float64Array[] = [];
   const H = new Float64Array((m + 1) * m); // (m+1)×m, row-major with row length m
-  const rnd = noise(seed);
+  const rnd = seededRandom(seed);
   const v0 = new Float64Array(n);
-  for (let i = 0; i < n; i++) v0[i] = rnd();
+  for (let i = 0; i < n; i++) v0[i] = 2 * rnd() - 1;
   project?.(v0);
   const n0 = Math.sqrt(dot(v0, v0));
   const fail: RitzValues = { re: new Float64Array(0), im: new Float64Array(0), steps: 0, ok: false };
