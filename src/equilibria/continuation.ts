@@ -85,7 +85,9 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   const budget = { maxWall, timedOut: false };
   if (hasLoopStates(model)) {
     // controllers and regulators: the rest state followed over the parameter, stability watched
-    const branches = traceLoop(param, valves, notes);
+    const loopBudget = { deadline, timedOut: false };
+    const branches = traceLoop(param, valves, notes, loopBudget);
+    budget.timedOut = loopBudget.timedOut;
     notes.push('controllers or regulators: the rest state followed by Newton at sampled values of the parameter, a change of stability located by bisection');
     return traceResult(model, param, valves, branches, notes, budget);
   }
