@@ -2,15 +2,16 @@
  * `plenum run NETLIST`: simulate, print a summary, write CSV/JSON.
  *
  * Only light modules are imported up front: the worker thread is started on the netlist text
- * first, and the reader, the model and the reports are loaded while it starts (for a small
- * netlist the start-up is most of the run; docs/dev-performance.md).
+ * first, and the reports are loaded while it starts (for a small netlist the start-up is most of
+ * the run; docs/dev-performance.md). The netlist is read once, by the worker (run-job.ts): this
+ * thread prints its diagnostics or warnings, and never holds a syntax tree or a model.
  */
 import { rmSync } from 'node:fs';
 import type { RunResult } from '../transient/results.js';
 import { checkOutputPaths, checkPlotsDir, samePath, stagingPath, toStdout, UsageError, type OutputFile } from './io.js';
 import { netlistName, readNetlistFile } from './netlist-file.js';
 import { progressLine, simulationProgress } from './progress.js';
-import { interruptOnSigint, simulateInterruptibly, startSimulation, type Interrupter } from './run-thread.js';
+import { interruptOnSigint, runnable, startSimulation, type Interrupter } from './run-thread.js';
 
 export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
 
@@ -34,40 +35,39 @@ export async function runCommand(file: string, opts: RunOptions): Promise<number
 async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupter): Promise<number> {
   const line = progressLine(opts.quiet);
   const progress = line.active ? (t: number, tEnd: number): void => line.update(simulationProgress(t, tEnd)) : undefined;
-  // The worker starts on the text while this thread reads it too (see startSimulation). The
-  // text is read once: a netlist from a pipe (`-`, /dev/stdin) cannot be read twice.
+  // The text is read once here (a netlist from a pipe, `-` or /dev/stdin, cannot be read
+  // twice) and handed to the worker, which alone reads it as a netlist
   const text = readNetlistFile(file);
+  if ('tooLarge' in text) return (await import('./loaded.js')).netlistFailed(file, [text.tooLarge]);
   // a CSV file is written by the simulating thread as the samples are taken, into the temporary
   // file that is renamed into place with the other outputs (csv-file.ts); standard output, a
   // device or a pipe gets the text at the end
   const csvTemp = opts.csv && opts.csv !== '-' ? stagingPath(opts.csv, '--csv') : undefined;
   const keepTrace = Boolean((opts.csv && !csvTemp) || opts.plots || opts.baseline);
-  const started = 'text' in text ? startSimulation(text.text, netlistName(file), stop, progress, keepTrace, csvTemp) : undefined;
+  const started = startSimulation({
+    source: text.text, file: netlistName(file), keepTrace, csvPath: csvTemp,
+    csvText: Boolean(opts.csv && !csvTemp), report: opts.plots ? 'plots' : undefined,
+  }, stop, progress);
+  // loaded while the worker starts and reads
+  const printing = import('./loaded.js');
+  const reports = Promise.all([import('../report/table.js'), import('../report/json.js'), import('../report/csv.js'), import('../report/baseline.js')]);
+  reports.catch(() => {}); // awaited below unless the netlist is refused
   let handedOver = false;
   // a second Ctrl-C ends the process at once: the partial CSV must not be left behind
   const onExit = (): void => { if (csvTemp) rmSync(csvTemp, { force: true }); };
   if (csvTemp) process.once('exit', onExit);
   try {
-    let model;
     try {
-      const { loadOrExit } = await import('./load.js');
-      model = loadOrExit(file, text);
-      if (opts.csv && !csvTemp) {
-        // the CSV text of the history costs memory too: refuse what cannot be written
-        const { formatDiagnostic, traceMemoryDiagnostic } = await import('../index.js');
-        const d = traceMemoryDiagnostic(model, { csv: true });
-        if (d) {
-          process.stderr.write(formatDiagnostic(d) + '\n');
-          throw new UsageError(`1 error in ${file}; nothing was simulated or written`);
-        }
-      }
+      const loaded = await started.loaded();
+      (await printing).acceptLoaded(file, loaded);
+      if (!runnable(loaded)) throw new Error('the worker refused the run without saying why');
     } catch (e) {
-      await started?.cancel();
+      await started.cancel();
       throw e;
     }
-    const result = await (started ? started.result(model) : simulateInterruptibly(model, stop, progress));
+    const { result, report } = await started.result();
     line.clear();
-    const { baselineJson, resultJson, summaryText, traceCsv } = await import('../index.js');
+    const [{ summaryText }, { resultJson }, { traceCsv }, { baselineJson }] = await reports;
 
     const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
     if (!opts.quiet) (stdoutTaken ? process.stderr : process.stdout).write(summaryText(result));
@@ -83,7 +83,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     else add(opts.csv, () => traceCsv(result.trace), '--csv');
     add(opts.baseline, () => baselineJson(result), '--baseline');
     handedOver = true; // writeOutputs removes the staged file if anything fails
-    (await import('./report.js')).writeWithPlots(files, opts.plots, file, model, result);
+    (await import('./plots.js')).writeWithPlots(files, opts.plots, file, report ? { ...report, result } : undefined);
     if (stdout !== undefined) process.stdout.write(stdout);
     return finish(result, opts);
   } finally {
