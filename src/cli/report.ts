@@ -1,21 +1,18 @@
 /**
  * `plenum report NETLIST --out FILE.html`: simulate and write one self-contained HTML report.
- * Also the writer of `--plots DIR` (one SVG file a figure), shared with `plenum run`.
- * Nothing is written when the netlist is invalid (exit 2); a run that stops early still gets
- * its report, saying so (exit 3).
+ * The netlist is read, simulated and the report made by the simulating thread (run-job.ts);
+ * this thread prints the diagnostics and writes the report and the figures of `--plots DIR`
+ * (plots.ts) together. Nothing is written when the netlist is invalid (exit 2); a run that
+ * stops early still gets its report, saying so (exit 3).
  */
 import { formatDiagnostic } from '../diag/diagnostic.js';
-import { reportHtml } from '../report/html.js';
-import { summaryText } from '../report/table.js';
 import { readText } from './study-io.js';
 import { acceptLoaded, netlistFailed } from './loaded.js';
 import { readNetlistFile, netlistName } from './netlist-file.js';
 import { checkOutputPaths, checkPlotsDir, toStdout, UsageError } from './io.js';
 import { progressLine, simulationProgress } from './progress.js';
-import { plotFiles, writeWithPlots } from './plots.js';
+import { writeWithPlots } from './plots.js';
 import { interruptOnSigint, runnable, startSimulation } from './run-thread.js';
-
-export { checkPlotsDir, plotFiles, writeWithPlots };
 
 export interface ReportOptions {
   out?: string;
@@ -51,13 +48,11 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
       unreadable = e;
     }
     const line = progressLine(opts.quiet);
-    const started = startSimulation({ source: text.text, file: netlistName(file), keepTrace: true, report: 'report', recordings }, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
-    let netlistWarnings: string[];
+    const started = startSimulation({ source: text.text, file: netlistName(file), make: { summary: !opts.quiet, html: { version: opts.version }, plots: Boolean(opts.plots) }, recordings }, stop, line.active ? (t, tEnd) => line.update(simulationProgress(t, tEnd)) : undefined);
     try {
       const loaded = await started.loaded();
       acceptLoaded(file, loaded);
       if (!loaded.ok) throw new Error('unreachable: acceptLoaded refuses an invalid netlist');
-      netlistWarnings = loaded.warnings.map(formatDiagnostic);
       if (unreadable) throw unreadable;
       if (loaded.recordingErrors?.length) {
         const n = loaded.recordingErrors.length;
@@ -69,22 +64,20 @@ export async function reportCommand(file: string, opts: ReportOptions): Promise<
       await started.cancel();
       throw e;
     }
-    const { result, report } = await started.result();
-    if (!report) throw new Error('the simulating thread sent no report input');
+    const { verdict, texts, figures } = await started.result();
+    const html = texts.html;
+    if (html === undefined) throw new Error('the simulating thread sent no report');
     line.clear();
-    if (!opts.quiet) log.write(summaryText(result));
-    const html = reportHtml({ ...report, result, version: opts.version, netlistWarnings });
+    if (texts.summary !== undefined) log.write(texts.summary);
     // `--out -`: the HTML goes to standard output (the summary went to stderr)
     if (opts.out === '-') process.stdout.write(html);
-    // the figures of --plots are the report's own without its rest states (as they always were)
-    const figures = { ...report, result, equilibria: undefined, equilibriaNote: undefined, equilibriaGas: undefined };
     const plots = writeWithPlots(opts.out === '-' ? [] : [{ path: opts.out, text: html, what: '--out' }], opts.plots, file, figures);
     if (!opts.quiet && opts.out !== '-') log.write(`\nreport written to ${opts.out}${plots ? `; ${plots} figures in ${opts.plots}` : ''}\n`);
-    if (result.status === 'failed') {
-      process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s; the report covers the run up to then: ${result.message}\n`);
+    if (verdict.status === 'failed') {
+      process.stderr.write(`plenum: the simulation stopped early at t = ${verdict.end.toPrecision(6)} s; the report covers the run up to then: ${verdict.message}\n`);
       return 3;
     }
-    return result.expectations.every((e) => e.passed) ? 0 : 1;
+    return verdict.passed ? 0 : 1;
   } finally {
     stop.dispose();
   }

@@ -1,25 +1,31 @@
 /**
  * The simulating side of `plenum run` and `plenum report`: the only reading of the netlist in
  * those commands. It reads, checks and builds the netlist, reports its diagnostics or warnings
- * (`load`), then simulates and makes what else needs the model (`run`): the report's topology,
- * wall curves, rest states and recording overlays. The main thread keeps only the text, the
- * messages and the result, never a syntax tree or a model: reading a netlist on both threads
- * cost 0.65 s of CPU and some 100 MB at 10 000 chambers (docs/dev-performance.md).
+ * (`load`), then simulates and makes the output texts from the result and the model (`run`):
+ * summary, JSON, CSV, baseline, figures, the HTML report with its rest states and recording
+ * overlays. The main thread keeps only the netlist's text and these texts, never a syntax tree,
+ * a model or a result, and writes the outputs together: reading a netlist on both threads cost
+ * 0.65 s of CPU and some 100 MB at 10 000 chambers, and a copy of the result on the main thread
+ * another 50 MB at the end of the run (docs/dev-performance.md).
  *
  * Runs in the worker thread (run-worker.ts), or in the main thread when the bundled worker is
  * missing (running from the TypeScript sources); the messages are the same either way.
  */
+import { formatDiagnostic } from '../diag/diagnostic.js';
 import type { Model } from '../model/types.js';
 import { loadModelFor } from '../transient/load.js';
 import type { MeasuredOverlay } from '../transient/report-input.js';
+import type { RunResult } from '../transient/results.js';
 import { traceMemoryDiagnostic } from '../transient/trace-memory.js';
 import { simulate } from '../transient/transient.js';
 import { CsvFile } from './csv-file.js';
-import { STOP_FLAG, type Finished, type Loaded, type ReportParts, type RunJobData, type RunJobMessage } from './run-protocol.js';
+import { STOP_FLAG, type Finished, type Loaded, type RunJobData, type RunJobMessage } from './run-protocol.js';
 
 export class RunJob {
   private model: Model | undefined;
   private measured: MeasuredOverlay[] | undefined;
+  /** The netlist's warnings, formatted (the HTML report lists them). */
+  private warnings: string[] = [];
 
   constructor(private readonly data: RunJobData, private readonly post: (m: RunJobMessage) => void) {}
 
@@ -30,7 +36,8 @@ export class RunJob {
     if (!m.ok) return { ok: false, diagnostics: m.diagnostics };
     this.model = m.value;
     const loaded: Loaded = { ok: true, warnings: m.warnings };
-    if (d.csvText) {
+    this.warnings = m.warnings.map(formatDiagnostic);
+    if (d.make.csv) {
       // the CSV text of the history costs memory too: refuse what cannot be written
       const refused = traceMemoryDiagnostic(m.value, { csv: true, heapBytes: d.heapBytes });
       if (refused) loaded.csvRefused = refused;
@@ -47,9 +54,10 @@ export class RunJob {
     return loaded;
   }
 
-  /** Simulates the model `load` built; the result (and the report's parts) come back as one message. */
+  /** Simulates the model `load` built and makes the texts asked for. */
   async run(): Promise<Finished> {
     const d = this.data;
+    const make = d.make;
     const model = this.model;
     if (!model) throw new Error('RunJob.run before a successful load');
     this.model = undefined;
@@ -58,20 +66,38 @@ export class RunJob {
     const result = simulate(model, {
       samples: csv,
       // a trace nobody writes records only what the outcome analysis reads (transient/samples.ts)
-      record: d.keepTrace === false ? 'outcomes' : 'all',
+      record: make.csv || make.baseline || make.plots || make.html ? 'all' : 'outcomes',
       interrupt: () => (Atomics.load(flag, STOP_FLAG) ? 'interrupted (Ctrl-C)' : null),
       progress: d.progress ? (t, tEnd) => this.post({ kind: 'progress', t, tEnd }) : undefined,
     });
     const csvError = csv?.close();
-    let report: ReportParts | undefined;
-    if (d.report) {
-      const { reportInput } = await import('../transient/report-input.js');
-      const rest = d.report === 'report' ? (await import('./rest-marks.js')).restMarks(model, result) : {};
-      const { result: _, ...parts } = reportInput(model, result, { measured: this.measured, ...rest });
-      report = parts;
-    }
-    // the trace's values stay here unless the caller writes them (see RunJobData.keepTrace)
-    const sent = d.keepTrace === false ? { ...result, trace: { ...result.trace, times: [], values: [] } } : result;
-    return { result: sent, ...(csvError ? { csvError } : {}), ...(report ? { report } : {}) };
+    const texts: Finished['texts'] = {};
+    if (make.summary) texts.summary = (await import('../report/table.js')).summaryText(result);
+    if (make.json) texts.json = (await import('../report/json.js')).resultJson(result);
+    if (make.csv) texts.csv = (await import('../report/csv.js')).traceCsv(result.trace);
+    if (make.baseline) texts.baseline = (await import('../report/baseline.js')).baselineJson(result);
+    const figures = make.plots || make.html ? await this.report(model, result, texts) : undefined;
+    return { verdict: verdict(result), ...(csvError ? { csvError } : {}), texts, ...(figures ? { figures } : {}) };
   }
+
+  /** The HTML report (into `texts`) and the figures of --plots, from the model and its run. */
+  private async report(model: Model, result: RunResult, texts: Finished['texts']): Promise<Finished['figures']> {
+    const make = this.data.make;
+    const { reportInput } = await import('../transient/report-input.js');
+    const input = reportInput(model, result, { measured: this.measured });
+    if (make.html) {
+      const rest = (await import('./rest-marks.js')).restMarks(model, result);
+      const { reportHtml } = await import('../report/html.js');
+      texts.html = reportHtml({ ...input, ...rest, version: make.html.version, netlistWarnings: this.warnings });
+    }
+    if (!make.plots) return undefined;
+    // the figures of --plots are the report's without its rest states
+    const { reportFigures } = await import('../report/plots.js');
+    return reportFigures(input, { standalone: true }).map((f) => ({ id: f.id, svg: f.svg }));
+  }
+}
+
+/** How a run ended, for the command's message and exit code. */
+function verdict(r: RunResult): Finished['verdict'] {
+  return { status: r.status, end: r.end, message: r.message, passed: r.expectations.every((e) => e.passed) };
 }

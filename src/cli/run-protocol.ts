@@ -4,7 +4,6 @@
  * anything heavy.
  */
 import type { Diagnostic } from '../diag/diagnostic.js';
-import type { ReportInput } from '../transient/report-input.js';
 import type { RunResult } from '../transient/results.js';
 
 /** Index of the stop flag in the shared control array. */
@@ -17,23 +16,28 @@ export interface RunJobData {
   control: SharedArrayBuffer;
   /** Post progress messages. */
   progress: boolean;
-  /**
-   * Send the sampled trace back (a CSV text, plots, baselines, the report need it). Without,
-   * only its channel list is sent: copying a large trace between threads costs seconds (10 000
-   * chambers: 1.4 s).
-   */
-  keepTrace?: boolean;
   /** A new file to write the CSV trace into as the samples are taken (see csv-file.ts). */
   csvPath?: string;
   /** The main thread's heap limit, bytes: the memory refusal is judged against it. */
   heapBytes: number;
-  /** The main thread will make the CSV text of the whole history (standard output, a device, a pipe). */
-  csvText?: boolean;
   /**
-   * What of a report to make beside the result: `plots` the figures' input (`run --plots`),
-   * `report` also the rest states and the recordings' overlays (`plenum report`).
+   * The texts to make from the result. They are made here, where the result is, and only they
+   * cross to the main thread: a copy of a large result was the peak of a run's memory (10 000
+   * chambers: some 50 MB more on the main thread's heap, while the simulating thread still held
+   * its own).
    */
-  report?: 'plots' | 'report';
+  make: {
+    /** The printed summary. */
+    summary?: boolean;
+    json?: boolean;
+    /** The CSV text of the trace (standard output, a device, a pipe; a file is written as the samples come: `csvPath`). */
+    csv?: boolean;
+    baseline?: boolean;
+    /** The figures of `--plots`, one SVG text each. */
+    plots?: boolean;
+    /** The HTML report of `plenum report` (with the rest states and the recordings' overlays). */
+    html?: { version?: string };
+  };
   /** Bench recordings to overlay (`report --data`), read by the main thread. */
   recordings?: { file: string; text: string }[];
 }
@@ -44,7 +48,7 @@ export type Loaded =
   | {
     ok: true;
     warnings: Diagnostic[];
-    /** The run's history cannot be held with its CSV text (only with `csvText`). */
+    /** The run's history cannot be held with its CSV text (only with `make.csv`). */
     csvRefused?: Diagnostic;
     /** Problems of the recordings (`report --data`). */
     recordingErrors?: Diagnostic[];
@@ -52,14 +56,23 @@ export type Loaded =
     recordingNotes?: string[];
   };
 
-/** What a report needs beside the run's result (made where the model is). */
-export type ReportParts = Omit<ReportInput, 'result'>;
+/** How a run ended, for the command's message and exit code. */
+export interface Verdict {
+  status: RunResult['status'];
+  end: number;
+  message: string;
+  /** Every expectation passed. */
+  passed: boolean;
+}
 
 export interface Finished {
-  result: RunResult;
+  verdict: Verdict;
   /** The first write error of the CSV file (e.g. ENOSPC). */
   csvError?: string;
-  report?: ReportParts;
+  /** The texts asked for in `make`. */
+  texts: { summary?: string; json?: string; csv?: string; baseline?: string; html?: string };
+  /** The figures of `--plots` (`make.plots`). */
+  figures?: { id: string; svg: string }[];
 }
 
 export type RunJobMessage =

@@ -7,10 +7,10 @@
  * thread prints its diagnostics or warnings, and never holds a syntax tree or a model.
  */
 import { rmSync } from 'node:fs';
-import type { RunResult } from '../transient/results.js';
 import { checkOutputPaths, checkPlotsDir, samePath, stagingPath, toStdout, UsageError, type OutputFile } from './io.js';
 import { netlistName, readNetlistFile } from './netlist-file.js';
 import { progressLine, simulationProgress } from './progress.js';
+import type { Verdict } from './run-protocol.js';
 import { interruptOnSigint, runnable, startSimulation, type Interrupter } from './run-thread.js';
 
 export interface RunOptions { csv?: string; json?: string; quiet?: boolean; /** Directory for one SVG file a figure. */ plots?: string; /** Compact trace and summary for `plenum diff`. */ baseline?: string }
@@ -43,15 +43,16 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   // file that is renamed into place with the other outputs (csv-file.ts); standard output, a
   // device or a pipe gets the text at the end
   const csvTemp = opts.csv && opts.csv !== '-' ? stagingPath(opts.csv, '--csv') : undefined;
-  const keepTrace = Boolean((opts.csv && !csvTemp) || opts.plots || opts.baseline);
+  const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
+  // the texts are made by the simulating thread (run-job.ts); this one writes them together
   const started = startSimulation({
-    source: text.text, file: netlistName(file), keepTrace, csvPath: csvTemp,
-    csvText: Boolean(opts.csv && !csvTemp), report: opts.plots ? 'plots' : undefined,
+    source: text.text, file: netlistName(file), csvPath: csvTemp,
+    make: { summary: !opts.quiet, json: Boolean(opts.json), csv: Boolean(opts.csv && !csvTemp), baseline: Boolean(opts.baseline), plots: Boolean(opts.plots) },
   }, stop, progress);
   // loaded while the worker starts and reads
   const printing = import('./loaded.js');
-  const reports = Promise.all([import('../report/table.js'), import('../report/json.js'), import('../report/csv.js'), import('../report/baseline.js')]);
-  reports.catch(() => {}); // awaited below unless the netlist is refused
+  const writing = import('./plots.js');
+  writing.catch(() => {}); // awaited below unless the netlist is refused
   let handedOver = false;
   // a second Ctrl-C ends the process at once: the partial CSV must not be left behind
   const onExit = (): void => { if (csvTemp) rmSync(csvTemp, { force: true }); };
@@ -65,38 +66,35 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
       await started.cancel();
       throw e;
     }
-    const { result, report } = await started.result();
+    const { verdict, texts, figures } = await started.result();
     line.clear();
-    const [{ summaryText }, { resultJson }, { traceCsv }, { baselineJson }] = await reports;
-
-    const stdoutTaken = toStdout({ '--csv': opts.csv, '--json': opts.json, '--baseline': opts.baseline });
-    if (!opts.quiet) (stdoutTaken ? process.stderr : process.stdout).write(summaryText(result));
+    if (texts.summary !== undefined) (stdoutTaken ? process.stderr : process.stdout).write(texts.summary);
     // every output is made first and written together: a failure leaves none of them written
     const files: OutputFile[] = [];
     let stdout: string | undefined;
-    const add = (path: string | undefined, make: () => string, what: string): void => {
-      if (!path) return;
-      if (path === '-') stdout = make(); else files.push({ path, text: make(), what });
+    const add = (path: string | undefined, text: string | undefined, what: string): void => {
+      if (!path || text === undefined) return;
+      if (path === '-') stdout = text; else files.push({ path, text, what });
     };
-    add(opts.json, () => resultJson(result), '--json');
+    add(opts.json, texts.json, '--json');
     if (csvTemp) files.push({ path: opts.csv!, staged: csvTemp, what: '--csv' });
-    else add(opts.csv, () => traceCsv(result.trace), '--csv');
-    add(opts.baseline, () => baselineJson(result), '--baseline');
+    else add(opts.csv, texts.csv, '--csv');
+    add(opts.baseline, texts.baseline, '--baseline');
     handedOver = true; // writeOutputs removes the staged file if anything fails
-    (await import('./plots.js')).writeWithPlots(files, opts.plots, file, report ? { ...report, result } : undefined);
+    (await writing).writeWithPlots(files, opts.plots, file, figures);
     if (stdout !== undefined) process.stdout.write(stdout);
-    return finish(result, opts);
+    return finish(verdict, opts);
   } finally {
     process.off('exit', onExit);
     if (csvTemp && !handedOver) rmSync(csvTemp, { force: true });
   }
 }
 
-function finish(result: RunResult, opts: RunOptions): number {
+function finish(result: Verdict, opts: RunOptions): number {
   if (result.status === 'failed') {
     const written = [opts.json, opts.csv, opts.baseline].some((o) => o && o !== '-') ? '; the results up to then were written' : '';
     process.stderr.write(`plenum: the simulation stopped early at t = ${result.end.toPrecision(6)} s${written}: ${result.message}\n`);
     return 3;
   }
-  return result.expectations.every((e) => e.passed) ? 0 : 1;
+  return result.passed ? 0 : 1;
 }
