@@ -13,6 +13,8 @@ export type { NetlistDoc } from './netlist/types.js';
 export type { Model } from './model/types.js';
 export type { RunResult, Trace, ExpectationResult, ChamberSummary, LineSummary, ValveSummary, RunStats } from './transient/results.js';
 export type { RunFault } from './transient/results.js';
+/** Reads and builds in one go; diagnostics from both stages, warnings kept. */
+export { loadModel } from './transient/load.js';
 export { readNetlist } from './netlist/read.js';
 export { netlistJsonSchema } from './netlist/schema.js';
 export { buildModel } from './model/build.js';
@@ -56,5 +58,3 @@ export { eigenvalues } from './linalg/eigen.js';
 export { equilibriaText, equilibriaJson, traceText, traceJson, traceBranchesCsv } from './report/equilibria.js';
 
 export { traceMemory, traceMemoryDiagnostic } from './transient/trace-memory.js';
-/** Reads and builds in one go; diagnostics from both stages, warnings kept. */
-export { loadModel } from './transient/load.js';
