@@ -18,6 +18,10 @@ import type { MeasuredOverlay } from '../transient/report-input.js';
 import type { RunResult } from '../transient/results.js';
 import { traceMemoryDiagnostic } from '../transient/trace-memory.js';
 import { simulate } from '../transient/transient.js';
+import { baselineJson } from '../report/baseline.js';
+import { traceCsv } from '../report/csv.js';
+import { resultJson } from '../report/json.js';
+import { summaryText } from '../report/table.js';
 import { CsvFile } from './csv-file.js';
 import { STOP_FLAG, type Finished, type Loaded, type RunJobData, type RunJobMessage } from './run-protocol.js';
 
@@ -43,8 +47,7 @@ export class RunJob {
       if (refused) loaded.csvRefused = refused;
     }
     if (d.recordings?.length && !loaded.csvRefused) {
-      const { measuredOverlays } = await import('../studies/measured-overlay.js');
-      const o = measuredOverlays(m.value, d.recordings);
+      const o = (await import('./run-report.js')).measuredOverlays(m.value, d.recordings);
       if (!o.ok) loaded.recordingErrors = o.diagnostics;
       else {
         this.measured = o.value.overlays;
@@ -72,28 +75,17 @@ export class RunJob {
     });
     const csvError = csv?.close();
     const texts: Finished['texts'] = {};
-    if (make.summary) texts.summary = (await import('../report/table.js')).summaryText(result);
-    if (make.json) texts.json = (await import('../report/json.js')).resultJson(result);
-    if (make.csv) texts.csv = (await import('../report/csv.js')).traceCsv(result.trace);
-    if (make.baseline) texts.baseline = (await import('../report/baseline.js')).baselineJson(result);
-    const figures = make.plots || make.html ? await this.report(model, result, texts) : undefined;
-    return { verdict: verdict(result), ...(csvError ? { csvError } : {}), texts, ...(figures ? { figures } : {}) };
-  }
-
-  /** The HTML report (into `texts`) and the figures of --plots, from the model and its run. */
-  private async report(model: Model, result: RunResult, texts: Finished['texts']): Promise<Finished['figures']> {
-    const make = this.data.make;
-    const { reportInput } = await import('../transient/report-input.js');
-    const input = reportInput(model, result, { measured: this.measured });
-    if (make.html) {
-      const rest = (await import('./rest-marks.js')).restMarks(model, result);
-      const { reportHtml } = await import('../report/html.js');
-      texts.html = reportHtml({ ...input, ...rest, version: make.html.version, netlistWarnings: this.warnings });
+    if (make.summary) texts.summary = summaryText(result);
+    if (make.json) texts.json = resultJson(result);
+    if (make.csv) texts.csv = traceCsv(result.trace);
+    if (make.baseline) texts.baseline = baselineJson(result);
+    let figures: Finished['figures'];
+    if (make.plots || make.html) {
+      const made = (await import('./run-report.js')).reportTexts(model, result, { measured: this.measured, html: make.html, plots: make.plots, netlistWarnings: this.warnings });
+      if (made.html !== undefined) texts.html = made.html;
+      figures = made.figures;
     }
-    if (!make.plots) return undefined;
-    // the figures of --plots are the report's without its rest states
-    const { reportFigures } = await import('../report/plots.js');
-    return reportFigures(input, { standalone: true }).map((f) => ({ id: f.id, svg: f.svg }));
+    return { verdict: verdict(result), ...(csvError ? { csvError } : {}), texts, ...(figures ? { figures } : {}) };
   }
 }
 

@@ -1,14 +1,17 @@
 /**
  * `plenum run NETLIST`: simulate, print a summary, write CSV/JSON.
  *
- * Only light modules are imported up front: the worker thread is started on the netlist text
- * first, and the reports are loaded while it starts (for a small netlist the start-up is most of
- * the run; docs/dev-performance.md). The netlist is read once, by the worker (run-job.ts): this
- * thread prints its diagnostics or warnings, and never holds a syntax tree or a model.
+ * Only light modules are imported here: the worker thread is started on the netlist text at
+ * once (for a small netlist the start-up is most of the run; docs/dev-performance.md). The
+ * netlist is read once, by the worker (run-job.ts), which also makes the output texts; this
+ * thread prints its diagnostics or warnings and writes the texts, and never holds a syntax
+ * tree, a model or a result.
  */
 import { rmSync } from 'node:fs';
 import { checkOutputPaths, checkPlotsDir, samePath, stagingPath, toStdout, UsageError, type OutputFile } from './io.js';
+import { acceptLoaded, netlistFailed } from './loaded.js';
 import { netlistName, readNetlistFile } from './netlist-file.js';
+import { writeWithPlots } from './plots.js';
 import { progressLine, simulationProgress } from './progress.js';
 import type { Verdict } from './run-protocol.js';
 import { interruptOnSigint, runnable, startSimulation, type Interrupter } from './run-thread.js';
@@ -38,7 +41,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   // The text is read once here (a netlist from a pipe, `-` or /dev/stdin, cannot be read
   // twice) and handed to the worker, which alone reads it as a netlist
   const text = readNetlistFile(file);
-  if ('tooLarge' in text) return (await import('./loaded.js')).netlistFailed(file, [text.tooLarge]);
+  if ('tooLarge' in text) return netlistFailed(file, [text.tooLarge]);
   // a CSV file is written by the simulating thread as the samples are taken, into the temporary
   // file that is renamed into place with the other outputs (csv-file.ts); standard output, a
   // device or a pipe gets the text at the end
@@ -49,10 +52,6 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     source: text.text, file: netlistName(file), csvPath: csvTemp,
     make: { summary: !opts.quiet, json: Boolean(opts.json), csv: Boolean(opts.csv && !csvTemp), baseline: Boolean(opts.baseline), plots: Boolean(opts.plots) },
   }, stop, progress);
-  // loaded while the worker starts and reads
-  const printing = import('./loaded.js');
-  const writing = import('./plots.js');
-  writing.catch(() => {}); // awaited below unless the netlist is refused
   let handedOver = false;
   // a second Ctrl-C ends the process at once: the partial CSV must not be left behind
   const onExit = (): void => { if (csvTemp) rmSync(csvTemp, { force: true }); };
@@ -60,7 +59,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
   try {
     try {
       const loaded = await started.loaded();
-      (await printing).acceptLoaded(file, loaded);
+      acceptLoaded(file, loaded);
       if (!runnable(loaded)) throw new Error('the worker refused the run without saying why');
     } catch (e) {
       await started.cancel();
@@ -81,7 +80,7 @@ async function simulateAndWrite(file: string, opts: RunOptions, stop: Interrupte
     else add(opts.csv, texts.csv, '--csv');
     add(opts.baseline, texts.baseline, '--baseline');
     handedOver = true; // writeOutputs removes the staged file if anything fails
-    (await writing).writeWithPlots(files, opts.plots, file, figures);
+    writeWithPlots(files, opts.plots, file, figures);
     if (stdout !== undefined) process.stdout.write(stdout);
     return finish(verdict, opts);
   } finally {
