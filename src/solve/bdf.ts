@@ -317,6 +317,8 @@ export const bdf: Integrator = (problem, t0, y0, tEnd, onStep, options: BdfOptio
   let nEqual = 0;
   let nSingular = 0;
   let nNonFinite = 0;
+  /** Farthest end of a non-finite attempt; the counter resets once the solution gets past it. */
+  let tTrouble = t0;
   for (;;) {
     if (work.steps + work.rejected >= maxSteps) return finish('max-steps', `step budget of ${maxSteps} exhausted at t = ${t}`);
     let hAbs = Math.abs(s.h);
@@ -342,6 +344,7 @@ export const bdf: Integrator = (problem, t0, y0, tEnd, onStep, options: BdfOptio
         if (++nSingular >= MAX_SINGULAR) return finish('singular', `iteration matrix singular ${nSingular} times at t = ${t}`);
         s.changeStep(0.5);
       } else if (outcome === 'non-finite') {
+        if (dir * (tNew - tTrouble) > 0) tTrouble = tNew;
         if (++nNonFinite > MAX_NON_FINITE) return finish('non-finite', `non-finite values after ${MAX_NON_FINITE} step reductions at t = ${t}`);
         s.changeStep(0.25);
       } else {
@@ -361,7 +364,7 @@ export const bdf: Integrator = (problem, t0, y0, tEnd, onStep, options: BdfOptio
     }
     work.steps++;
     nSingular = 0;
-    nNonFinite = 0;
+    if (dir * (tNew - tTrouble) > 0) nNonFinite = 0;
     const stepJOld = s.jacobianOld;
     s.accept();
     const tOld = t;
