@@ -8,7 +8,7 @@
  *   npx tsx bench/integrators.ts 1000,10000 [repeat] [chain|grid|star|file.yaml] [rodas,bdf,rosw]
  */
 import { readFileSync } from 'node:fs';
-import { bdf } from '../src/solve/bdf.js';
+import { bdf, type BdfOptions } from '../src/solve/bdf.js';
 import { NetworkSystem } from '../src/assemble/system.js';
 import { drive } from '../src/solve/driver.js';
 import { rosenbrock } from '../src/solve/rosenbrock.js';
@@ -28,6 +28,8 @@ export function compareIntegrators(n: number, repeat = 1, shape: NetworkShape | 
   const all: [string, string, Integrator][] = [
     ['rodas', 'rodas', rosenbrock],
     ['bdf', 'bdf', bdf],
+    ['bdf1', 'bdf, local error at 1 × tolerance', (p, t0, y0, t1, cb, o) => bdf(p, t0, y0, t1, cb, { ...o, errorScale: 1 } as BdfOptions)],
+    ['bdf3', 'bdf, local error at 1/3 of the tolerance', (p, t0, y0, t1, cb, o) => bdf(p, t0, y0, t1, cb, { ...o, errorScale: 3 } as BdfOptions)],
     ['rosw', 'ros34pw2, fresh J every step', (p, t0, y0, t1, cb, o) => rosw(p, t0, y0, t1, cb, { ...o, jacobianAge: 1 } as RosWOptions)],
     ['rosw', 'ros34pw2, J kept (error ≤ 0.1)', rosw],
     ['rosw', 'ros34pw2, J kept (error ≤ 0.5)', (p, t0, y0, t1, cb, o) => rosw(p, t0, y0, t1, cb, { ...o, keepError: 0.5 } as RosWOptions)],

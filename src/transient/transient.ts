@@ -36,9 +36,11 @@ export interface SimulateOptions {
   /** Channels to read at given times on the dense output (calibration); see RunResult.probed. */
   probe?: ProbeRequest;
   /**
-   * The stiff integrator of `method: implicit` and of a stiff `auto`: 'bdf' (default; the
-   * NDF/BDF multistep method, src/solve/bdf.ts) or 'rodas' (the Rosenbrock method,
-   * src/solve/rosenbrock.ts). `stats.method` names the one used.
+   * The stiff integrator of `method: implicit` and of a stiff `auto`: 'rodas' (default; the
+   * Rosenbrock method, src/solve/rosenbrock.ts) or 'bdf' (the NDF/BDF multistep method keeping
+   * its jacobian, src/solve/bdf.ts; measured against RODAS in docs/performance.md, "Stiff
+   * integrators": not a clear win at equal accuracy, so not the default). `stats.method`
+   * names the one used.
    */
   stiff?: StiffIntegrator;
 }
@@ -67,7 +69,7 @@ function mergeSeen(log: readonly { t: number; what: string }[], seen: { t: numbe
  * The integrator of a run: the netlist's `method`, and for `auto` the stiffness estimate; the
  * stiff one is `stiff` (measured against each other: docs/performance.md, "Stiff integrators").
  */
-export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array, stiff: StiffIntegrator = 'bdf'): { integrator: Integrator; name: string; why: string } {
+export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array, stiff: StiffIntegrator = 'rodas'): { integrator: Integrator; name: string; why: string } {
   const m = model.simulate.method;
   if (m === 'explicit') return { integrator: odex, name: 'odex', why: 'method: explicit' };
   if (m === 'implicit') return { integrator: STIFF[stiff], name: stiff, why: 'method: implicit' };

@@ -50,10 +50,9 @@ describe('NDF formulas with constant steps (Shampine & Reichelt 1997: NDF k has 
 });
 
 describe('adaptive NDF on closed forms', () => {
-  it('tank blowdown (docs/references.md): global error within a few tolerances at rtol 1e-3…1e-7, falling with the tolerance', () => {
-    // A multistep code controls the local error of the solution it keeps (no local
-    // extrapolation, unlike RODAS), so its global error is a few times the tolerance: measured
-    // 2.5, 3.9 and 4.5 × rtol here; RODAS stays below 1 × rtol.
+  it('tank blowdown (docs/references.md): global error below the tolerance at rtol 1e-3…1e-7, falling with it', () => {
+    // Measured 0.19, 0.31 and 0.70 × rtol (the local error held at 1/ERROR_SCALE of the
+    // tolerance; at 1 × the tolerance it was 2.5, 3.9 and 4.5 × rtol; RODAS: 0.08–0.35).
     let previous = Infinity;
     for (const rtol of [1e-3, 1e-5, 1e-7]) {
       const p: OdeProblem = { ...tank, rtol, atol: Float64Array.of(rtol * 1e3) };
@@ -69,13 +68,13 @@ describe('adaptive NDF on closed forms', () => {
       });
       expect(r.status).toBe('completed');
       expect(r.work.jacobians).toBe(1);
-      expect(worst / (rtol * p0)).toBeLessThan(6);
+      expect(worst / (rtol * p0)).toBeLessThan(1);
       expect(worst).toBeLessThan(previous / 20);
       previous = worst;
     }
   });
 
-  it("a stiff closed form y' = λ(y − cos t) − sin t, λ = −1e6 (solution cos t): within 3 tolerances at every step and inside them, one jacobian", () => {
+  it("a stiff closed form y' = λ(y − cos t) − sin t, λ = −1e6 (solution cos t): below the tolerance at every step and inside them (measured 0.10–0.15), one jacobian", () => {
     for (const rtol of [1e-3, 1e-6, 1e-9]) {
       const p: OdeProblem = { n: 1, rtol, atol: Float64Array.of(rtol), rhs: (t, y, d) => { d[0] = -1e6 * (y[0] - Math.cos(t)) - Math.sin(t); } };
       const out = new Float64Array(1);
@@ -89,7 +88,7 @@ describe('adaptive NDF on closed forms', () => {
         }
       });
       expect(r.status).toBe('completed');
-      expect(worst / rtol).toBeLessThan(3);
+      expect(worst / rtol).toBeLessThan(1);
       expect(r.work.jacobians).toBe(1);
       // steps far beyond the explicit stability limit 2/|λ| = 2 µs
       expect(r.work.steps).toBeLessThan(400);
@@ -116,11 +115,11 @@ function robertson(rtol: number): OdeProblem {
 }
 
 describe('stiff test problems (Hairer & Wanner II, §IV.10)', () => {
-  it('Robertson at t = 40: within 10 tolerances of the reference at rtol 1e-4…1e-8 (measured: 0.3–6) with at most 4 jacobians', () => {
+  it('Robertson at t = 40: within the tolerance of the reference at rtol 1e-4…1e-8 (measured ≤ 0.12), at most 4 jacobians', () => {
     for (const rtol of [1e-4, 1e-6, 1e-8]) {
       const r = bdf(robertson(rtol), 0, Float64Array.of(1, 0, 0), 40, keepGoing);
       expect(r.status).toBe('completed');
-      for (let i = 0; i < 3; i++) expect(Math.abs(r.y[i] / ROBERTSON_40[i] - 1)).toBeLessThan(10 * rtol);
+      for (let i = 0; i < 3; i++) expect(Math.abs(r.y[i] / ROBERTSON_40[i] - 1)).toBeLessThan(rtol);
       expect(r.work.jacobians).toBeLessThanOrEqual(4);
       // Σy = 1 is a linear invariant of the kinetics
       expect(Math.abs(r.y[0] + r.y[1] + r.y[2] - 1)).toBeLessThan(1e-14);
@@ -130,6 +129,8 @@ describe('stiff test problems (Hairer & Wanner II, §IV.10)', () => {
   it('van der Pol with ε = 1e-6 (μ = 1000) on [0, 2]: agrees with RODAS at rtol 1e-10, a jacobian for every 10 steps or fewer (RODAS: one every step)', () => {
     // y1' = y2, y2' = ((1 − y1²) y2 − y1)/ε, y(0) = (2, −0.66) (Hairer & Wanner II, §IV.10).
     // The reference is the project's RODAS at rtol 1e-10 (it agrees with RODAS at 1e-12 to 1e-10).
+    // Measured: 1–3 tolerances at rtol 1e-4 and 1e-6, 40 at 1e-8 (the fast jumps of the
+    // relaxation oscillation stay in the multistep history; RODAS itself: 0.1–0.2).
     const vdp = (rtol: number): OdeProblem => ({
       n: 2,
       rhs: (_t, y, d) => { d[0] = y[1]; d[1] = ((1 - y[0] * y[0]) * y[1] - y[0]) / 1e-6; },
