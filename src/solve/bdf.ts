@@ -35,7 +35,7 @@
  * recompute the jacobian).
  */
 import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
-import { allFinite, checkArguments, EPS, initialStep, justInside, minStep, positive, rmsNorm } from './step-control.js';
+import { allFinite, checkArguments, DEFAULT_MAX_STEPS, EPS, initialStep, justInside, MAX_NON_FINITE, MAX_SINGULAR, minStep, positive, rmsNorm } from './step-control.js';
 import { zeroWork, type DenseOutput, type IntegrateOptions, type IntegrateResult, type Integrator, type IntegratorStatus, type OdeProblem, type StepCallback, type WorkCounts } from './types.js';
 
 export const MAX_ORDER = 5;
@@ -80,9 +80,6 @@ const MIN_GROWTH = 1.2;
 export const ERROR_SCALE = 10;
 /** A step within this factor of the rest of the interval is stretched to its end (ode15s: 1.1). */
 const LAST_STRETCH = 1.1;
-const DEFAULT_MAX_STEPS = 100_000;
-const MAX_SINGULAR = 5;
-const MAX_NON_FINITE = 10;
 
 /** R(r)·R(1) of Shampine & Reichelt §2.2 for order k (entries 1…k), row-major (k+1)². */
 function changeMatrix(k: number, r: number, out: Float64Array): void {

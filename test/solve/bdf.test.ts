@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { bdf, ndfFixedSteps } from '../../src/solve/bdf.js';
 import { rosenbrock } from '../../src/solve/rosenbrock.js';
 import type { OdeProblem } from '../../src/solve/types.js';
+import { robertsonRhs } from './robertson.js';
 import { p0, pExact, tank } from './tank-blowdown.js';
 
 const keepGoing = (): boolean => true;
@@ -103,12 +104,7 @@ const ROBERTSON_40 = [0.7158270687193941, 9.185534764557338e-6, 0.28416374574584
 function robertson(rtol: number): OdeProblem {
   return {
     n: 3,
-    rhs: (_t, y, d) => {
-      const a = 0.04 * y[0], b = 1e4 * y[1] * y[2], c = 3e7 * y[1] * y[1];
-      d[0] = -a + b;
-      d[1] = a - b - c;
-      d[2] = c;
-    },
+    rhs: robertsonRhs,
     rtol,
     atol: Float64Array.of(rtol * 1e-2, rtol * 1e-6, rtol * 1e-2),
   };

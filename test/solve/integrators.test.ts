@@ -7,6 +7,7 @@ import { bdf } from '../../src/solve/bdf.js';
 import { odex } from '../../src/solve/odex.js';
 import { rosenbrock } from '../../src/solve/rosenbrock.js';
 import type { IntegrateResult, Integrator, OdeProblem, StepCallback } from '../../src/solve/types.js';
+import { robertsonRhs } from './robertson.js';
 
 // ---- Problems -------------------------------------------------------------------------------
 
@@ -42,12 +43,7 @@ const robertsonJacobian = (_t: number, y: Float64Array, J: Float64Array) => {
 function robertson(analyticJacobian: boolean): OdeProblem {
   return {
     n: 3,
-    rhs: (_t, y, d) => {
-      const a = 0.04 * y[0], b = 1e4 * y[1] * y[2], c = 3e7 * y[1] * y[1];
-      d[0] = -a + b;
-      d[1] = a - b - c;
-      d[2] = c;
-    },
+    rhs: robertsonRhs,
     jacobian: analyticJacobian ? robertsonJacobian : undefined,
     rtol: 1e-6,
     atol: Float64Array.of(1e-8, 1e-12, 1e-8),
