@@ -56,21 +56,28 @@ export interface AnchorRun {
   peakMB: number;
   /** User + system CPU of the whole python3 process. */
   cpuS: number;
+  /** Final gauge pressure of each chamber (Pa), in chain order, when asked for. */
+  finalGauge?: number[];
 }
 
 /** One BLAS/OpenMP thread for the anchor: on a busy host a threaded BLAS made SciPy's BDF 5× slower. */
 export const ANCHOR_ENV = { OPENBLAS_NUM_THREADS: '1', OMP_NUM_THREADS: '1', MKL_NUM_THREADS: '1' };
 
-/** The SciPy anchor on a chain of n (solve time printed by the script, whole process timed here), or why it could not run. */
-export function runAnchor(script: string, n: number): AnchorRun | string {
+/**
+ * The SciPy anchor on a chain of n (solve time printed by the script, whole process timed here),
+ * or why it could not run. With `finalFile`, the script also writes its final gauge pressures
+ * there (read into `finalGauge`), to check that it solved the same equations as plenum.
+ */
+export function runAnchor(script: string, n: number, finalFile?: string): AnchorRun | string {
   const t0 = performance.now();
-  const r = spawnSync('python3', [script, String(n)], { encoding: 'utf8', timeout: 600_000, env: { ...process.env, ...ANCHOR_ENV } });
+  const r = spawnSync('python3', [script, String(n), ...(finalFile ? ['BDF', '--final', finalFile] : [])], { encoding: 'utf8', timeout: 1_800_000, env: { ...process.env, ...ANCHOR_ENV } });
   const wallS = (performance.now() - t0) / 1000;
   if (r.error) return `python3 not runnable: ${r.error.message}`;
   if (r.status !== 0) return `anchor failed: ${(r.stderr || r.stdout).trim().split('\n').pop()}`;
   const f = r.stdout.trim().split(/\s+/).map(Number);
   if (f.length < 7 || f.some((x) => !Number.isFinite(x))) return `unexpected anchor output: ${r.stdout.trim()}`;
-  return { n: f[0], solveS: f[1], wallS, nfev: f[2], njev: f[3], status: f[4], peakMB: f[5], cpuS: f[6] };
+  const finalGauge = finalFile && existsSync(finalFile) ? (JSON.parse(readFileSync(finalFile, 'utf8')) as { gauge: number[] }).gauge : undefined;
+  return { n: f[0], solveS: f[1], wallS, nfev: f[2], njev: f[3], status: f[4], peakMB: f[5], cpuS: f[6], ...(finalGauge ? { finalGauge } : {}) };
 }
 
 /** log(t2/t1)/log(n2/n1): 1 means linear growth. */

@@ -147,3 +147,33 @@ export function reliefNetlist(n: number, o: NetworkOptions = {}): string {
   out.push(simulateLine(o, '2 s'));
   return out.join('');
 }
+
+/**
+ * A closed chain of n identical linear chambers (air springs: 30 mL, 0.2 mL/kPa, at 20 kPa
+ * gauge) joined by identical laminar lines 2 mm × 100 mm, for `plenum equilibria` and
+ * `plenum trace` at scale: every rest state has one pressure, and the linearisation is a
+ * path-graph Laplacian (eigenvalues −(G/C)·(2 − 2 cos(kπ/n)), k = 0 … n − 1).
+ */
+export function linearChainNetlist(n: number, o: NetworkOptions = {}): string {
+  const out: string[] = [header(`Generated closed chain of ${n} linear chambers`, o), 'chambers:\n'];
+  for (let i = 0; i < n; i++) out.push(`  c${i}: { wall: linear, volume: 30 mL, compliance: 0.2 mL/kPa, start: { pressure: 20 kPa gauge } }\n`);
+  out.push('lines:\n');
+  for (let i = 0; i + 1 < n; i++) out.push(`  l${i}: { from: c${i}, to: c${i + 1}, diameter: 2 mm, length: 100 mm }\n`);
+  out.push(simulateLine(o, '1 s'));
+  return out.join('');
+}
+
+/**
+ * A closed chain of n identical neo-Hookean spheres (r0 15 mm, t0 1 mm, μ 0.3 MPa) joined by
+ * laminar lines 2 mm × 100 mm, alternately started at stretch 1.2 and 1.6 (either side of the
+ * pressure maximum at 7^(1/6) = 1.383): each sphere has two branches at a pressure below the
+ * maximum, so the group has 2^n branch combinations.
+ */
+export function sphereChainNetlist(n: number, o: NetworkOptions = {}): string {
+  const out: string[] = [header(`Generated closed chain of ${n} elastic spheres`, o), 'chambers:\n'];
+  for (let i = 0; i < n; i++) out.push(`  s${i}: { ${POD}, start: { stretch: ${i % 2 === 0 ? 1.2 : 1.6} } }\n`);
+  out.push('lines:\n');
+  for (let i = 0; i + 1 < n; i++) out.push(`  l${i}: { from: s${i}, to: s${i + 1}, diameter: 2 mm, length: 100 mm }\n`);
+  out.push(simulateLine(o, '1 s'));
+  return out.join('');
+}

@@ -20,10 +20,10 @@ const ROOT = resolve(new URL('..', import.meta.url).pathname);
 /** [id, file, exact text, replacement, what it does]. Each text must occur exactly once. */
 export const MUTANTS = [
   // orifice (isentropic nozzle)
-  ['orifice-choked-1pc', 'src/physics/orifice.ts', 'return Cd * A * p0 * Math.sqrt(gamma / (R * T0)) * Math.pow(', 'return 1.01 * Cd * A * p0 * Math.sqrt(gamma / (R * T0)) * Math.pow(', 'choked orifice flow +1 %'],
+  ['orifice-choked-1pc', 'src/physics/orifice.ts', 'return Cd * A * p0 * Math.sqrt(gamma / (R * T0)) * lastChoke;', 'return 1.01 * Cd * A * p0 * Math.sqrt(gamma / (R * T0)) * lastChoke;', 'choked orifice flow +1 %'],
   ['orifice-subsonic-sign', 'src/physics/orifice.ts', 'Math.pow(r, 2 / gamma) - Math.pow(r, (gamma + 1) / gamma)', 'Math.pow(r, 2 / gamma) + Math.pow(r, (gamma + 1) / gamma) - 2 * Math.pow(r, (gamma + 1) / gamma) * 1.01', 'subsonic orifice term 1 % off'],
   ['orifice-no-cd', 'src/physics/orifice.ts', 'return Cd * A * p0 * Math.sqrt(((2 * gamma)', 'return A * p0 * Math.sqrt(((2 * gamma)', 'discharge coefficient dropped (subsonic)'],
-  ['orifice-critical-ratio', 'src/physics/orifice.ts', 'return Math.pow(2 / (gamma + 1), gamma / (gamma - 1));', 'return 1.01 * Math.pow(2 / (gamma + 1), gamma / (gamma - 1));', 'critical pressure ratio +1 %'],
+  ['orifice-critical-ratio', 'src/physics/orifice.ts', 'lastRc = Math.pow(2 / (gamma + 1), gamma / (gamma - 1));', 'lastRc = 1.01 * Math.pow(2 / (gamma + 1), gamma / (gamma - 1));', 'critical pressure ratio +1 %'],
   // ISO 6358
   ['iso-rho0-1pc', 'src/physics/gas.ts', 'export const ISO6358_RHO0 = 1.185;', 'export const ISO6358_RHO0 = 1.185 * 1.01;', 'ρ0 +1 %'],
   ['iso-no-temperature', 'src/physics/iso6358.ts', 'p1 * Math.sqrt(ISO6358_T0 / T1)', 'p1', 'temperature factor √(T0/T1) dropped'],
@@ -42,7 +42,7 @@ export const MUTANTS = [
   // lines that choke
   ['line-accel-dropped', 'src/physics/line-flow.ts', 'c2 * (f * s.LD + 2 * w * Math.log(p1 / pe))', 'c2 * (f * s.LD)', 'acceleration term dropped'],
   ['line-accel-1pc', 'src/physics/line-flow.ts', 'c2 * (f * s.LD + 2 * w * Math.log(p1 / pe))', 'c2 * (f * s.LD + 2.02 * w * Math.log(p1 / pe))', 'acceleration term +1 %'],
-  ['line-entrance-dropped', 'src/physics/line-flow.ts', 'const p1 = s.p0 * Math.pow(e, -s.gamma / (s.gamma - 1));', 'const p1 = s.p0;', 'entrance pressure drop dropped'],
+  ['line-entrance-dropped', 'src/physics/line-flow.ts', 'const p1 = (s.p0 * powMinusN(e)) / Math.sqrt(e);', 'const p1 = s.p0;', 'entrance pressure drop dropped'],
   ['line-entrance-temperature', 'src/physics/line-flow.ts', 'const T1 = s.T0 / e;', 'const T1 = s.T0;', 'entrance temperature drop dropped'],
   ['line-choke-1pc', 'src/physics/line-flow.ts', 'const pe = Math.max(s.pb, Math.sqrt(w) * ps);', 'const pe = Math.max(s.pb, 1.01 * Math.sqrt(w) * ps);', 'choking exit pressure +1 %'],
   ['line-friction-1pc', 'src/physics/line-flow.ts', 'const f = frictionFactor(Re, s.rel);', 'const f = 1.01 * frictionFactor(Re, s.rel);', 'friction in the compressible law +1 %'],

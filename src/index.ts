@@ -6,11 +6,6 @@
  *   if (!m.ok) console.error(m.diagnostics.map(formatDiagnostic).join('\n'));
  *   else console.log(resultJson(simulate(m.value)));
  */
-import type { Diagnostic, Result } from './diag/diagnostic.js';
-import { readNetlist } from './netlist/read.js';
-import { buildModel } from './model/build.js';
-import type { Model } from './model/types.js';
-import { traceMemoryDiagnostic } from './transient/trace-memory.js';
 
 export type { Diagnostic, Result } from './diag/diagnostic.js';
 export { formatDiagnostic } from './diag/diagnostic.js';
@@ -18,6 +13,8 @@ export type { NetlistDoc } from './netlist/types.js';
 export type { Model } from './model/types.js';
 export type { RunResult, Trace, ExpectationResult, ChamberSummary, LineSummary, ValveSummary, RunStats } from './transient/results.js';
 export type { RunFault } from './transient/results.js';
+/** Reads and builds in one go; diagnostics from both stages, warnings kept. */
+export { loadModel } from './transient/load.js';
 export { readNetlist } from './netlist/read.js';
 export { netlistJsonSchema } from './netlist/schema.js';
 export { buildModel } from './model/build.js';
@@ -60,17 +57,4 @@ export { stabilityAt, type Stability, type Linearisation } from './equilibria/st
 export { eigenvalues } from './linalg/eigen.js';
 export { equilibriaText, equilibriaJson, traceText, traceJson, traceBranchesCsv } from './report/equilibria.js';
 
-/** Reads and builds in one go; diagnostics from both stages, warnings kept. */
 export { traceMemory, traceMemoryDiagnostic } from './transient/trace-memory.js';
-
-export function loadModel(source: string, file: string): Result<Model> {
-  const doc = readNetlist(source, file);
-  if (!doc.ok) return doc;
-  const model = buildModel(doc.value);
-  if (!model.ok) return model;
-  // a run whose sampled history cannot fit in memory is refused before it starts
-  const memory = traceMemoryDiagnostic(model.value);
-  if (memory) return { ok: false, diagnostics: [memory] };
-  const warnings: Diagnostic[] = [...doc.warnings, ...model.warnings];
-  return { ok: true, value: model.value, warnings };
-}

@@ -4,7 +4,9 @@
  * Also the small protocol the two share.
  */
 import { performance } from 'node:perf_hooks';
-import { loadModel, simulate, type Diagnostic } from '../index.js';
+import type { Diagnostic } from '../diag/diagnostic.js';
+import { loadModel } from '../transient/load.js';
+import { simulate } from '../transient/transient.js';
 import type { NetlistCheck } from '../report/junit.js';
 import { readBounded } from './netlist-file.js';
 

@@ -2,6 +2,7 @@
 import { equilibriaJson, equilibriaText, findEquilibria, type GasSource, type Model, type ValveState } from '../index.js';
 import { loadOrExit } from './load.js';
 import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
+import { parseQuantity } from '../units/quantity.js';
 
 export interface EquilibriaCliOptions {
   valves?: string;
@@ -9,7 +10,17 @@ export interface EquilibriaCliOptions {
   json?: string;
   transient?: boolean;
   maxCombinations?: string;
+  maxWall?: string;
   quiet?: boolean;
+}
+
+/** `--max-wall`: a time with its unit ("45 s", "2 min") or a bare number of seconds; undefined when not given. */
+export function readMaxWall(text: string | undefined): number | undefined {
+  if (text === undefined) return undefined;
+  const bare = Number(text);
+  const r = Number.isFinite(bare) && text.trim() !== '' ? { ok: true as const, value: bare } : parseQuantity(text, 'time');
+  if (!r.ok || !(r.value > 0)) throw new UsageError(`--max-wall must be a positive time such as "30 s" or "2 min", not \`${text}\``);
+  return r.value;
 }
 
 const VALVES: readonly ValveState[] = ['open', 'closed', 'end'];
@@ -55,11 +66,12 @@ export function equilibriaCommand(file: string, opts: EquilibriaCliOptions): num
     maxCombinations = Number(opts.maxCombinations);
     if (!Number.isInteger(maxCombinations) || maxCombinations < 1) throw new UsageError(`--max-combinations must be a positive whole number, not \`${opts.maxCombinations}\``);
   }
+  const maxWall = readMaxWall(opts.maxWall);
   checkOutputPaths(file, { '--json': opts.json });
   const model = loadOrExit(file);
   refuseLargeGroup(model, file, MAX_GROUP_CHAMBERS, 'plenum equilibria',
     'the stability of its equilibria is a dense eigenvalue problem that grows with the cube of that number (about two minutes at the limit)');
-  const result = findEquilibria(model, { valves, gas, transient: opts.transient !== false, maxCombinations });
+  const result = findEquilibria(model, { valves, gas, transient: opts.transient !== false, maxCombinations, maxWall });
   if (!opts.quiet) (opts.json === '-' ? process.stderr : process.stdout).write(equilibriaText(result));
   emitOutputs([{ path: opts.json, text: () => equilibriaJson(result), what: '--json' }]);
   return result.status === 'ok' ? 0 : 3;

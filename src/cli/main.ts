@@ -191,8 +191,9 @@ program.command('equilibria')
   .option('--json <file>', 'write the equilibria as JSON (- for stdout)')
   .option('--no-transient', 'do not simulate to see which equilibrium the transient reaches')
   .option('--max-combinations <n>', 'branch combinations per group searched exhaustively before deflated Newton takes over (default 4096)')
+  .option('--max-wall <time>', 'wall-clock budget, e.g. "2 min" (default 30 s): the transient may use half; then the equilibria found so far are listed, marked incomplete')
   .option('-q, --quiet', 'do not print the table')
-  .action(async (file: string, opts: { valves?: string; gas?: string; json?: string; transient?: boolean; maxCombinations?: string; quiet?: boolean }) => {
+  .action(async (file: string, opts: { valves?: string; gas?: string; json?: string; transient?: boolean; maxCombinations?: string; maxWall?: string; quiet?: boolean }) => {
     const { equilibriaCommand } = await import('./equilibria.js');
     process.exitCode = equilibriaCommand(file, opts);
   });
@@ -208,8 +209,9 @@ program.command('trace')
   .option('--json <file>', 'write the branches as JSON (- for stdout)')
   .option('--step <h>', 'largest step along a branch in scaled arclength: the parameter range counts 1, each chamber\'s gas by its logarithm (default 0.05)')
   .option('--starts <n>', 'extra start values between --from and --to (default 3)')
+  .option('--max-wall <time>', 'wall-clock budget, e.g. "2 min" (default 30 s): then the branches traced so far are written, marked incomplete')
   .option('-q, --quiet', 'do not print the summary')
-  .action(async (file: string, opts: { vary?: string; from?: string; to?: string; valves?: string; csv?: string; json?: string; step?: string; starts?: string; quiet?: boolean }) => {
+  .action(async (file: string, opts: { vary?: string; from?: string; to?: string; valves?: string; csv?: string; json?: string; step?: string; starts?: string; maxWall?: string; quiet?: boolean }) => {
     const { traceCommand } = await import('./trace.js');
     process.exitCode = traceCommand(file, opts);
   });

@@ -10,34 +10,10 @@
  */
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
+import { getHeapStatistics } from 'node:v8';
 import { Worker } from 'node:worker_threads';
-import type { RunResult } from '../transient/results.js';
-import type { Model } from '../model/types.js';
-import { CsvFile } from './csv-file.js';
+import { STOP_FLAG, type Finished, type Loaded, type RunJobData, type RunJobMessage } from './run-protocol.js';
 import { UsageError } from './io.js';
-
-/** Index of the stop flag in the shared control array. */
-export const STOP_FLAG = 0;
-
-export interface RunWorkerData {
-  source: string;
-  file: string;
-  control: SharedArrayBuffer;
-  /** Post progress messages. */
-  progress: boolean;
-  /**
-   * Send the sampled trace back (CSV, plots, baselines need it). Without, only its channel list
-   * is sent: copying a large trace between threads costs seconds (10 000 chambers: 1.4 s).
-   */
-  keepTrace?: boolean;
-  /** A new file to write the CSV trace into as the samples are taken (see csv-file.ts). */
-  csvPath?: string;
-}
-
-export type RunWorkerMessage =
-  | { kind: 'progress'; t: number; tEnd: number }
-  | { kind: 'result'; result: RunResult; csvError?: string }
-  | { kind: 'error'; message: string };
 
 /** Where the bundled worker may be, relative to the module holding this code. */
 const WORKER_CANDIDATES = ['./cli/run-worker.js', './run-worker.js'];
@@ -81,58 +57,62 @@ export function interruptOnSigint(): Interrupter {
   };
 }
 
-/** Simulates `model` on a worker thread; the run stops early when the interrupter's flag is set. */
-export async function simulateInterruptibly(model: Model, stop: Interrupter, progress?: (t: number, tEnd: number) => void): Promise<RunResult> {
-  return startSimulation(model.doc.source, model.doc.file, stop, progress).result(model);
-}
+/** What a command asks of the simulating side (run-job.ts); the rest of RunJobData is filled in here. */
+export type SimulationRequest = Omit<RunJobData, 'control' | 'progress' | 'heapBytes'>;
 
-/** A simulation started on a worker thread from the netlist text, before its model is needed here. */
+/** A simulation started from the netlist text: the netlist is read once, on the simulating side. */
 export interface StartedSimulation {
-  /** The result; `model` (loaded on this thread from the same text) is used only without a worker. */
-  result(model: Model): Promise<RunResult>;
-  /** Stops the worker (when this thread found the netlist invalid); resolves once it has stopped. */
+  /** The reading of the netlist: diagnostics, or warnings and what stops the run before it starts. */
+  loaded(): Promise<Loaded>;
+  /** The result, after a `loaded` that lets the run go on (see `runnable`). */
+  result(): Promise<Finished>;
+  /** Stops the worker (when this thread refuses to go on); resolves once it has stopped. */
   cancel(): Promise<void>;
 }
 
 /**
- * Starts the worker on the netlist text at once. The worker reads the text itself; started
- * before this thread reads it (for the diagnostics and the model that plots need), the two
- * readings overlap on a machine with two cores instead of following each other, which for a
- * large netlist saves seconds (docs/dev-performance.md).
+ * Starts the worker on the netlist text at once. The worker alone reads the netlist; it reports
+ * its diagnostics (or its warnings) before it simulates, while this thread loads what it needs
+ * to write the outputs. Reading it on both threads cost a large netlist its reading twice in
+ * CPU and memory (10 000 chambers: 0.65 s and a syntax tree on each thread).
  */
-export function startSimulation(source: string, file: string, stop: Interrupter, progress?: (t: number, tEnd: number) => void, keepTrace = true, csvPath?: string): StartedSimulation {
-  const entry = workerFile();
+export function startSimulation(request: SimulationRequest, stop: Interrupter, progress?: (t: number, tEnd: number) => void): StartedSimulation {
+  const data: RunJobData = { ...request, control: stop.control, progress: Boolean(progress), heapBytes: getHeapStatistics().heap_size_limit };
   const csvFailed = (code: string): UsageError => new UsageError(`cannot write the CSV trace (${code}); nothing was written`);
+  const finished = (f: Finished): Finished => {
+    if (f.csvError) throw csvFailed(f.csvError);
+    return f;
+  };
+  const entry = workerFile();
   if (!entry) {
-    return {
-      result: async (model) => {
-        const { simulate } = await import('../transient/transient.js');
-        const csv = csvPath ? new CsvFile(csvPath) : undefined;
-        const r = simulate(model, { interrupt: () => (stop.requested ? 'interrupted (Ctrl-C)' : null), progress, samples: csv });
-        const error = csv?.close();
-        if (error) throw csvFailed(error);
-        return r;
-      },
-      cancel: async () => {},
-    };
+    // running from the TypeScript sources: the same job on this thread (Ctrl-C cannot stop it)
+    const job = import('./run-job.js').then(({ RunJob }) => new RunJob(data, (m) => { if (m.kind === 'progress') progress?.(m.t, m.tEnd); }));
+    const loaded = job.then((j) => j.load());
+    return { loaded: () => loaded, result: async () => finished(await (await job).run()), cancel: async () => {} };
   }
-  const data: RunWorkerData = { source, file, control: stop.control, progress: Boolean(progress), keepTrace, csvPath };
   const worker = new Worker(entry, { workerData: data });
-  const done = new Promise<RunResult>((resolve, reject) => {
+  let onLoaded: (l: Loaded) => void = () => {};
+  const loaded = new Promise<Loaded>((resolve) => { onLoaded = resolve; });
+  const done = new Promise<Finished>((resolve, reject) => {
     let settled = false;
     const finish = (f: () => void): void => {
       if (settled) return;
       settled = true;
       f();
     };
-    worker.on('message', (m: RunWorkerMessage) => {
-      if (m.kind === 'progress') progress?.(m.t, m.tEnd);
-      else if (m.kind === 'result') finish(() => (m.csvError ? reject(csvFailed(m.csvError)) : resolve(m.result)));
+    worker.on('message', (m: RunJobMessage) => {
+      if (m.kind === 'loaded') onLoaded(m.loaded);
+      else if (m.kind === 'progress') progress?.(m.t, m.tEnd);
+      else if (m.kind === 'result') finish(() => { try { resolve(finished(m)); } catch (e) { reject(e); } });
       else finish(() => reject(new Error(m.message)));
     });
     worker.on('error', (e) => finish(() => reject(e)));
     worker.on('exit', (code) => finish(() => reject(new Error(`the simulation thread ended (code ${code}) without a result`))));
   });
   done.catch(() => {}); // observed by `result`; a cancelled run's rejection is not an error
-  return { result: () => done, cancel: async () => { await worker.terminate(); } };
+  // a worker that fails before it has read the netlist leaves `loaded` to the failure of `done`
+  const loadedOrFailed = Promise.race([loaded, done.then(() => new Promise<Loaded>(() => {}))]);
+  return { loaded: () => loadedOrFailed, result: () => done, cancel: async () => { await worker.terminate(); } };
 }
+
+export { runnable } from './run-protocol.js';

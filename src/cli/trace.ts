@@ -2,12 +2,14 @@
 import { traceBranchesCsv, traceEquilibria, traceJson, traceText, type ValveState } from '../index.js';
 import { loadOrExit } from './load.js';
 import { checkOutputPaths, emitOutputs, UsageError } from './io.js';
-import { refuseLargeGroup } from './equilibria.js';
+import { readMaxWall, refuseLargeGroup } from './equilibria.js';
 
 /**
- * Largest group of joined chambers `plenum trace` follows: every point of a branch needs dense
- * Newton solves and a dense eigenvalue problem of the group's size (200 chambers: 5 s for a
- * branch of 24 points; 1 000 chambers: more than six minutes).
+ * Largest group of joined chambers `plenum trace` follows: every point of a branch needs Newton
+ * solves (sparse from 32 chambers) and a growth rate, from a certified sparse eigenvalue solve
+ * where the jacobian allows it and else a dense eigenvalue problem of the group's size (200
+ * linear chambers: 1.4 s of CPU for a branch of 24 points; groups past a pressure maximum take
+ * the dense path, O(n³) a point).
  */
 export const MAX_TRACE_CHAMBERS = 500;
 
@@ -20,6 +22,7 @@ export interface TraceCliOptions {
   json?: string;
   step?: string;
   starts?: string;
+  maxWall?: string;
   quiet?: boolean;
 }
 
@@ -43,10 +46,11 @@ export function traceCommand(file: string, opts: TraceCliOptions): number {
   checkOutputPaths(file, { '--csv': opts.csv, '--json': opts.json });
   const maxStep = positive(opts.step, '--step', false);
   const interior = positive(opts.starts, '--starts', true);
+  const maxWall = readMaxWall(opts.maxWall);
   const model = loadOrExit(file);
   refuseLargeGroup(model, file, MAX_TRACE_CHAMBERS, 'plenum trace',
     'each point of a branch is a dense Newton solve and eigenvalue problem that grow with the cube of that number');
-  const r = traceEquilibria(model, { vary: opts.vary, from: opts.from, to: opts.to, valves, maxStep, interior });
+  const r = traceEquilibria(model, { vary: opts.vary, from: opts.from, to: opts.to, valves, maxStep, interior, maxWall });
   if (!r.ok) throw new UsageError(`${r.message}\n  hint: ${r.hint}`);
   const toStdout = opts.csv === '-' || opts.json === '-';
   if (!opts.quiet) (toStdout ? process.stderr : process.stdout).write(traceText(r.value));

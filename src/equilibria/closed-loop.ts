@@ -256,6 +256,7 @@ export function loopEquilibria(model: Model, valves: ValveState, masses: ArrayLi
     chambers: model.chambers.map((c) => c.name),
     kind: P.setup.groups.some((g) => g.kind === 'closed') ? 'closed' : 'open',
     mass: null, method: 'closed-loop', combinations: starts.length, complete: false,
+    branch_combinations: starts.length, examined: starts.length, timed_out: false,
     equilibria: rests.map((r) => ({ chambers: Object.values(r.equilibrium.chambers), stability: loopStability(P, r.y) })),
     flowing: [],
     notes: [`controllers and regulators: rest states by Newton on the whole state from ${starts.length === 1 ? 'the start state' : 'the start and end states'} (may be incomplete)`],

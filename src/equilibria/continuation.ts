@@ -49,6 +49,7 @@ import type { ValveState } from './types.js';
 import { Tracer } from './tracer.js';
 import { hasLoopStates } from './closed-loop.js';
 import { traceLoop } from './loop-trace.js';
+import { DEFAULT_MAX_WALL } from './types.js';
 
 export type { TraceOptions, TraceResult, TraceBranch, TracePoint, TraceOutcome } from './trace-types.js';
 
@@ -78,12 +79,17 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   const interior = Math.max(0, Math.floor(options.interior ?? 3));
   const maxStep = options.maxStep ?? 0.05;
   const maxPoints = options.maxPoints ?? 1000;
+  const maxWall = options.maxWall ?? DEFAULT_MAX_WALL;
+  const deadline = performance.now() + maxWall * 1000;
   const notes: string[] = [];
+  const budget = { maxWall, timedOut: false };
   if (hasLoopStates(model)) {
     // controllers and regulators: the rest state followed over the parameter, stability watched
-    const branches = traceLoop(param, valves, notes);
+    const loopBudget = { deadline, timedOut: false };
+    const branches = traceLoop(param, valves, notes, loopBudget);
+    budget.timedOut = loopBudget.timedOut;
     notes.push('controllers or regulators: the rest state followed by Newton at sampled values of the parameter, a change of stability located by bisection');
-    return traceResult(model, param, valves, branches, notes);
+    return traceResult(model, param, valves, branches, notes, budget);
   }
   const base = restSetup(model, valves);
   const baseMasses = Float64Array.from(model.chambers.map((c) => c.m0));
@@ -100,19 +106,23 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
     const scale = param.massOf && g.chambers.includes(param.massOf.chamber)
       ? Math.max(param.massOf.si(0), param.massOf.si(1)) : gas;
     const prob = new GroupProblem(param, gi, valves, baseMasses, scale, names);
-    const tracer = new Tracer(prob, maxStep, maxPoints);
+    const tracer = new Tracer(prob, maxStep, maxPoints, deadline);
     const traced: Float64Array[][] = [];
     for (const l of starts) {
+      if (performance.now() > deadline) { budget.timedOut = true; break; }
       const c = prob.context(l);
       if (typeof c === 'string') { notes.push(`at ${param.vary} = ${+param.value(l).toPrecision(6)} ${param.unit}: ${c.split('\n')[0]}`); continue; }
-      const eq = groupEquilibria(c.setup, c.group, c.masses, { maxCombinations: 4096, stability: false });
+      const eq = groupEquilibria(c.setup, c.group, c.masses, { maxCombinations: 4096, stability: false, deadline });
+      if (eq.timed_out) budget.timedOut = true;
       for (const e of eq.equilibria) {
         const x = new Float64Array(names.length + 1);
         e.chambers.forEach((ch, i) => { x[i] = Math.log(ch.mass / scale); });
         x[names.length] = l;
+        if (performance.now() > deadline) { budget.timedOut = true; break; }
         if (traced.some((nodes) => onBranch(tracer, nodes, x))) continue;
         const fwd = tracer.run(x, 1);
         const bwd = tracer.run(x, -1);
+        if (tracer.timedOut) budget.timedOut = true;
         const points = [...bwd.points.slice(1).reverse(), ...fwd.points];
         const nodes = [...bwd.nodes.slice(1).reverse(), ...fwd.nodes];
         if (points.length === 0) continue;
@@ -123,19 +133,19 @@ export function traceEquilibria(model: Model, options: TraceOptions): TraceOutco
   });
   if (closedTraced && param.gasFollows && !param.massOf) notes.push('the parameter is a start value: the gas each closed group holds follows it');
   else if (closedTraced && !param.massOf) notes.push('each closed group keeps the gas it holds in the netlist as written');
-  if (branches.length === 0) notes.push('no equilibrium found at any start value');
-  return traceResult(model, param, valves, branches, notes);
+  if (branches.length === 0) notes.push(budget.timedOut ? 'no branch traced within the time budget' : 'no equilibrium found at any start value');
+  return traceResult(model, param, valves, branches, notes, budget);
 }
 
 /** The result of a trace. */
-function traceResult(model: Model, param: { vary: string; from: number; to: number; unit: string }, valves: ValveState, branches: TraceBranch[], notes: string[]): TraceOutcome {
+function traceResult(model: Model, param: { vary: string; from: number; to: number; unit: string }, valves: ValveState, branches: TraceBranch[], notes: string[], budget: { maxWall: number; timedOut: boolean }): TraceOutcome {
   return {
     ok: true,
     value: {
       format: 1, title: model.doc.title, file: model.doc.file,
       status: 'ok', message: `${branches.length} branch${branches.length === 1 ? '' : 'es'}`,
       parameter: { vary: param.vary, from: param.from, to: param.to, unit: param.unit },
-      valves, branches, notes,
+      valves, branches, notes, max_wall: budget.maxWall, timed_out: budget.timedOut,
     },
   };
 }

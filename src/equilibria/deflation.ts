@@ -3,6 +3,7 @@
  * coordinates from many starts (Farrell, Birkisson & Funke, SIAM J. Sci. Comput. 37 (2015)
  * A2026; shifted operator with p = 2, σ = 1). See equilibria.ts for the choice of starts.
  */
+import { seededRandom } from '../linalg/arnoldi.js';
 import { DenseLu } from '../linalg/dense-lu.js';
 import { solveVolume } from '../model/volume.js';
 import type { WallPoint } from '../physics/wall.js';
@@ -11,17 +12,8 @@ import { chamberAt, segmentOfVolume, type AtP, type RestChamber } from './rest.j
 
 // ---- closed groups: deflated Newton ------------------------------------------------------
 
-/** Deterministic pseudo-random numbers in [0, 1) (mulberry32). */
-function random(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** Ordered starts (after the hints) tried whatever the deadline. */
+const MIN_STARTS = 8;
 
 /** Pressure (Pa abs), volume and dp/dm of a chamber holding mass m; NaN outside its law. */
 export function pressureOfMass(ch: RestChamber, m: number, pa: number, s: WallPoint, guess: number): { p: number; V: number; dpdm: number } {
@@ -37,7 +29,42 @@ export function pressureOfMass(ch: RestChamber, m: number, pa: number, s: WallPo
   return { p, V, dpdm: (s.dpdV * ch.RT) / (p + (V + ch.Vd) * s.dpdV) };
 }
 
-export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts: number, hints: Float64Array[]): Root[] {
+/** What the deflated search found, in the order found (the hints' first), and how far it got. */
+export interface DeflationResult {
+  roots: Root[];
+  /** Starts from which Newton was run. */
+  tried: number;
+  /** Starts planned. */
+  planned: number;
+  /** True when the deadline stopped the search before every start was tried. */
+  timedOut: boolean;
+}
+
+/**
+ * The Newton step of the rest equations, J d = −F, in O(n). J is an arrowhead: row 0 is all
+ * ones (Σu = 1), row i ≥ 1 has a_i on the diagonal and the same b in column 0 (p_i − p_0).
+ * From row i, d_i = (−F_i − b·d_0)/a_i; row 0 then gives d_0. Null when some a_i is zero (a
+ * chamber at an extremum of its wall curve) or the pivot of d_0 vanishes: the caller then
+ * factorises densely.
+ */
+function arrowheadStep(n: number, J: Float64Array, F: Float64Array, d: Float64Array): boolean {
+  const b = n > 1 ? J[n] : 0;
+  let sInv = 0;
+  let sF = 0;
+  for (let i = 1; i < n; i++) {
+    const a = J[i * n + i];
+    if (!(a !== 0) || !Number.isFinite(a)) return false;
+    sInv += 1 / a;
+    sF += F[i] / a;
+  }
+  const piv = 1 - b * sInv;
+  if (!(Math.abs(piv) > 1e-12 * (1 + Math.abs(b * sInv))) || !Number.isFinite(piv)) return false;
+  d[0] = (-F[0] + sF) / piv;
+  for (let i = 1; i < n; i++) d[i] = (-F[i] - b * d[0]) / J[i * n + i];
+  return true;
+}
+
+export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts: number, hints: Float64Array[], deadline = Infinity): DeflationResult {
   const n = chs.length;
   const s: WallPoint = { p: 0, dpdV: 0 };
   const tmp: AtP = { V: 0, m: 0, C: 0 };
@@ -47,7 +74,7 @@ export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts
   const d = new Float64Array(n);
   const guess = chs.map((c) => c.wall.V0);
   const found: Float64Array[] = [];
-  const rng = random(20250601);
+  const rng = seededRandom(20250601);
 
   /** Residual at u (masses / M); false outside the laws. */
   const residual = (u: Float64Array, withJ: boolean): boolean => {
@@ -77,9 +104,11 @@ export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts
     for (let it = 0; it < 80; it++) {
       if (!residual(u, true)) return null;
       const r = norm(F);
-      for (let i = 0; i < n; i++) d[i] = -F[i];
-      if (!lu.factor(Float64Array.from(J))) return null;
-      lu.solve(d);
+      if (!arrowheadStep(n, J, F, d)) {
+        for (let i = 0; i < n; i++) d[i] = -F[i];
+        if (!lu.factor(Float64Array.from(J))) return null;
+        lu.solve(d);
+      }
       let tau = 1;
       if (deflate && found.length) {
         let gd = 0;
@@ -162,7 +191,14 @@ export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts
     const total = h.reduce((a, x) => a + x, 0);
     return h.map((x) => x / total);
   });
-  for (const u0 of [...tries, ...combos.map(startAt)]) {
+  const planned = tries.length + combos.length;
+  let tried = 0;
+  let timedOut = false;
+  for (let k = 0; k < planned; k++) {
+    // a few starts past the hints always run, so that a budget spent elsewhere still finds some
+    if (k >= tries.length + MIN_STARTS && performance.now() > deadline) { timedOut = true; break; }
+    const u0 = k < tries.length ? tries[k] : startAt(combos[k - tries.length]);
+    tried++;
     if (!u0) continue;
     const u = newton(u0, true);
     if (!u) continue;
@@ -170,7 +206,7 @@ export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts
     if (found.some((z) => z.every((x, i) => Math.abs(x - polished[i]) <= 1e-7))) continue;
     found.push(polished);
   }
-  return found.map((u) => {
+  const roots = found.map((u) => {
     const at: AtP[] = [];
     const segs: number[] = [];
     let p = 0;
@@ -181,5 +217,6 @@ export function deflatedClosed(chs: RestChamber[], M: number, pa: number, starts
       segs.push(chs[i].wall.rigid ? 0 : segmentOfVolume(chs[i], r.V));
     }
     return { p, segs, at };
-  }).sort((a, b) => a.p - b.p);
+  });
+  return { roots, tried, planned, timedOut };
 }

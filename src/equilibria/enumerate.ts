@@ -66,7 +66,24 @@ export function cappedSegments(ch: RestChamber, M: number, pa: number, s: WallPo
   return list;
 }
 
-export function enumerateClosed(chs: RestChamber[], M: number, pa: number, maxComb: number): { roots: Root[]; combos: number } | null {
+/**
+ * How many branch combinations a closed group has for the gas M: the product over its chambers
+ * of their segments below the pressure where one chamber alone would hold all the gas (2^N for
+ * N spheres that can each be small or large). A number, never a list: 2^200 is about 1.6e60.
+ */
+export function branchCombinations(chs: RestChamber[], M: number, pa: number): number {
+  const s: WallPoint = { p: 0, dpdV: 0 };
+  const count = new Map<string, number>();
+  let total = 1;
+  for (const ch of chs) {
+    let k = count.get(ch.key);
+    if (k === undefined) { k = Math.max(1, cappedSegments(ch, M, pa, s).length); count.set(ch.key, k); }
+    total *= k;
+  }
+  return total;
+}
+
+export function enumerateClosed(chs: RestChamber[], M: number, pa: number, maxComb: number, deadline = Infinity): { roots: Root[]; combos: number; timedOut: boolean } | null {
   const s: WallPoint = { p: 0, dpdV: 0 };
   const tmp: AtP = { V: 0, m: 0, C: 0 };
   const distinct = new Map<string, RestChamber>();
@@ -164,8 +181,10 @@ export function enumerateClosed(chs: RestChamber[], M: number, pa: number, maxCo
     if (Number.isFinite(p)) addRoot(p);
   };
 
+  let timedOut = false;
   const leaf = (lo: number, hi: number): void => {
     combos++;
+    if ((combos & 255) === 0 && performance.now() > deadline) timedOut = true;
     const F = sumM[n];
     const D = sumC[n];
     for (let k = lo; k <= hi; k++) {
@@ -194,6 +213,7 @@ export function enumerateClosed(chs: RestChamber[], M: number, pa: number, maxCo
     if (i === n) { leaf(lo, hi); return; }
     const prof = profiles.get(chs[i].key)!;
     for (const c of prof.segs) {
+      if (timedOut) return;
       const a = Math.max(lo, c.k0);
       const b = Math.min(hi, c.k1);
       if (a > b) continue;
@@ -217,5 +237,5 @@ export function enumerateClosed(chs: RestChamber[], M: number, pa: number, maxCo
     if (!unique.some((u) => u.at.every((x, i) => Math.abs(x.m - r.at[i].m) <= SAME * M))) unique.push(r);
   }
   unique.sort((a, b) => a.p - b.p || a.segs.join().localeCompare(b.segs.join()));
-  return { roots: unique, combos };
+  return { roots: unique, combos, timedOut };
 }

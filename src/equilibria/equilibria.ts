@@ -60,7 +60,7 @@ import { groupEquilibria, groupMassesOf, oneWayChecks, worst } from './group.js'
 import { hasLoopStates, loopEquilibria } from './closed-loop.js';
 import { restSetup, type RestGroup, type RestSetup } from './rest.js';
 import type { StabilityVerdict } from './stability.js';
-import { DEFAULT_MAX_COMBINATIONS, DEFAULT_MAX_LISTED, REACHED, type ChamberRest, type EquilibriaOptions, type EquilibriaResult, type GroupEquilibrium, type GroupResult, type NetworkEquilibrium, type TransientMatch } from './types.js';
+import { DEFAULT_MAX_COMBINATIONS, DEFAULT_MAX_LISTED, DEFAULT_MAX_WALL, REACHED, TRANSIENT_SHARE, type ChamberRest, type EquilibriaOptions, type EquilibriaResult, type GroupEquilibrium, type GroupResult, type NetworkEquilibrium, type TransientMatch } from './types.js';
 
 export { restSetup } from './rest.js';
 export { groupEquilibria } from './group.js';
@@ -128,11 +128,21 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
   const gas = options.gas ?? (options.masses || !openDuringRun(model) ? 'start' : 'end');
   const maxCombinations = options.maxCombinations ?? DEFAULT_MAX_COMBINATIONS;
   const maxListed = options.maxListed ?? DEFAULT_MAX_LISTED;
+  const maxWall = options.maxWall ?? DEFAULT_MAX_WALL;
+  const deadline = performance.now() + maxWall * 1000;
   const setup = restSetup(model, valves);
   const notes = [...setup.notes];
 
   let run: RunResult | null = null;
-  if (options.transient !== false || (gas === 'end' && !options.masses)) run = simulate(model);
+  if (options.transient !== false || (gas === 'end' && !options.masses)) {
+    // the transient may use half the budget (less when the netlist's own max-wall is smaller)
+    const share = (TRANSIENT_SHARE * maxWall);
+    const own = model.simulate.maxWall;
+    run = simulate(own !== undefined && own <= share ? model : { ...model, simulate: { ...model.simulate, maxWall: share } });
+    if (run.status === 'failed' && (own === undefined || own > share) && /max-wall|wall/i.test(run.message)) {
+      notes.push(`the transient was stopped at ${+run.end.toPrecision(4)} s by its share of the time budget (${+share.toPrecision(3)} s of ${+maxWall.toPrecision(3)} s; --max-wall)`);
+    }
+  }
   const endMasses = run ? Float64Array.from(model.chambers.map((c) => run!.chambers[c.name].final.mass)) : null;
   let masses: Float64Array;
   if (options.masses) masses = Float64Array.from(options.masses);
@@ -170,6 +180,7 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
       status: failed ? 'failed' : 'ok',
       message: `${equilibria.length} equilibri${equilibria.length === 1 ? 'um' : 'a'}`,
       valves, gas, heat: model.heat, ambient: model.pa, groups: [group], equilibria, count: equilibria.length, transient, notes,
+      complete: group.complete, max_wall: maxWall, timed_out: false,
     };
   }
 
@@ -178,7 +189,7 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
   const known = new Float64Array(model.chambers.length).fill(Number.NaN);
   setup.groups.forEach((g, gi) => {
     if (g.kind !== 'open') return;
-    groups[gi] = groupEquilibria(setup, g, masses, { maxCombinations });
+    groups[gi] = groupEquilibria(setup, g, masses, { maxCombinations, deadline });
     const first = groups[gi].equilibria[0];
     const unique = groups[gi].equilibria.every((e) => e.chambers.every((c, i) => c.pressure === first.chambers[i].pressure));
     if (first && unique) g.chambers.forEach((c, i) => { known[c] = first.chambers[i].pressure; });
@@ -190,7 +201,7 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
   setup.groups.forEach((g, gi) => {
     if (g.kind === 'open') return;
     groups[gi] = groupEquilibria(setup, g, masses, {
-      maxCombinations, starts: options.starts, hints: endMasses ? [endMasses] : [], outside,
+      maxCombinations, starts: options.starts, hints: endMasses ? [endMasses] : [], outside, deadline,
     });
   });
 
@@ -254,11 +265,14 @@ export function findEquilibria(model: Model, options: EquilibriaOptions = {}): E
     return { cap: end('cap') ?? c.cap.m0, rod: end('rod') ?? c.rod?.m0 ?? 0 };
   });
   const cylinders = model.cylinders.length ? cylinderRests(model, valves, cylMasses) : undefined;
+  const timedOut = groups.some((g) => g.timed_out);
+  if (timedOut) notes.push(`the time budget of ${+maxWall.toPrecision(3)} s ran out: the equilibria found so far are listed (raise --max-wall for more)`);
   return {
     format: 1, title: model.doc.title, file: model.doc.file,
     status: failed ? 'failed' : 'ok',
     message: failed ? 'part of the analysis failed numerically (see the group notes)' : `${count} equilibri${count === 1 ? 'um' : 'a'}`,
     valves, gas, heat: model.heat, ambient: model.pa, groups, equilibria, count, transient, notes,
+    complete: groups.every((g) => g.complete), max_wall: maxWall, timed_out: timedOut,
     ...(cylinders ? { cylinders } : {}),
   };
 }

@@ -6,7 +6,7 @@
 import type { NodeRef } from '../model/types.js';
 import type { WallPoint } from '../physics/wall.js';
 import { deflatedClosed } from './deflation.js';
-import { enumerateClosed, type Root } from './enumerate.js';
+import { branchCombinations, enumerateClosed, type Root } from './enumerate.js';
 import { groupStability } from './rest-stability.js';
 import { chamberAt, restOf, type AtP, type RestChamber, type RestGroup, type RestSetup } from './rest.js';
 import type { StabilityVerdict } from './stability.js';
@@ -14,6 +14,11 @@ import { steadyPressures } from './steady.js';
 import type { ChamberRest, GroupResult } from './types.js';
 
 // ---- the whole analysis ------------------------------------------------------------------
+
+/** Share of a closed group's time budget the search for rest states may use. */
+const SEARCH_SHARE = 0.5;
+/** Rest states whose stability is analysed whatever the budget. */
+const MIN_ANALYSED = 2;
 
 export function groupMassesOf(g: RestGroup, masses: ArrayLike<number>): number {
   return g.chambers.reduce((a, c) => a + masses[c], 0);
@@ -86,6 +91,8 @@ export interface GroupOptions {
   hints?: Float64Array[];
   /** False to skip the stability analysis (continuation's starts). */
   stability?: boolean;
+  /** performance.now() after which the search stops and returns what it has (default: none). */
+  deadline?: number;
   /** Pressure of a node outside the group (reservoir, open group) when known. */
   outside?: (n: NodeRef) => number | null;
 }
@@ -99,7 +106,10 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
   const flowing = g.flowing.map((k) => model.branches[k].name);
   const result: GroupResult = {
     chambers: names, kind: g.kind, mass: null, method: 'none', combinations: 0, complete: true, equilibria: [], flowing, notes: [],
+    branch_combinations: 1, examined: 0, timed_out: false,
   };
+  const deadline = opts.deadline ?? Infinity;
+  let timedOut = false;
   const withStability = opts.stability !== false;
   const add = (at: ChamberRest[], note?: string): void => {
     const stability = withStability
@@ -116,22 +126,61 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
   if (g.kind === 'closed') {
     const M = groupMassesOf(g, masses);
     result.mass = M;
-    const en = enumerateClosed(chs, M, pa, opts.maxCombinations);
+    result.branch_combinations = branchCombinations(chs, M, pa);
+    // the search may use SEARCH_SHARE of the time left; the rest is for the states' stability
+    const now = performance.now();
+    const searchDeadline = now + SEARCH_SHARE * (deadline - now);
+    const en = enumerateClosed(chs, M, pa, opts.maxCombinations, searchDeadline);
     let roots: Root[];
     if (en) {
       roots = en.roots;
       result.method = 'enumeration';
       result.combinations = en.combos;
+      result.examined = en.combos;
+      if (en.timedOut) {
+        result.complete = false;
+        timedOut = true;
+        result.notes.push(`the time budget ran out after ${en.combos} of ${result.branch_combinations} branch combinations: the list may be incomplete`);
+      }
     } else {
       const starts = opts.starts ?? 64 + 16 * chs.length;
-      const hints = [Float64Array.from(g.chambers.map((c) => masses[c])), ...(opts.hints ?? []).map((h) => Float64Array.from(g.chambers.map((c) => h[c])))];
-      roots = deflatedClosed(chs, M, pa, starts, hints);
+      // the transient's end first (the state the run reaches), then the start
+      const hints = [...(opts.hints ?? []).map((h) => Float64Array.from(g.chambers.map((c) => h[c]))), Float64Array.from(g.chambers.map((c) => masses[c]))];
+      const d = deflatedClosed(chs, M, pa, starts, hints, searchDeadline);
+      roots = d.roots;
       result.method = 'deflation';
       result.combinations = starts;
+      result.examined = d.tried;
       result.complete = false;
-      result.notes.push(`more than ${opts.maxCombinations} branch combinations: searched by deflated Newton iteration from ${starts} starts; the list may be incomplete`);
+      result.notes.push(`more than ${opts.maxCombinations} branch combinations: searched by deflated Newton iteration from ${d.timedOut ? `${d.tried} of ${d.planned}` : d.planned} starts${d.timedOut ? ' (the time budget ran out)' : ''}; the list may be incomplete`);
+      if (d.timedOut) timedOut = true;
     }
-    for (const r of roots) add(r.at.map((a, i) => restOf(chs[i], r.p, pa, a.V, a.m, r.segs[i])));
+    // as long as the budget lasts: the state found from the transient's end first, then those with
+    // the fewest chambers off their first segment (where the stable states of spheres lie), each
+    // in the order found; the first MIN_ANALYSED whatever the budget
+    const first = roots.length && result.method === 'deflation' && (opts.hints ?? []).length ? roots.slice(0, 1) : [];
+    const offFirst = (r: Root): number => r.segs.reduce((a, k) => a + (k > 0 ? 1 : 0), 0);
+    const rest = roots.slice(first.length).map((r, k) => ({ r, k })).sort((a, b) => offFirst(a.r) - offFirst(b.r) || a.k - b.k).map((x) => x.r);
+    if (result.method === 'deflation') roots = [...first, ...rest];
+    let listed = 0;
+    let longest = 0; // the longest analysis so far: stop before one would overrun the budget
+    for (const r of roots) {
+      const t0 = performance.now();
+      if (withStability && listed >= MIN_ANALYSED && t0 + longest > deadline) {
+        timedOut = true;
+        result.complete = false;
+        result.notes.push(`the time budget ran out: ${roots.length - listed} more equilibri${roots.length - listed === 1 ? 'um' : 'a'} found but not analysed`);
+        break;
+      }
+      add(r.at.map((a, i) => restOf(chs[i], r.p, pa, a.V, a.m, r.segs[i])));
+      listed++;
+      longest = Math.max(longest, performance.now() - t0);
+    }
+    if (result.method === 'deflation') {
+      const order = result.equilibria.map((e, k) => ({ e, p: roots[k].p })).sort((a, b) => a.p - b.p);
+      result.equilibria = order.map((x) => x.e);
+    }
+    result.timed_out = timedOut;
     // states where a one-way valve to a known pressure has let gas in or out until it holds
     const sides = opts.outside ? sidesOf(setup, g, opts.outside) : [];
     for (const side of sides) {
@@ -166,6 +215,8 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
     if (!consistent) continue;
     const at = statesAt(chs, sp.p, pa, opts.maxCombinations, result.notes);
     result.combinations += at.total;
+    result.branch_combinations = result.combinations;
+    result.examined += Math.min(at.total, opts.maxCombinations);
     if (at.total > opts.maxCombinations) {
       result.complete = false;
       result.notes.push(`${at.total} branch combinations: only the first ${opts.maxCombinations} are listed`);

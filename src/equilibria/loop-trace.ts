@@ -27,7 +27,7 @@ const BISECTIONS = 34;
 
 type At = { y: Float64Array; point: TracePoint };
 
-export function traceLoop(param: Parameter, valves: ValveState, notes: string[]): TraceBranch[] {
+export function traceLoop(param: Parameter, valves: ValveState, notes: string[], budget: { deadline: number; timedOut: boolean } = { deadline: Infinity, timedOut: false }): TraceBranch[] {
   let prev: Float64Array | undefined;
   const at = (l: number, guess?: Float64Array): At | null => {
     const m = param.modelAt(l);
@@ -48,6 +48,7 @@ export function traceLoop(param: Parameter, valves: ValveState, notes: string[])
   let last: At | null = null;
   let why = 'end of the range';
   for (let k = 0; k <= SAMPLES; k++) {
+    if (performance.now() > budget.deadline) { budget.timedOut = true; why = 'the time budget ran out (--max-wall)'; break; }
     const l = k / SAMPLES;
     const here = at(l, prev);
     if (!here) { why = `no rest state found at ${param.vary} = ${param.value(l)} ${param.unit}`; break; }

@@ -3,7 +3,8 @@
  * group's coordinates (stability.ts).
  */
 import type { RestGroup, RestSetup } from './rest.js';
-import { stabilityAt, type Stability } from './stability.js';
+import { rightmostStability } from './rightmost.js';
+import { stabilityAt, type Linearisation, type Stability, type StabilityVerdict } from './stability.js';
 
 // ---- stability of a group's rest state ---------------------------------------------------
 
@@ -18,8 +19,8 @@ export function restState(setup: RestSetup, masses: ArrayLike<number>): Float64A
   return y;
 }
 
-/** Stability of a group at rest with the given masses for its chambers (others as in `base`). */
-export function groupStability(setup: RestSetup, g: RestGroup, groupMasses: ArrayLike<number>, base: ArrayLike<number>): Stability {
+/** The linearisation of a group at rest with the given masses for its chambers (others as in `base`). */
+export function groupLinearisation(setup: RestSetup, g: RestGroup, groupMasses: ArrayLike<number>, base: ArrayLike<number>): Linearisation {
   const { sys, model } = setup;
   const all = Float64Array.from(base);
   g.chambers.forEach((c, i) => { all[c] = groupMasses[i]; });
@@ -34,5 +35,23 @@ export function groupStability(setup: RestSetup, g: RestGroup, groupMasses: Arra
       if (sys.TIdx[c] >= 0 && model.chambers[c].heatTransfer > 0) { coords.push(sys.TIdx[c]); scales.push(model.Ta); }
     }
   }
-  return stabilityAt(sys, { t: setup.t, y, coords, scales, conserved: g.kind === 'closed' ? [massCoords] : [] });
+  return { t: setup.t, y, coords, scales, conserved: g.kind === 'closed' ? [massCoords] : [] };
+}
+
+/** Stability of a group at rest with the given masses for its chambers (others as in `base`). */
+export function groupStability(setup: RestSetup, g: RestGroup, groupMasses: ArrayLike<number>, base: ArrayLike<number>): Stability {
+  return stabilityAt(setup.sys, groupLinearisation(setup, g, groupMasses, base));
+}
+
+/**
+ * The growth rate and verdict of a group at rest, by the certified sparse rightmost eigenvalue
+ * (rightmost.ts) near `hint`, the growth rate of a nearby state; by the dense eigenvalues when
+ * that cannot certify it. Only what a traced point reports: no eigenvalue list, no time constant.
+ */
+export function groupGrowth(setup: RestSetup, g: RestGroup, groupMasses: ArrayLike<number>, base: ArrayLike<number>, hint: number): { growth_rate: number | null; stability: StabilityVerdict; sparse: boolean } {
+  const L = groupLinearisation(setup, g, groupMasses, base);
+  const fast = rightmostStability(setup.sys, L, hint);
+  if (fast) return { ...fast, sparse: true };
+  const st = stabilityAt(setup.sys, L);
+  return { growth_rate: st.growth_rate, stability: st.stability, sparse: false };
 }

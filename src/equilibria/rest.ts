@@ -74,6 +74,28 @@ function segmentsOf(wall: WallLaw, pa: number): Segment[] {
   return out;
 }
 
+/**
+ * A wall law's vacuum volume and segments, kept per wall object: continuation builds the rest
+ * setting again for every parameter value, with the same wall objects for the chambers the
+ * parameter does not touch (read-only once made).
+ */
+const shapes = new WeakMap<WallLaw, { pa: number; lo: number; segments: Segment[] }>();
+function wallShape(wall: WallLaw, pa: number): { lo: number; segments: Segment[] } {
+  const hit = shapes.get(wall);
+  if (hit && hit.pa === pa) return { lo: hit.lo, segments: hit.segments };
+  const made = { pa, lo: vacuumVolume(wall, pa), segments: segmentsOf(wall, pa) };
+  shapes.set(wall, made);
+  return { lo: made.lo, segments: made.segments };
+}
+
+/** The wall specification as text (which chambers share a wall law), kept per specification object. */
+const specKeys = new WeakMap<object, string>();
+function specKey(spec: object): string {
+  let k = specKeys.get(spec);
+  if (k === undefined) { k = JSON.stringify(spec); specKeys.set(spec, k); }
+  return k;
+}
+
 /** The volume on a segment where the wall's gauge pressure is g, or NaN when it never is. */
 function volumeOnSegment(wall: WallLaw, seg: Segment, g: number, s: WallPoint): number {
   const f = (V: number): number => { wall.eval(V, s); return s.p - g; };
@@ -193,8 +215,8 @@ export function restSetup(model: Model, valves: ValveState): RestSetup {
     const T = c.T0;
     return {
       index: i, name: c.name, wall: c.wall, Vd: c.deadVolume, T, RT: R * T,
-      lo: vacuumVolume(c.wall, rest.pa), segments: segmentsOf(c.wall, rest.pa),
-      key: `${JSON.stringify(c.spec.wall)}|${c.deadVolume}|${T}`,
+      ...wallShape(c.wall, rest.pa),
+      key: `${specKey(c.spec.wall)}|${c.deadVolume}|${T}`,
     };
   });
   return { model: rest, sys, t, chambers: restChambers, groups: restGroups, notes };

@@ -6,7 +6,8 @@
  * Zero modes. A closed group of chambers conserves its gas: with w the indicator of its mass
  * slots, wᵀJ = 0 for every state, so the subspace S = {δy : Wᵀδy = 0} is invariant under J and
  * J's spectrum is that of J restricted to S plus one zero per conservation law. The
- * restriction is QᵀJQ with Q an orthonormal basis of S (here in coordinates scaled to typical
+ * restriction is QᵀJQ with Q an orthonormal basis of S (Householder reflections of the
+ * conservation vectors, eigen.ts `restrictToComplement`; here in coordinates scaled to typical
  * sizes, where the law reads (D w)ᵀ(D⁻¹JD) = 0). The zero modes are thus removed by the
  * conservation vectors themselves, not by looking for small eigenvalues. Boundary-store slots
  * (reservoirs, feeds) are bookkeeping, never coordinates here.
@@ -17,7 +18,9 @@
  * Golub & Van Loan, 4th ed., §7.1.3 (invariant subspaces; from memory).
  */
 import type { NetworkSystem } from '../assemble/system.js';
-import { eigenvalues, orthonormalComplement, project } from '../linalg/eigen.js';
+import { eigenvalues, restrictToComplement } from '../linalg/eigen.js';
+import { scatterDense } from '../linalg/sparse-pattern.js';
+import { SPARSE_STABILITY_MIN, sparseScaledJacobian } from './rightmost.js';
 
 /** Relative central-difference increment: round-off ε/h and truncation h² balance near ε^(1/3). */
 const FD_STEP = 1e-6;
@@ -86,9 +89,9 @@ export function reducedSpectrum(J: Float64Array, n: number, conserved: number[][
       for (const i of pos) w[i] = 1;
       return w;
     });
-    const { Q, cols } = orthonormalComplement(W, n);
-    A = project(J, n, Q, cols);
-    m = cols;
+    const r = restrictToComplement(J, n, W);
+    A = r.A;
+    m = r.m;
   }
   const ev = eigenvalues(A, m);
   const list: { re: number; im: number }[] = [];
@@ -110,9 +113,25 @@ export function reducedSpectrum(J: Float64Array, n: number, conserved: number[][
   };
 }
 
+/**
+ * The scaled jacobian, dense. For many coordinates by coloured differences over the reserved
+ * pattern (rightmost.ts): the same entries (columns that share no row are perturbed together,
+ * so each entry comes from the same two evaluations of its own row) for a handful of rhs
+ * evaluations instead of two per coordinate.
+ */
+function jacobianOf(sys: NetworkSystem, L: Linearisation): Float64Array {
+  const n = L.coords.length;
+  if (n < SPARSE_STABILITY_MIN) return scaledJacobian(sys, L);
+  const sp = sparseScaledJacobian(sys, L);
+  if (!sp) return new Float64Array(n * n).fill(Number.NaN);
+  const J = new Float64Array(n * n);
+  scatterDense(sp.pattern, sp.values, J);
+  return J;
+}
+
 /** Linearises `sys` at a state and classifies it. */
 export function stabilityAt(sys: NetworkSystem, L: Linearisation): Stability {
-  const J = scaledJacobian(sys, L);
+  const J = jacobianOf(sys, L);
   for (const v of J) {
     if (!Number.isFinite(v)) return { eigenvalues: [], growth_rate: Number.NaN, time_constant: null, stability: 'marginal', ok: false };
   }

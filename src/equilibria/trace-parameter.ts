@@ -7,6 +7,7 @@ import { buildModel } from '../model/build.js';
 import type { Model } from '../model/types.js';
 import { checkPath, overrideValue, readWithOverrides, splitPath } from '../netlist/override.js';
 import type { NetlistDoc } from '../netlist/types.js';
+import { parseYamlTree } from '../netlist/yaml-tree.js';
 import { makeWall } from '../physics/wall.js';
 import { readScalar, valueText } from '../units/scalar.js';
 import { parseQuantity } from '../units/quantity.js';
@@ -128,9 +129,11 @@ export function makeParameter(model: Model, o: TraceOptions): { ok: true; value:
   const check = checkPath(source, o.vary);
   if (!check.ok) return { ok: false, message: check.message, hint: check.hint };
   const path = splitPath(o.vary);
+  // the YAML is parsed once; each value is set in a copy-on-write edit of the tree
+  const tree = parseYamlTree(source, file);
   const read = (x: number): NetlistDoc | string => {
     const text = ends.text(x);
-    const r = readWithOverrides(source, file, [{ path, value: overrideValue(text), label: `${o.vary} = ${text}` }]);
+    const r = readWithOverrides(source, file, [{ path, value: overrideValue(text), label: `${o.vary} = ${text}` }], tree);
     return r.ok ? r.value : r.diagnostics.map(formatDiagnostic).join('\n');
   };
   const docA = read(a);

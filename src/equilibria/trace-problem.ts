@@ -5,7 +5,7 @@
 import type { Model } from '../model/types.js';
 import type { WallPoint } from '../physics/wall.js';
 import { pressureOfMass } from './deflation.js';
-import { groupStability } from './rest-stability.js';
+import { groupGrowth, groupStability } from './rest-stability.js';
 import { restOf, restSetup, segmentOfVolume, type RestGroup, type RestSetup } from './rest.js';
 import { steadyPressures } from './steady.js';
 import { CACHE, type Parameter } from './trace-parameter.js';
@@ -23,6 +23,9 @@ export class GroupProblem {
   private readonly contexts = new Map<number, Context | string>();
   private readonly s: WallPoint = { p: 0, dpdV: 0 };
   private readonly guess: number[];
+  /** Points whose stability came from the sparse certified path, and from the dense eigenvalues. */
+  sparsePoints = 0;
+  densePoints = 0;
 
   constructor(
     readonly param: Parameter, readonly groupIndex: number, readonly valves: ValveState,
@@ -115,7 +118,13 @@ export class GroupProblem {
     return true;
   }
 
-  point(x: Float64Array, special?: TracePoint['special']): TracePoint | null {
+  /**
+   * The traced point at x. With `hint` (the growth rate at the previous point of the branch, or
+   * NaN for none) the growth rate comes from the certified sparse rightmost eigenvalue where it
+   * can (rightmost.ts); without it (special points, and while locating them) from the dense
+   * eigenvalues. The certificate makes both the same number to 1e-7 of its size.
+   */
+  point(x: Float64Array, special?: TracePoint['special'], hint?: number): TracePoint | null {
     const n = this.n;
     const c = this.context(x[n]);
     if (typeof c === 'string') return null;
@@ -130,7 +139,9 @@ export class GroupProblem {
       chambers[ch.name] = restOf(ch, r.p, pa, r.V, m, ch.wall.rigid ? 0 : segmentOfVolume(ch, r.V));
       gm.push(m);
     }
-    const st = groupStability(setup, group, gm, c.masses);
+    const st = hint !== undefined && (!special || special === 'end') ? groupGrowth(setup, group, gm, c.masses, hint) : groupStability(setup, group, gm, c.masses);
+    if ('sparse' in st && st.sparse) this.sparsePoints++;
+    else this.densePoints++;
     return {
       parameter: this.param.value(x[n]), chambers, stable: st.stability === 'stable', stability: st.stability,
       growth_rate: st.growth_rate, ...(special ? { special } : {}),

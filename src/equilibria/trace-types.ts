@@ -14,6 +14,8 @@ export interface TraceOptions {
   maxStep?: number;
   /** Points per branch at most (default 1000). */
   maxPoints?: number;
+  /** Wall-clock budget in seconds (default 30); then the branches traced so far are returned, marked `timed_out`. */
+  maxWall?: number;
 }
 
 export interface TracePoint {
@@ -45,6 +47,10 @@ export interface TraceResult {
   valves: ValveState;
   branches: TraceBranch[];
   notes: string[];
+  /** The time budget, seconds. */
+  max_wall: number;
+  /** True when the time budget stopped the tracing (branches may be cut short or missing). */
+  timed_out: boolean;
 }
 
 export type TraceOutcome = { ok: true; value: TraceResult } | { ok: false; message: string; hint: string };

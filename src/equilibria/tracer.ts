@@ -4,6 +4,9 @@
  * branch points and stability changes by bisection along the arc (see continuation.ts).
  */
 import { DenseLu } from '../linalg/dense-lu.js';
+import { SparseLu } from '../linalg/sparse-lu.js';
+import { patternFromEntries, type SparsePattern } from '../linalg/sparse-pattern.js';
+import { SPARSE_STABILITY_MIN } from './rightmost.js';
 import { GroupProblem } from './trace-problem.js';
 import type { TracePoint } from './trace-types.js';
 
@@ -44,6 +47,51 @@ function augmented(n: number, J: Float64Array, Fl: Float64Array, t: Float64Array
   return sign;
 }
 
+/**
+ * The augmented system of a large group by sparse LU: the equations' jacobian has at most a full
+ * first row (the gas balance), a full first column (the pressure of the first chamber) and the
+ * diagonal (trace-problem.ts), bordered by ∂F/∂ℓ and the tangent. The minimum-degree order puts
+ * the two full rows last; pivots are static (sparse-lu.ts), and when one is too small the dense
+ * factorisation with partial pivoting takes over. The determinant's sign is that of the product
+ * of the pivots (a symmetric permutation leaves the determinant unchanged).
+ */
+class SparseAugmented {
+  private readonly pattern: SparsePattern;
+  private readonly values: Float64Array;
+  private readonly lu: SparseLu;
+
+  constructor(readonly n: number) {
+    const N = n + 1;
+    const rows: number[] = [];
+    const cols: number[] = [];
+    for (let j = 0; j < N; j++) { rows.push(0, n); cols.push(j, j); }
+    for (let i = 1; i < n; i++) { rows.push(i, i, i); cols.push(0, i, n); }
+    this.pattern = patternFromEntries(N, rows, cols);
+    this.values = new Float64Array(this.pattern.rowPtr[N]);
+    this.lu = new SparseLu(this.pattern);
+  }
+
+  /** As `augmented`; null when the static pivots fail (the caller then factorises densely). */
+  solve(J: Float64Array, Fl: Float64Array, t: Float64Array, rhs: Float64Array): number | null {
+    const n = this.n;
+    const v = this.values;
+    const { rowPtr, colIdx } = this.pattern;
+    for (let i = 0; i <= n; i++) {
+      for (let a = rowPtr[i]; a < rowPtr[i + 1]; a++) {
+        const j = colIdx[a];
+        v[a] = i === n ? t[j] : j === n ? Fl[i] : J[i * n + j];
+      }
+    }
+    // entries of J outside the pattern must be zero, or the sparse solve would be of another matrix
+    for (let i = 1; i < n; i++) {
+      for (let j = 1; j < n; j++) if (j !== i && J[i * n + j] !== 0) return null;
+    }
+    if (!this.lu.factor(v)) return null;
+    this.lu.solve(rhs);
+    return this.lu.negativePivots() % 2 === 0 ? 1 : -1;
+  }
+}
+
 function norm(v: Float64Array): number {
   return Math.sqrt(v.reduce((a, x) => a + x * x, 0));
 }
@@ -56,13 +104,27 @@ export class Tracer {
   private readonly J: Float64Array;
   private readonly F: Float64Array;
   private readonly Fl: Float64Array;
+  private start: { x: Float64Array; point: TracePoint | null } | null = null;
+  private readonly sparse: SparseAugmented | null;
+  private work: { Fl: Float64Array; F: Float64Array; J: Float64Array } | null = null;
+  private luN: DenseLu | null = null;
 
-  constructor(readonly prob: GroupProblem, readonly maxStep: number, readonly maxPoints: number) {
+  /** Set when the deadline stopped a branch. */
+  timedOut = false;
+
+  constructor(readonly prob: GroupProblem, readonly maxStep: number, readonly maxPoints: number, readonly deadline = Infinity) {
     this.n = prob.n;
     this.lu = new DenseLu(this.n + 1);
     this.J = new Float64Array(this.n * this.n);
     this.F = new Float64Array(this.n);
     this.Fl = new Float64Array(this.n);
+    this.sparse = this.n + 1 >= SPARSE_STABILITY_MIN ? new SparseAugmented(this.n) : null;
+  }
+
+  /** Solves the augmented system (sparse for large groups, else or when that fails dense); the determinant's sign. */
+  private augmented(J: Float64Array, Fl: Float64Array, t: Float64Array, rhs: Float64Array): number {
+    const s = this.sparse?.solve(J, Fl, t, rhs);
+    return s ?? augmented(this.n, J, Fl, t, rhs, this.lu);
   }
 
   /** Tangent at a solution x, oriented along `prev` (or with ℓ increasing × sign); det sign too. */
@@ -72,12 +134,12 @@ export class Tracer {
     const c = prev ?? (() => { const e = new Float64Array(n + 1); e[n] = 1; return e; })();
     const z = new Float64Array(n + 1);
     z[n] = 1;
-    let det = augmented(n, this.J, this.Fl, c, z, this.lu);
+    let det = this.augmented(this.J, this.Fl, c, z);
     if (det === 0) {
       // at a fold the ℓ direction is tangent-orthogonal: orient by a fixed generic vector
       const g = new Float64Array(n + 1).map((_, i) => 1 + 0.1 * i);
       z.fill(0); z[n] = 1;
-      det = augmented(n, this.J, this.Fl, g, z, this.lu);
+      det = this.augmented(this.J, this.Fl, g, z);
       if (det === 0) return null;
     }
     const s = norm(z);
@@ -85,7 +147,7 @@ export class Tracer {
     if (!prev && z[n] * sign < 0) for (let i = 0; i <= n; i++) z[i] = -z[i];
     // the determinant with the tangent itself as the last row
     const w = new Float64Array(n + 1);
-    const dsign = augmented(n, this.J, this.Fl, z, w, this.lu);
+    const dsign = this.augmented(this.J, this.Fl, z, w);
     return { t: z, det: dsign };
   }
 
@@ -96,9 +158,8 @@ export class Tracer {
     const y = new Float64Array(N);
     for (let i = 0; i < N; i++) y[i] = x[i] + h * t[i];
     const pred = Float64Array.from(y);
-    const Fl = new Float64Array(n);
-    const F = new Float64Array(n);
-    const J = new Float64Array(n * n);
+    // the corrector's own buffers (n² doubles: kept, not allocated at every call)
+    const { Fl, F, J } = (this.work ??= { Fl: new Float64Array(n), F: new Float64Array(n), J: new Float64Array(n * n) });
     if (!this.prob.eval(y, F, J) || !this.prob.dl(y, F, Fl)) return null;
     for (let it = 1; it <= NEWTON_MAX; it++) {
       const rhs = new Float64Array(N);
@@ -106,7 +167,7 @@ export class Tracer {
       let c = 0;
       for (let i = 0; i < N; i++) c += t[i] * (y[i] - pred[i]);
       rhs[n] = -c;
-      if (augmented(n, J, Fl, t, rhs, this.lu) === 0) return null;
+      if (this.augmented(J, Fl, t, rhs) === 0) return null;
       for (let i = 0; i < N; i++) y[i] += rhs[i];
       if (!this.prob.eval(y, F, J)) return null;
       const r = F.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
@@ -121,9 +182,8 @@ export class Tracer {
     const n = this.n;
     const y = Float64Array.from(guess);
     y[n] = l;
-    const F = new Float64Array(n);
-    const J = new Float64Array(n * n);
-    const lu = new DenseLu(n);
+    const { F, J } = (this.work ??= { Fl: new Float64Array(n), F: new Float64Array(n), J: new Float64Array(n * n) });
+    const lu = (this.luN ??= new DenseLu(n));
     for (let it = 0; it < 30; it++) {
       if (!this.prob.eval(y, F, J)) return null;
       const r = F.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
@@ -162,7 +222,9 @@ export class Tracer {
     const nodes: Float64Array[] = [];
     const first = this.tangent(x0, null, sign);
     if (!first) return { points, nodes, why: 'no tangent at the start (singular equations)' };
-    const p0 = this.prob.point(x0);
+    // a branch is followed both ways from one start: its stability is taken once
+    const p0 = this.start?.x === x0 ? this.start.point : this.prob.point(x0, undefined, Number.NaN);
+    this.start = { x: x0, point: p0 };
     if (!p0) return { points, nodes, why: 'the start is outside the model' };
     let cur: Node = { x: x0, t: first.t, det: first.det, growth: p0.growth_rate ?? Number.NaN };
     points.push(p0);
@@ -170,6 +232,7 @@ export class Tracer {
     let h = Math.min(this.maxStep, 0.01);
     let why = `reached ${this.maxPoints} points`;
     while (points.length < this.maxPoints) {
+      if (performance.now() > this.deadline) { this.timedOut = true; why = 'the time budget ran out (--max-wall)'; break; }
       const c = this.correct(cur.x, cur.t, h);
       const tn = c ? this.tangent(c.x, cur.t, 1) : null;
       const turn = tn ? tn.t.reduce((a, v, i) => a + v * cur.t[i], 0) : -1;
@@ -185,12 +248,12 @@ export class Tracer {
         const w = (lb - cur.x[n]) / (l - cur.x[n]);
         const guess = cur.x.map((v, i) => v + w * (c.x[i] - v));
         const end = this.atParameter(guess, lb);
-        const pt = end ? this.prob.point(end, 'end') : null;
+        const pt = end ? this.prob.point(end, 'end', cur.growth) : null;
         if (pt && end && Math.abs(cur.x[n] - lb) > 1e-12) { points.push(pt); nodes.push(end); }
         why = `reached ${this.prob.param.vary} = ${+this.prob.param.value(lb).toPrecision(6)}${this.prob.param.unit ? ` ${this.prob.param.unit}` : ''}`;
         break;
       }
-      const pt = this.prob.point(c.x);
+      const pt = this.prob.point(c.x, undefined, cur.growth);
       if (!pt) { h *= 0.5; if (h < H_MIN) { why = 'the netlist is not valid beyond this value'; break; } continue; }
       if (Object.values(pt.chambers).some((ch) => (ch.stretch ?? 0) > MAX_STRETCH) || c.x.some((v, i) => i < n && v > Math.log(MAX_U))) {
         points.push(pt);

@@ -11,6 +11,10 @@ import type { CylinderRest } from './cylinder-rest.js';
 export const SAMPLES = 128;
 /** Branch combinations per closed group searched exhaustively before switching to deflation. */
 export const DEFAULT_MAX_COMBINATIONS = 4096;
+/** Wall-clock budget of `findEquilibria` and `traceEquilibria` by default, seconds. */
+export const DEFAULT_MAX_WALL = 30;
+/** Share of the budget the transient may use (the search has the rest, at least). */
+export const TRANSIENT_SHARE = 0.5;
 /** Network equilibria listed at most (the count is always reported). */
 export const DEFAULT_MAX_LISTED = 1000;
 /** Two rest states are the same when every chamber's mass agrees to this fraction of the group's gas. */
@@ -28,6 +32,12 @@ export interface EquilibriaOptions {
   transient?: boolean;
   maxCombinations?: number;
   maxListed?: number;
+  /**
+   * Wall-clock budget in seconds (default 30): the transient may use half of it; when it runs out
+   * the search stops and the result lists the equilibria found and analysed so far, marked
+   * incomplete (`complete: false`, `timed_out: true`). Infinity for none.
+   */
+  maxWall?: number;
   /** Starts for the deflated Newton search of large groups (default 64 + 16 per chamber). */
   starts?: number;
   /** Per-chamber gas masses (kg) to use instead of the start or end state. */
@@ -60,6 +70,12 @@ export interface GroupResult {
   method: 'enumeration' | 'deflation' | 'steady-flow' | 'closed-loop' | 'none';
   /** Branch combinations examined, or starts of the deflated search. */
   combinations: number;
+  /** Branch combinations the group has for its gas (closed groups: the product of each chamber's branches, 2^N for N spheres), or the volume combinations at its steady pressures (open groups). */
+  branch_combinations: number;
+  /** Branch combinations enumerated, or starts of the deflated search actually tried. */
+  examined: number;
+  /** True when the time budget stopped the search. */
+  timed_out: boolean;
   /** False when the method cannot promise that every equilibrium is listed. */
   complete: boolean;
   equilibria: GroupEquilibrium[];
@@ -112,6 +128,12 @@ export interface EquilibriaResult {
   count: number;
   transient: TransientMatch | null;
   notes: string[];
+  /** False when some group's list may be incomplete (a deflated search, or the time budget ran out). */
+  complete: boolean;
+  /** The time budget, seconds. */
+  max_wall: number;
+  /** True when the time budget stopped the search. */
+  timed_out: boolean;
   /** Rest positions of cylinders and their stability with the load (cylinder-rest.ts). */
   cylinders?: CylinderRest[];
 }

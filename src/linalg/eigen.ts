@@ -299,3 +299,63 @@ export function project(A: Float64Array, n: number, Q: Float64Array, c: number):
   }
   return R;
 }
+
+/**
+ * The matrix of A (n×n) restricted to the orthogonal complement of k linearly independent
+ * vectors, when that complement is invariant under A: with Householder reflections
+ * H = H_1 ⋯ H_k taking the vectors into the span of the first k unit vectors (a QR
+ * factorisation of the n×k matrix they form), the complement is spanned by the last n − k
+ * columns of H, and the restriction is the trailing (n − k)×(n − k) block of HᵀAH. Each
+ * reflection is applied to both sides in O(n²), so this costs O(k·n²) instead of the O(n³) of
+ * `orthonormalComplement` and `project`; the eigenvalues are the same.
+ *
+ * References: Golub & Van Loan, Matrix Computations, 4th ed., §5.1.2–5.1.4 (Householder
+ * reflections and their application in O(n²)) and §5.2.2 (Householder QR).
+ */
+export function restrictToComplement(A: Float64Array, n: number, vectors: Float64Array[]): { A: Float64Array; m: number } {
+  const k = vectors.length;
+  const M = Float64Array.from(A.subarray(0, n * n));
+  const W = vectors.map((w) => Float64Array.from(w));
+  const v = new Float64Array(n);
+  const t = new Float64Array(n);
+  for (let r = 0; r < k; r++) {
+    // reflection on rows/columns r..n−1 taking W[r][r..] to a multiple of e_r
+    const w = W[r];
+    let s = 0;
+    for (let i = r; i < n; i++) s += w[i] * w[i];
+    const alpha = Math.sqrt(s);
+    if (!(alpha > 0)) throw new Error('restrictToComplement: the given vectors are dependent');
+    v.fill(0);
+    for (let i = r; i < n; i++) v[i] = w[i];
+    v[r] += w[r] >= 0 ? alpha : -alpha;
+    let vv = 0;
+    for (let i = r; i < n; i++) vv += v[i] * v[i];
+    const beta = 2 / vv;
+    // later vectors: w ← (I − β v vᵀ) w
+    for (let q = r + 1; q < k; q++) {
+      let d = 0;
+      for (let i = r; i < n; i++) d += v[i] * W[q][i];
+      for (let i = r; i < n; i++) W[q][i] -= beta * d * v[i];
+    }
+    // M ← (I − β v vᵀ) M (I − β v vᵀ)
+    t.fill(0);
+    for (let i = r; i < n; i++) {
+      const vi = v[i];
+      for (let j = 0; j < n; j++) t[j] += vi * M[i * n + j];
+    }
+    for (let i = r; i < n; i++) {
+      const bv = beta * v[i];
+      for (let j = 0; j < n; j++) M[i * n + j] -= bv * t[j];
+    }
+    for (let i = 0; i < n; i++) {
+      let d = 0;
+      for (let j = r; j < n; j++) d += M[i * n + j] * v[j];
+      const bd = beta * d;
+      for (let j = r; j < n; j++) M[i * n + j] -= bd * v[j];
+    }
+  }
+  const m = n - k;
+  const out = new Float64Array(m * m);
+  for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) out[i * m + j] = M[(i + k) * n + (j + k)];
+  return { A: out, m };
+}

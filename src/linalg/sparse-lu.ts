@@ -163,6 +163,19 @@ export class SparseLu {
     return true;
   }
 
+  /**
+   * Pivots below zero in the last successful `factor`. Without row exchanges the pivots are the
+   * ratios of leading principal minors of the symmetrically permuted matrix, so for a matrix
+   * diagonally similar to a symmetric one this is the number of its negative eigenvalues
+   * (Sylvester's law of inertia; Golub & Van Loan, 4th ed., §8.1.1 and §4.1.2 on LDLᵀ).
+   */
+  negativePivots(): number {
+    if (!this.ok) throw new Error('SparseLu.negativePivots called without a successful factor()');
+    let count = 0;
+    for (let k = 0; k < this.n; k++) if (this.f[this.diag[k]] < 0) count++;
+    return count;
+  }
+
   /** Solves M x = b in place (b becomes x) with the factors of the last successful `factor`. */
   solve(b: Float64Array): void {
     if (!this.ok) throw new Error('SparseLu.solve called without a successful factor()');

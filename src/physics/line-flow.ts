@@ -44,7 +44,7 @@
  * once choked, exactly 0 at equal pressures and linear in Δp near them (laminar there), so
  * the jacobian is finite with no patch.
  *
- * Solving: one safeguarded root search (Brent) on G for
+ * Solving: one safeguarded root search (secant on G², bracketed) for
  *   Ψ(G) = p1² − pe² − G² R T1 [f L/D + 2w ln(p1/pe)],  pe = max(pb, √w·p2*),
  * which is positive below the solution and negative above it (Ψ < 0 where the entrance cannot
  * pass G at all); M1(G) by a safeguarded Newton iteration on the entrance relation. Laminar
@@ -56,7 +56,6 @@
  * for comparison) and ch. 5; docs/references.md ("Compressible flow limits").
  */
 import type { Gas } from './gas.js';
-import { brent } from './roots.js';
 import { orificeMassFlow, criticalPressureRatio } from './orifice.js';
 import { frictionFactor, RE_LAMINAR, RE_TURBULENT, tubeFlowInto, type TubeFlow } from './tube.js';
 
@@ -69,10 +68,12 @@ export interface LineFlow extends TubeFlow {
   accel: number;
   /** The ideal-nozzle bound set the flow. */
   limited: boolean;
+  /** Mass flux G (kg/(m²·s)) of the last call with this object: the next call's first guess. */
+  flux: number;
 }
 
 export function emptyLineFlow(): LineFlow {
-  return { mdot: 0, reynolds: 0, regime: 'laminar', friction: Infinity, choked: false, mach: 0, accel: 0, limited: false };
+  return { mdot: 0, reynolds: 0, regime: 'laminar', friction: Infinity, choked: false, mach: 0, accel: 0, limited: false, flux: 0 };
 }
 
 /** Weight of the acceleration terms: 0 laminar, 1 turbulent, C¹ smoothstep between. */
@@ -86,6 +87,8 @@ export function accelWeight(Re: number): number {
 /** Whether the current evaluation took the laminar closed form. */
 const s0 = { laminar: false };
 
+const EPS = Number.EPSILON;
+
 /** Working values of one evaluation of Ψ (module scratch: no allocation inside the rhs). */
 const st = { p0: 0, pb: 0, T0: 0, R: 0, gamma: 0, D: 0, LD: 0, mu: 0, rel: 0, flux0: 0, M1: 0, T1: 0, p1: 0, pe: 0, ps: 0, w: 0, f: 0 };
 
@@ -96,25 +99,54 @@ const st = { p0: 0, pb: 0, T0: 0, R: 0, gamma: 0, D: 0, LD: 0, mu: 0, rel: 0, fl
  * below M, so M ≥ g: Newton from g, bisection whenever a step leaves the bracket.
  */
 function inletMach(g: number, w: number, gamma: number): number {
+  if (gamma !== machGamma) machConstants(gamma); // psi uses them too
   if (w === 0) return g;
-  const k = 0.5 * (gamma - 1);
-  const n = (gamma + 1) / (2 * (gamma - 1));
+  const k = machK, n = machN;
   let hi = 1 / Math.sqrt(w * gamma);
-  if (g > hi * Math.pow(1 + w * k * hi * hi, -n)) return Number.NaN;
+  // the left side at the branch's end: hi (1 + w k hi²)^(−n) = hi (1 + k/γ)^(−n)
+  if (g > hi * machEdge) return Number.NaN;
   let lo = g;
-  let M = g;
+  // start from one fixed-point sweep M = g (1 + w k g²)^n, inside the bracket (M ≥ g)
+  let M = Math.min(g / powMinusN(1 + w * k * g * g), 0.5 * (g + hi));
   for (let i = 0; i < 100; i++) {
     const e = 1 + w * k * M * M;
-    const r = M * Math.pow(e, -n) - g;
+    const q = powMinusN(e);
+    const r = M * q - g;
     if (r === 0) return M;
     if (r < 0) lo = M; else hi = M;
-    const dq = (1 - w * M * M) * Math.pow(e, -n - 1);
+    const dq = ((1 - w * M * M) * q) / e;
     let next = M - r / dq;
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
     if (Math.abs(next - M) <= 1e-15 * next) return next;
     M = next;
   }
   return M;
+}
+
+/**
+ * inletMach's constants for the last γ: k = (γ−1)/2, n = (γ+1)/(2(γ−1)), (1 + k/γ)^(−n), and n
+ * as an integer when it is one to round-off (3 for air and nitrogen, 2 for helium): x^(−n) is
+ * then a few multiplications instead of a call of Math.pow, the cost of the line law.
+ */
+let machGamma = Number.NaN, machK = 0, machN = 0, machEdge = 0, machNInt = 0;
+function machConstants(gamma: number): void {
+  machK = 0.5 * (gamma - 1);
+  machN = (gamma + 1) / (2 * (gamma - 1));
+  machEdge = Math.pow(1 + machK / gamma, -machN);
+  const r = Math.round(machN);
+  machNInt = r >= 1 && r <= 4 && Math.abs(machN - r) < 1e-12 ? r : 0;
+  machGamma = gamma;
+}
+
+/** x^(−n) for the current γ (machConstants). */
+function powMinusN(x: number): number {
+  switch (machNInt) {
+    case 2: return 1 / (x * x);
+    case 3: return 1 / (x * x * x);
+    case 1: return 1 / x;
+    case 4: { const x2 = x * x; return 1 / (x2 * x2); }
+    default: return Math.pow(x, -machN);
+  }
 }
 
 /** Ψ(G) of the header, filling the scratch with the state it used. */
@@ -128,12 +160,45 @@ function psi(G: number): number {
   if (Number.isNaN(M1)) return -s.p0 * s.p0;
   const e = 1 + 0.5 * (s.gamma - 1) * w * M1 * M1;
   const T1 = s.T0 / e;
-  const p1 = s.p0 * Math.pow(e, -s.gamma / (s.gamma - 1));
+  const p1 = (s.p0 * powMinusN(e)) / Math.sqrt(e); // p0·e^(−γ/(γ−1)), γ/(γ−1) = n + 1/2
   const c2 = G * G * s.R * T1;
   const ps = Math.sqrt(c2);
   const pe = Math.max(s.pb, Math.sqrt(w) * ps);
   s.M1 = M1; s.T1 = T1; s.p1 = p1; s.pe = pe; s.ps = ps; s.w = w; s.f = f;
   return (p1 - pe) * (p1 + pe) - c2 * (f * s.LD + 2 * w * Math.log(p1 / pe));
+}
+
+/**
+ * The root of Ψ (Ψ(0) = d0 > 0, decreasing in G) from a first guess u1 of u = G². Ψ is nearly
+ * linear in u (Ψ ≈ d0 − K·u, K varying slowly with G), so the first step is Newton's with the
+ * slope of that model through the guess, the next ones secant steps, each kept inside the
+ * bracket found so far (bisection, or doubling while no upper end is known, when a step leaves
+ * it or |Ψ| has not halved). Stops when |Ψ| is at the round-off of its terms (each at most p0²)
+ * or a step is below a few round-offs of u, always at a point Ψ was last evaluated at (the
+ * scratch holds its state). From the previous solution of the same line (a warm start: between
+ * the evaluations of an integration step the flow changes little) three or four evaluations of
+ * Ψ; from the friction-only flow (cold) about six; a bracketing Brent search from [0, hi] took
+ * twelve. Same root to round-off (test/physics/line-flow.test.ts).
+ */
+function rootOfPsi(u1: number, d0: number): number {
+  let ulo = 0, uhi = Infinity;
+  let u0 = Number.NaN, f0 = Number.NaN;
+  let best = d0;
+  const noise = 16 * EPS * st.p0 * st.p0;
+  for (let i = 0; i < 300; i++) {
+    const f1 = psi(Math.sqrt(u1));
+    if (Math.abs(f1) <= noise) return Math.sqrt(u1);
+    if (f1 > 0) ulo = u1; else uhi = u1;
+    if (uhi < Infinity && uhi - ulo <= 4 * EPS * uhi) return Math.sqrt(u1);
+    let next = i === 0 || f1 === f0 ? (u1 * d0) / (d0 - f1) : u1 - (f1 * (u1 - u0)) / (f1 - f0);
+    const small = Math.abs(f1);
+    if (!(next > ulo && next < uhi) || (i > 0 && small > 0.5 * best)) next = uhi < Infinity ? 0.5 * (ulo + uhi) : 2 * u1;
+    best = Math.min(best, small);
+    if (Math.abs(next - u1) <= 2 * EPS * u1) return Math.sqrt(u1);
+    u0 = u1; f0 = f1; u1 = next;
+  }
+  psi(Math.sqrt(u1)); // not reached in practice; leave the scratch at the point returned
+  return Math.sqrt(u1);
 }
 
 /**
@@ -178,12 +243,9 @@ export function lineFlowInto(
     const s = st;
     s.p0 = p0; s.pb = pb; s.T0 = T; s.R = gas.R; s.gamma = gamma; s.D = D; s.LD = L / D; s.mu = mu;
     s.rel = roughness / D; s.flux0 = p0 * Math.sqrt(gamma / (gas.R * T));
-    // Bracket: Ψ(0) > 0; the friction-only flow is an upper bound in practice, doubled if not.
-    let hi = Math.abs(out.mdot) / A;
-    let fhi = psi(hi);
-    for (let i = 0; i < 60 && fhi >= 0; i++) { hi *= 2; fhi = psi(hi); }
-    G = brent(psi, 0, hi, psi(0), fhi);
-    psi(G); // leave the scratch at the solution
+    // first guess: the last solution of this line, else the friction-only flow (an upper bound)
+    const guess = out.flux > 0 ? out.flux : Math.abs(out.mdot) / A;
+    G = rootOfPsi(guess * guess, (p0 - pb) * (p0 + pb));
     const Re = (G * D) / mu;
     out.reynolds = Re;
     out.friction = s.f;
@@ -204,6 +266,7 @@ export function lineFlowInto(
     out.reynolds = (m / A) * D / mu;
   }
   out.mdot = forward ? m : -m;
+  out.flux = m / A;
   return out;
 }
 

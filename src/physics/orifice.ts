@@ -12,17 +12,28 @@
  * mass flow through a nozzle); Shapiro 1953, ch. 4.
  */
 
+/** The constants of a gas's γ, kept for the last γ asked (a network has one gas). */
+let lastGamma = Number.NaN, lastRc = Number.NaN, lastChoke = Number.NaN;
+function constantsOf(gamma: number): void {
+  if (gamma === lastGamma) return;
+  lastRc = Math.pow(2 / (gamma + 1), gamma / (gamma - 1));
+  lastChoke = Math.pow(2 / (gamma + 1), (gamma + 1) / (2 * (gamma - 1)));
+  lastGamma = gamma;
+}
+
 /** Critical pressure ratio r* = (2/(γ+1))^(γ/(γ−1)) (0.528281788 for γ = 1.4). */
 export function criticalPressureRatio(gamma: number): number {
-  return Math.pow(2 / (gamma + 1), gamma / (gamma - 1));
+  constantsOf(gamma);
+  return lastRc;
 }
 
 /** Mass flow (kg/s) from (p0, T0) into back pressure p2; Cd·A is the effective area (m²). */
 export function orificeMassFlow(p0: number, p2: number, T0: number, R: number, gamma: number, A: number, Cd = 1): number {
   if (!(p2 < p0)) return 0;
   const r = p2 / p0;
-  if (r <= criticalPressureRatio(gamma)) {
-    return Cd * A * p0 * Math.sqrt(gamma / (R * T0)) * Math.pow(2 / (gamma + 1), (gamma + 1) / (2 * (gamma - 1)));
+  constantsOf(gamma);
+  if (r <= lastRc) {
+    return Cd * A * p0 * Math.sqrt(gamma / (R * T0)) * lastChoke;
   }
   const phi = Math.pow(r, 2 / gamma) - Math.pow(r, (gamma + 1) / gamma);
   return Cd * A * p0 * Math.sqrt(((2 * gamma) / ((gamma - 1) * R * T0)) * phi);

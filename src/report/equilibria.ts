@@ -18,6 +18,14 @@ function table(head: string[], rows: string[][]): string {
   return [line(head), line(w.map((n) => '-'.repeat(n))), ...rows.map(line)].join('\n');
 }
 
+/** A count that may be astronomically large (2^N branch combinations). */
+function count(x: number): string {
+  if (!Number.isFinite(x)) return 'more than 1e308';
+  if (x < 1e6) return String(x);
+  const e = Math.log2(x);
+  return Number.isInteger(e) ? `2^${e} (${x.toPrecision(3)})` : x.toPrecision(3);
+}
+
 function rate(x: number | null): string {
   return x === null ? '-' : Number.isFinite(x) ? x.toPrecision(4) : 'n/a';
 }
@@ -50,6 +58,14 @@ export function equilibriaText(r: EquilibriaResult): string {
     out.push(`group ${nameList(g.chambers)} (${what}): ${g.equilibria.length} equilibri${g.equilibria.length === 1 ? 'um' : 'a'} ${how}`.trimEnd());
     for (const n of g.notes) out.push(`  note: ${n}`);
   }
+  if (!r.complete) {
+    const why = r.timed_out ? `the time budget of ${significant(r.max_wall, 3)} s ran out (--max-wall)` : 'a group was searched, not enumerated';
+    out.push(`incomplete: ${why}; the list may miss equilibria`);
+    for (const g of r.groups.filter((x) => !x.complete)) {
+      const what = g.method === 'deflation' ? `${g.examined} Newton start${g.examined === 1 ? '' : 's'} of ${g.combinations} tried` : `${count(g.examined)} examined`;
+      out.push(`  group ${nameList(g.chambers)}: ${count(g.branch_combinations)} branch combinations, ${what}`);
+    }
+  }
   out.push('');
   if (r.equilibria.length) {
     const names = Object.keys(r.equilibria[0].chambers);
@@ -61,13 +77,15 @@ export function equilibriaText(r: EquilibriaResult): string {
       e.time_constant === null ? '-' : display(e.time_constant, 'time'),
       ...names.map((n) => cell(e.chambers[n])),
     ]);
-    if (names.length <= WIDE_MAX_CHAMBERS || r.equilibria.length > TALL_MAX_EQUILIBRIA) {
+    if (names.length <= WIDE_MAX_CHAMBERS) {
       out.push(table(['#', 'stability', 'growth 1/s', 'slowest τ', ...names], rows));
     } else {
-      // many chambers: a chamber a row, an equilibrium a column
+      // many chambers: a chamber a row, an equilibrium a column (the first twelve; all are in the JSON)
       out.push(table(['#', 'stability', 'growth 1/s', 'slowest τ'], rows.map((row) => row.slice(0, 4))));
       out.push('');
-      out.push(table(['chamber', ...r.equilibria.map((_, i) => `#${i + 1}`)], names.map((n) => [n, ...r.equilibria.map((e) => cell(e.chambers[n]))])));
+      const shown = r.equilibria.slice(0, TALL_MAX_EQUILIBRIA);
+      out.push(table(['chamber', ...shown.map((_, i) => `#${i + 1}`)], names.map((n) => [n, ...shown.map((e) => cell(e.chambers[n]))])));
+      if (r.equilibria.length > shown.length) out.push(`(chambers of the first ${shown.length} equilibria; --json lists every one)`);
     }
     out.push('(kPa gauge; λ stretch; R rising, F falling branch of the wall curve, R3 rising again past a minimum)');
     if (reached !== null) out.push('* the equilibrium the transient reaches');
@@ -107,7 +125,7 @@ export function equilibriaJson(r: EquilibriaResult): string {
   return json({
     format: r.format, title: r.title, status: r.status, message: r.message,
     valves: r.valves, gas: r.gas, heat: r.heat, ambient: r.ambient,
-    count: r.count,
+    count: r.count, complete: r.complete, timed_out: r.timed_out, max_wall: r.max_wall,
     equilibria: r.equilibria.map((e) => ({
       chambers: e.chambers, stable: e.stable, stability: e.stability, growth_rate: e.growth_rate,
       time_constant: e.time_constant, eigenvalues: e.eigenvalues, consistent: e.consistent,
@@ -115,6 +133,7 @@ export function equilibriaJson(r: EquilibriaResult): string {
     })),
     groups: r.groups.map((g) => ({
       chambers: g.chambers, kind: g.kind, mass: g.mass, method: g.method, combinations: g.combinations,
+      branch_combinations: g.branch_combinations, examined: g.examined, timed_out: g.timed_out,
       complete: g.complete, flowing: g.flowing, notes: g.notes, count: g.equilibria.length,
     })),
     transient: r.transient,
@@ -134,7 +153,7 @@ export function traceText(r: TraceResult): string {
   for (const b of r.branches) {
     const ps = b.points.map((p) => p.parameter);
     const stable = b.points.filter((p) => p.stable).length;
-    out.push(`branch ${b.id} (${b.chambers.join(', ')}): ${b.points.length} points, ${r.parameter.vary} ${v(Math.min(...ps))} .. ${v(Math.max(...ps))}, stable at ${stable} of them`);
+    out.push(`branch ${b.id} (${nameList(b.chambers)}): ${b.points.length} points, ${r.parameter.vary} ${v(Math.min(...ps))} .. ${v(Math.max(...ps))}, stable at ${stable} of them`);
     for (const p of b.points) {
       if (!p.special || p.special === 'end') continue;
       const states = Object.entries(p.chambers).map(([n, c]) => `${n} ${cell(c)}`).join(', ');
@@ -142,6 +161,7 @@ export function traceText(r: TraceResult): string {
     }
     out.push(`  ends: ${b.ends[0]}; ${b.ends[1]}`);
   }
+  if (r.timed_out) out.push(`incomplete: the time budget of ${significant(r.max_wall, 3)} s ran out (--max-wall): the branches traced so far are listed`);
   for (const n of r.notes) out.push(`note: ${n}`);
   return out.join('\n') + '\n';
 }
