@@ -8,7 +8,7 @@ import { readMaxWall, refuseLargeGroup } from './equilibria.js';
  * Largest group of joined chambers `plenum trace` follows: every point of a branch needs Newton
  * solves (sparse from 32 chambers) and a growth rate, from a certified sparse eigenvalue solve
  * where the jacobian allows it and else a dense eigenvalue problem of the group's size (200
- * linear chambers: 1.4 s of CPU for a branch of 24 points; groups past a pressure maximum take
+ * linear chambers: 1.3 s of CPU for a branch of 24 points; groups past a pressure maximum take
  * the dense path, O(n³) a point).
  */
 export const MAX_TRACE_CHAMBERS = 500;

@@ -111,11 +111,31 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
   const deadline = opts.deadline ?? Infinity;
   let timedOut = false;
   const withStability = opts.stability !== false;
-  const add = (at: ChamberRest[], note?: string): void => {
+  // the budget: the first MIN_ANALYSED states whatever it says, then none whose analysis (as long
+  // as the longest so far) would overrun it; those found but not analysed are counted
+  let analysed = 0;
+  let longest = 0;
+  let skipped = 0;
+  /** Adds a state with its stability; false, adding nothing, when the budget is spent. */
+  const add = (at: ChamberRest[], note?: string): boolean => {
+    const t0 = performance.now();
+    if (withStability && analysed >= MIN_ANALYSED && t0 + longest > deadline) {
+      timedOut = true;
+      result.complete = false;
+      skipped++;
+      return false;
+    }
     const stability = withStability
       ? groupStability(setup, g, at.map((c) => c.mass), masses)
       : { eigenvalues: [], growth_rate: null, time_constant: null, stability: 'marginal' as const, ok: true };
     result.equilibria.push(note ? { chambers: at, stability, note } : { chambers: at, stability });
+    analysed++;
+    longest = Math.max(longest, performance.now() - t0);
+    return true;
+  };
+  const budgetNote = (): void => {
+    result.timed_out = timedOut;
+    if (skipped) result.notes.push(`the time budget ran out: ${skipped} more equilibri${skipped === 1 ? 'um' : 'a'} found but not analysed`);
   };
 
   if (g.kind === 'fed') {
@@ -162,25 +182,12 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
     const offFirst = (r: Root): number => r.segs.reduce((a, k) => a + (k > 0 ? 1 : 0), 0);
     const rest = roots.slice(first.length).map((r, k) => ({ r, k })).sort((a, b) => offFirst(a.r) - offFirst(b.r) || a.k - b.k).map((x) => x.r);
     if (result.method === 'deflation') roots = [...first, ...rest];
-    let listed = 0;
-    let longest = 0; // the longest analysis so far: stop before one would overrun the budget
-    for (const r of roots) {
-      const t0 = performance.now();
-      if (withStability && listed >= MIN_ANALYSED && t0 + longest > deadline) {
-        timedOut = true;
-        result.complete = false;
-        result.notes.push(`the time budget ran out: ${roots.length - listed} more equilibri${roots.length - listed === 1 ? 'um' : 'a'} found but not analysed`);
-        break;
-      }
-      add(r.at.map((a, i) => restOf(chs[i], r.p, pa, a.V, a.m, r.segs[i])));
-      listed++;
-      longest = Math.max(longest, performance.now() - t0);
-    }
+    const kept: Root[] = [];
+    for (const r of roots) if (add(r.at.map((a, i) => restOf(chs[i], r.p, pa, a.V, a.m, r.segs[i])))) kept.push(r);
     if (result.method === 'deflation') {
-      const order = result.equilibria.map((e, k) => ({ e, p: roots[k].p })).sort((a, b) => a.p - b.p);
+      const order = result.equilibria.map((e, k) => ({ e, p: kept[k].p })).sort((a, b) => a.p - b.p);
       result.equilibria = order.map((x) => x.e);
     }
-    result.timed_out = timedOut;
     // states where a one-way valve to a known pressure has let gas in or out until it holds
     const sides = opts.outside ? sidesOf(setup, g, opts.outside) : [];
     for (const side of sides) {
@@ -192,6 +199,7 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
         add(states, `${side.what}: the group ${side.inflow ? 'gained' : 'lost'} ${(Math.abs(held - M) * 1e3).toPrecision(4)} g of gas`);
       }
     }
+    budgetNote();
     return result;
   }
 
@@ -225,6 +233,7 @@ export function groupEquilibria(setup: RestSetup, g: RestGroup, masses: ArrayLik
     for (const states of at.list) add(states, note);
   }
   reliefs.forEach((k) => { sys.branches[k].open = false; });
+  budgetNote();
   if (!anySolved) {
     result.complete = false;
     result.notes.push('the steady-flow pressures could not be found (the flow balance did not converge)');
