@@ -13,10 +13,16 @@
  * - star: one rigid tank with every other chamber on its own line around it (a dense row and
  *   column in the jacobian), pods and linear cells, filled through a valve opening at 0.1 s.
  *
+ * - relief (event-heavy, for the stiff integrators' restarts; not in `npm run bench`'s default
+ *   shapes): the chain's tanks and pods, fed at one end through a valve that a schedule opens
+ *   and closes every 100 ms (40 ramp ends, each a breakpoint), with a relief valve venting every
+ *   tenth chamber (opens above 30 kPa gauge, reseats below 20 kPa gauge: each cycle opens and
+ *   reseats them), 2 s.
+ *
  * The numbers are a demo scenario, not measurements.
  */
 
-export type NetworkShape = 'chain' | 'grid' | 'star';
+export type NetworkShape = 'chain' | 'grid' | 'star' | 'relief';
 
 export interface NetworkOptions {
   /** Output sample interval, e.g. "10 ms". */
@@ -115,7 +121,31 @@ export function netlistFor(shape: NetworkShape, n: number, o: NetworkOptions = {
     case 'chain': return chainNetlist(n, o);
     case 'grid': return gridNetlist(n, o);
     case 'star': return starNetlist(n, o);
+    case 'relief': return reliefNetlist(n, o);
   }
+}
+
+/** The event-heavy chain: a pulsed supply and relief valves on every tenth chamber (see the module comment). */
+export function reliefNetlist(n: number, o: NetworkOptions = {}): string {
+  const out: string[] = [header(`Generated chain of ${n} chambers with relief valves and a pulsed supply`, o)];
+  out.push('reservoirs:\n  supply: { pressure: 100 kPa gauge }\n');
+  out.push('chambers:\n');
+  for (let i = 0; i < n; i++) {
+    out.push(i % 2 === 1
+      ? `  c${i}: { ${POD}, start: { stretch: 1.05 } }\n`
+      : `  c${i}: { ${TANK}, start: { pressure: 0 kPa gauge } }\n`);
+  }
+  out.push('lines:\n');
+  for (let i = 0; i + 1 < n; i++) out.push(`  l${i}: { from: c${i}, to: c${i + 1}, diameter: 2 mm, length: 100 mm }\n`);
+  out.push('valves:\n');
+  const pulses: string[] = [];
+  for (let k = 0; k < 10; k++) pulses.push(`{ at: ${0.1 + 0.2 * k} s, open: 100%, over: 5 ms }`, `{ at: ${0.2 + 0.2 * k} s, open: 0%, over: 5 ms }`);
+  out.push(`  feed: { from: supply, to: c0, conductance: 2 L/(s*bar), critical-ratio: 0.3, initially: closed, schedule: [ ${pulses.join(', ')} ] }\n`);
+  for (let i = 0; i < n; i += 10) {
+    out.push(`  r${i}: { from: c${i}, to: ambient, orifice: 0.5 mm, discharge-coefficient: 0.6, relief: { opens-above: 30 kPa gauge, reseats-below: 20 kPa gauge } }\n`);
+  }
+  out.push(simulateLine(o, '2 s'));
+  return out.join('');
 }
 
 /**

@@ -1,6 +1,6 @@
 /**
- * Parallel speed-up of the two commands that spread work over threads: `plenum sweep` (a grid of
- * 64 cases of an example netlist) and `plenum check` (24 netlists: four copies of each example),
+ * Parallel speed-up of the two commands that spread work over threads: `plenum sweep` (grids of
+ * 64 and 256 cases of an example netlist) and `plenum check` (four copies of each example),
  * each with --jobs 1 and --jobs 2, run alternately so that load shifts fall on both alike; the
  * fastest round of each is kept. Whole-process wall and CPU times through the bundled CLI.
  */
@@ -29,6 +29,12 @@ export function parallelSpeedups(work: string, rounds: number): SpeedupRow[] {
     {
       command: 'plenum sweep', work: '64 cases of networks/gripper-charge.yaml',
       args: ['sweep', 'networks/gripper-charge.yaml', '--vary', 'lines.feed_tube.diameter=2 mm:6 mm:8', '--vary', 'chambers.finger.thickness=0.8 mm:1.2 mm:8', '-q', '--json', join(work, 'sweep.json')],
+    },
+    {
+      // the same study four times as large: the fixed cost of a second thread (its start-up, its
+      // own warm-up and optimising compilation of the hot code, some 0.6–0.9 s of CPU) spread thinner
+      command: 'plenum sweep', work: '256 cases of networks/gripper-charge.yaml',
+      args: ['sweep', 'networks/gripper-charge.yaml', '--vary', 'lines.feed_tube.diameter=2 mm:6 mm:16', '--vary', 'chambers.finger.thickness=0.8 mm:1.2 mm:16', '-q', '--json', join(work, 'sweep256.json')],
     },
     { command: 'plenum check', work: `${files.length} netlists (4 copies of each example)`, args: ['check', ...files, '-q'] },
   ];

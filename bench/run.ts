@@ -255,12 +255,12 @@ if (sideExponents.length) {
   log(table(['method', 'sizes', 'whole process (wall)', 'whole process (CPU)', 'solve'], sideExponents.map((e) => [e.method, `${e.from} → ${e.to}`, fmt(e.wall, 2), fmt(e.cpu, 2), fmt(e.solve, 2)])));
 }
 
-// ---- 2c. the stiff integrators in process: RODAS against ROS34PW2 ------------------------------
+// ---- 2c. the stiff integrators in process: RODAS against NDF/BDF --------------------------------
 
-log('\n## Stiff integrators in process: RODAS against ROS34PW2 (a W-method keeping its jacobian); CPU ms of the solve, best of 2');
+log('\n## Stiff integrators in process: RODAS against NDF/BDF (src/solve/bdf.ts, keeping its jacobian); CPU ms of the solve, best of 2');
 const integratorRows = [];
-for (const shape of ['chain', 'grid', 'star'] as NetworkShape[]) {
-  for (const n of quick ? [1000] : [1000, 10_000]) {
+for (const shape of ['chain', 'grid', 'star', 'relief'] as NetworkShape[]) {
+  for (const n of quick || shape === 'relief' ? [1000] : [1000, 10_000]) {
     for (const r of compareIntegrators(n, 2, shape)) integratorRows.push({ shape, n, method: r.method, steps: r.steps, rejected: r.rejected, rhs: r.rhs, jacobians: r.jacobians, lu: r.lu, cpuMs: r.ms });
   }
 }

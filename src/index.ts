@@ -18,7 +18,7 @@ export { loadModel } from './transient/load.js';
 export { readNetlist } from './netlist/read.js';
 export { netlistJsonSchema } from './netlist/schema.js';
 export { buildModel } from './model/build.js';
-export { simulate, type SimulateOptions } from './transient/transient.js';
+export { simulate, type SimulateOptions, type StiffIntegrator } from './transient/transient.js';
 export { resultJson } from './report/json.js';
 export { traceCsv } from './report/csv.js';
 export { summaryText } from './report/table.js';

@@ -1,6 +1,7 @@
 /** `plenum sweep NETLIST --vary PATH=VALUES ...`: a parameter study, in parallel, with a summary. */
 import { formatDiagnostic } from '../diag/diagnostic.js';
-import { runSweep, sweepCsv, sweepJson, sweepSummaryText, type Shard } from '../index.js';
+import { runSweep, type Shard } from '../studies/sweep.js';
+import { sweepCsv, sweepJson, sweepSummaryText } from '../studies/sweep-report.js';
 import { checkOutputPaths, emitOutputs, toStdout, UsageError } from './io.js';
 import { progressLine } from './progress.js';
 import { readInputFile } from './netlist-file.js';

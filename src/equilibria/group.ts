@@ -18,7 +18,7 @@ import type { ChamberRest, GroupResult } from './types.js';
 /** Share of a closed group's time budget the search for rest states may use. */
 const SEARCH_SHARE = 0.5;
 /** Rest states whose stability is analysed whatever the budget. */
-const MIN_ANALYSED = 2;
+const MIN_ANALYSED = 1;
 
 export function groupMassesOf(g: RestGroup, masses: ArrayLike<number>): number {
   return g.chambers.reduce((a, c) => a + masses[c], 0);

@@ -48,10 +48,10 @@ export function groupStability(setup: RestSetup, g: RestGroup, groupMasses: Arra
  * (rightmost.ts) near `hint`, the growth rate of a nearby state; by the dense eigenvalues when
  * that cannot certify it. Only what a traced point reports: no eigenvalue list, no time constant.
  */
-export function groupGrowth(setup: RestSetup, g: RestGroup, groupMasses: ArrayLike<number>, base: ArrayLike<number>, hint: number): { growth_rate: number | null; stability: StabilityVerdict; sparse: boolean } {
+export function groupGrowth(setup: RestSetup, g: RestGroup, groupMasses: ArrayLike<number>, base: ArrayLike<number>, hint: number): { growth_rate: number | null; stability: StabilityVerdict } {
   const L = groupLinearisation(setup, g, groupMasses, base);
   const fast = rightmostStability(setup.sys, L, hint);
-  if (fast) return { ...fast, sparse: true };
+  if (fast) return fast;
   const st = stabilityAt(setup.sys, L);
-  return { growth_rate: st.growth_rate, stability: st.stability, sparse: false };
+  return { growth_rate: st.growth_rate, stability: st.stability };
 }

@@ -23,9 +23,6 @@ export class GroupProblem {
   private readonly contexts = new Map<number, Context | string>();
   private readonly s: WallPoint = { p: 0, dpdV: 0 };
   private readonly guess: number[];
-  /** Points whose stability came from the sparse certified path, and from the dense eigenvalues. */
-  sparsePoints = 0;
-  densePoints = 0;
 
   constructor(
     readonly param: Parameter, readonly groupIndex: number, readonly valves: ValveState,
@@ -140,8 +137,6 @@ export class GroupProblem {
       gm.push(m);
     }
     const st = hint !== undefined && (!special || special === 'end') ? groupGrowth(setup, group, gm, c.masses, hint) : groupStability(setup, group, gm, c.masses);
-    if ('sparse' in st && st.sparse) this.sparsePoints++;
-    else this.densePoints++;
     return {
       parameter: this.param.value(x[n]), chambers, stable: st.stability === 'stable', stability: st.stability,
       growth_rate: st.growth_rate, ...(special ? { special } : {}),

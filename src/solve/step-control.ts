@@ -84,11 +84,11 @@ const SAFE = 0.9;
 /** h_new/h is kept in [1/SHRINK_MAX, GROW_MAX] = [0.2, 6] (rodas.f defaults). */
 const SHRINK_MAX = 5;
 const GROW_MAX = 6;
-const DEFAULT_MAX_STEPS = 100_000;
+export const DEFAULT_MAX_STEPS = 100_000;
 /** Consecutive failed factorisations (each halving h) before giving up. */
-const MAX_SINGULAR = 5;
+export const MAX_SINGULAR = 5;
 /** Non-finite attempts (each dividing h by 4) without getting past the trouble spot. */
-const MAX_NON_FINITE = 10;
+export const MAX_NON_FINITE = 10;
 
 /**
  * The adaptive loop of RODAS and ROS34PW2: step budget, the last step clipped to tEnd, halving

@@ -4,6 +4,7 @@
 import type { Model } from '../model/types.js';
 import { NetworkSystem } from '../assemble/system.js';
 import { drive, type EventChatter } from '../solve/driver.js';
+import { bdf } from '../solve/bdf.js';
 import { rosenbrock } from '../solve/rosenbrock.js';
 import { odex } from '../solve/odex.js';
 import type { Integrator } from '../solve/types.js';
@@ -34,7 +35,18 @@ export interface SimulateOptions {
   samples?: { begin(channels: readonly { key: string; unit: string }[]): void; sample(t: number, row: Float64Array): void };
   /** Channels to read at given times on the dense output (calibration); see RunResult.probed. */
   probe?: ProbeRequest;
+  /**
+   * The stiff integrator of `method: implicit` and of a stiff `auto`: 'rodas' (default; the
+   * Rosenbrock method, src/solve/rosenbrock.ts) or 'bdf' (the NDF/BDF multistep method keeping
+   * its jacobian, src/solve/bdf.ts; measured against RODAS in docs/performance.md, "Stiff
+   * integrators": not a clear win at equal accuracy, so not the default). `stats.method`
+   * names the one used.
+   */
+  stiff?: StiffIntegrator;
 }
+
+export type StiffIntegrator = 'bdf' | 'rodas';
+const STIFF: Record<StiffIntegrator, Integrator> = { bdf, rodas: rosenbrock };
 
 /**
  * Step budget when the netlist sets no `max-steps`, so that no run goes on for ever.
@@ -53,14 +65,18 @@ function mergeSeen(log: readonly { t: number; what: string }[], seen: { t: numbe
   return all.concat(seen).map((e, k) => ({ e, k })).sort((a, b) => a.e.t - b.e.t || a.k - b.k).map((x) => x.e);
 }
 
-export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array): { integrator: Integrator; name: string; why: string } {
+/**
+ * The integrator of a run: the netlist's `method`, and for `auto` the stiffness estimate; the
+ * stiff one is `stiff` (measured against each other: docs/performance.md, "Stiff integrators").
+ */
+export function chooseMethod(model: Model, sys: NetworkSystem, y0: Float64Array, stiff: StiffIntegrator = 'rodas'): { integrator: Integrator; name: string; why: string } {
   const m = model.simulate.method;
   if (m === 'explicit') return { integrator: odex, name: 'odex', why: 'method: explicit' };
-  if (m === 'implicit') return { integrator: rosenbrock, name: 'rodas', why: 'method: implicit' };
+  if (m === 'implicit') return { integrator: STIFF[stiff], name: stiff, why: 'method: implicit' };
   const rho = spectralRadiusEstimate(sys, 0, y0);
-  const stiff = !(rho * model.simulate.duration <= STIFF_THRESHOLD);
-  return stiff
-    ? { integrator: rosenbrock, name: 'rodas', why: `auto: stiff (ρ(J)·duration ≈ ${rho * model.simulate.duration > 1e6 ? (rho * model.simulate.duration).toExponential(1) : Math.round(rho * model.simulate.duration)})` }
+  const isStiff = !(rho * model.simulate.duration <= STIFF_THRESHOLD);
+  return isStiff
+    ? { integrator: STIFF[stiff], name: stiff, why: `auto: stiff (ρ(J)·duration ≈ ${rho * model.simulate.duration > 1e6 ? (rho * model.simulate.duration).toExponential(1) : Math.round(rho * model.simulate.duration)})` }
     : { integrator: odex, name: 'odex', why: `auto: non-stiff (ρ(J)·duration ≈ ${Math.round(rho * model.simulate.duration)})` };
 }
 
@@ -90,7 +106,7 @@ export function simulate(model: Model, options: SimulateOptions = {}): RunResult
   const y0 = sys.initialState();
   const initialMass = sys.totalMass(y0); // the chambers' gas, and any held by wave lines
   sys.settleInitialModes(0, y0);
-  const { integrator, name: chosen } = chooseMethod(model, sys, y0);
+  const { integrator, name: chosen } = chooseMethod(model, sys, y0, options.stiff);
   const duration = model.simulate.duration;
   const sample = model.simulate.sample ?? duration / DEFAULT_SAMPLES;
   const channels = sys.channels();

@@ -28,7 +28,7 @@ describe('time budget', () => {
     expect(g.examined).toBeGreaterThan(8);
     expect(g.examined).toBeLessThan(g.combinations); // stopped before every planned start
     expect(g.timed_out).toBe(true);
-    expect(r.equilibria.length).toBeGreaterThanOrEqual(2);
+    expect(r.equilibria.length).toBeGreaterThanOrEqual(1);
     for (const e of r.equilibria) {
       const cs = Object.values(e.chambers);
       const p = cs[0].pressure;
@@ -63,7 +63,7 @@ describe('time budget', () => {
     expect(g.branch_combinations).toBe(2 ** 40);
     expect(r.timed_out).toBe(true);
     expect(r.complete).toBe(false);
-    expect(g.equilibria.length).toBeGreaterThanOrEqual(2);
+    expect(g.equilibria.length).toBeGreaterThanOrEqual(1);
     expect(g.equilibria.length).toBeLessThan(4096);
     expect(g.notes.some((n) => /the time budget ran out: \d+ more equilibria found but not analysed/.test(n))).toBe(true);
     // every state listed rests at the supply's pressure

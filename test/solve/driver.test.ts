@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { drive, type EventfulProblem } from '../../src/solve/driver.js';
 import { rosenbrock } from '../../src/solve/rosenbrock.js';
 import { odex } from '../../src/solve/odex.js';
+import { bdf } from '../../src/solve/bdf.js';
 
 /**
  * A bouncing ball: y'' = −g, bounce with restitution 0.9 at y = 0. The first impact of a ball
@@ -27,7 +28,7 @@ function ball(): EventfulProblem & { bounces: number[] } {
 }
 
 describe('driver', () => {
-  for (const [name, integrator] of [['rodas', rosenbrock], ['odex', odex]] as const) {
+  for (const [name, integrator] of [['rodas', rosenbrock], ['odex', odex], ['bdf', bdf]] as const) {
     it(`${name}: locates state events on the dense output (bouncing ball, closed form)`, () => {
       // The event changes the state: the driver passes its own copy to fireEvent, so we apply
       // the bounce by wrapping: the driver restarts from the (mutated) event state.
@@ -45,7 +46,7 @@ describe('driver', () => {
     });
   }
 
-  it('restarts at breakpoints and reports them', () => {
+  it.each([['rodas', rosenbrock], ['bdf', bdf]] as const)('%s: restarts at breakpoints and reports them', (_name, integrator) => {
     const seen: number[] = [];
     const p: EventfulProblem = {
       n: 1, rtol: 1e-9, atol: new Float64Array([1e-12]),
@@ -53,7 +54,7 @@ describe('driver', () => {
       breakpoints: [0.5], atBreakpoint(t) { seen.push(t); },
       nEvents: 0, eventValues() {}, eventDirection() { return 0; }, fireEvent() { return false; },
     };
-    const r = drive(p, { integrator: rosenbrock, t0: 0, tEnd: 1, y0: new Float64Array([0]), sample: 0.25, observe() {} });
+    const r = drive(p, { integrator, t0: 0, tEnd: 1, y0: new Float64Array([0]), sample: 0.25, observe() {} });
     expect(r.status).toBe('completed');
     expect(seen).toEqual([0.5]);
     expect(r.y[0]).toBeCloseTo(0, 10); // up for 0.5 s, down for 0.5 s
@@ -95,7 +96,7 @@ describe('driver', () => {
   }
 
   it('a switch that ends every step is stopped by the step budget', () => {
-    for (const integrator of [rosenbrock, odex]) {
+    for (const integrator of [rosenbrock, odex, bdf]) {
       const p = switching();
       // odex's long steps would step over pairs of crossings: hMax just below their spacing
       const hMax = integrator === odex ? 4.9e-4 : undefined;
@@ -144,7 +145,7 @@ describe('driver', () => {
   }
 
   it('events crossing at the same instant all fire, at that instant', () => {
-    for (const integrator of [rosenbrock, odex]) {
+    for (const integrator of [rosenbrock, odex, bdf]) {
       const p = staircase(6, 0);
       const r = drive(p, { integrator, t0: 0, tEnd: 2, y0: new Float64Array(6), sample: 0.5, observe() {} });
       expect(r.status).toBe('completed');
@@ -174,7 +175,7 @@ describe('driver', () => {
     const b = 1.149;
     expect(b - a).toBeGreaterThan(0);
     expect(b - a).toBeLessThan(3e-16);
-    for (const integrator of [rosenbrock, odex]) {
+    for (const integrator of [rosenbrock, odex, bdf]) {
       const seen: number[] = [];
       const samples: number[] = [];
       const p: EventfulProblem = {

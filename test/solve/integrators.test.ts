@@ -1,11 +1,13 @@
-// Behaviour both integrators share through the Integrator contract (src/solve/types.ts):
+// Behaviour the integrators share through the Integrator contract (src/solve/types.ts):
 // accuracy against closed forms, dense output, work counts, invariants and statuses.
 // Sources are named per test; the tank closed form and its worked numbers are from
 // docs/references.md ("Rigid tank through a laminar capillary").
 import { describe, expect, it } from 'vitest';
+import { bdf } from '../../src/solve/bdf.js';
 import { odex } from '../../src/solve/odex.js';
 import { rosenbrock } from '../../src/solve/rosenbrock.js';
 import type { IntegrateResult, Integrator, OdeProblem, StepCallback } from '../../src/solve/types.js';
+import { robertsonRhs } from './robertson.js';
 
 // ---- Problems -------------------------------------------------------------------------------
 
@@ -41,12 +43,7 @@ const robertsonJacobian = (_t: number, y: Float64Array, J: Float64Array) => {
 function robertson(analyticJacobian: boolean): OdeProblem {
   return {
     n: 3,
-    rhs: (_t, y, d) => {
-      const a = 0.04 * y[0], b = 1e4 * y[1] * y[2], c = 3e7 * y[1] * y[1];
-      d[0] = -a + b;
-      d[1] = a - b - c;
-      d[2] = c;
-    },
+    rhs: robertsonRhs,
     jacobian: analyticJacobian ? robertsonJacobian : undefined,
     rtol: 1e-6,
     atol: Float64Array.of(1e-8, 1e-12, 1e-8),
@@ -89,7 +86,7 @@ const decay: OdeProblem = {
 
 const keepGoing: StepCallback = () => true;
 
-const integrators: [string, Integrator][] = [['rosenbrock', rosenbrock], ['odex', odex]];
+const integrators: [string, Integrator][] = [['rosenbrock', rosenbrock], ['odex', odex], ['bdf', bdf]];
 
 // ---- Tests ----------------------------------------------------------------------------------
 
@@ -123,6 +120,11 @@ describe.each(integrators)('%s', (name, integrate) => {
       // Finite-difference jacobian (n = 1 column) + ∂f/∂t + f(t, y) + 5 stages per attempt.
       expect(r.work.jacobians).toBeGreaterThanOrEqual(r.work.steps);
       expect(r.work.lu).toBe(r.work.steps + r.work.rejected);
+    } else if (name === 'bdf') {
+      // one jacobian kept for the whole run (Newton converges with it), an LU per change of h or order
+      expect(r.work.jacobians).toBe(1);
+      expect(r.work.lu).toBeGreaterThanOrEqual(1);
+      expect(r.work.lu).toBeLessThan(r.work.steps);
     } else {
       expect(r.work.jacobians).toBe(0);
       expect(r.work.lu).toBe(0);
