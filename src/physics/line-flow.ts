@@ -96,7 +96,8 @@ const st = { p0: 0, pb: 0, T0: 0, R: 0, gamma: 0, D: 0, LD: 0, mu: 0, rel: 0, fl
  * Inlet Mach number M with M (1 + w k M²)^(−n) = g (n = (γ+1)/(2(γ−1))), on the subsonic branch
  * M ≤ 1/√(wγ) (the isothermal choking limit at the inlet). NaN when g is beyond that branch.
  * The left side increases on [0, 1/√w] (its derivative is (1 − wM²)(1 + wkM²)^(−n−1)) and lies
- * below M, so M ≥ g: Newton from g, bisection whenever a step leaves the bracket.
+ * below M, so M ≥ g: Newton from one fixed-point sweep M = g (1 + w k g²)^n, bisection whenever
+ * a step leaves the bracket.
  */
 function inletMach(g: number, w: number, gamma: number): number {
   if (gamma !== machGamma) machConstants(gamma); // psi uses them too
