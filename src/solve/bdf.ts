@@ -35,7 +35,7 @@
  * recompute the jacobian).
  */
 import { makeIterationMatrix, type IterationMatrix } from './iteration-matrix.js';
-import { allFinite, checkArguments, DEFAULT_MAX_STEPS, EPS, initialStep, justInside, MAX_NON_FINITE, MAX_SINGULAR, minStep, positive, rmsNorm } from './step-control.js';
+import { allFinite, checkArguments, EPS, initialStep, MAX_NON_FINITE, MAX_SINGULAR, minStep, positive, rmsNorm, runBounds } from './step-control.js';
 import { zeroWork, type DenseOutput, type IntegrateOptions, type IntegrateResult, type Integrator, type IntegratorStatus, type OdeProblem, type StepCallback, type WorkCounts } from './types.js';
 
 export const MAX_ORDER = 5;
@@ -285,11 +285,7 @@ export const bdf: Integrator = (problem, t0, y0, tEnd, onStep, options: BdfOptio
   if (t0 === tEnd) return finish('completed', 'empty interval');
   const errorScale = positive(options.errorScale) ? options.errorScale : ERROR_SCALE;
   const maxOrder = Math.max(1, Math.min(MAX_ORDER, Math.floor(options.maxOrder ?? MAX_ORDER)));
-  const dir = Math.sign(tEnd - t0);
-  const span = Math.abs(tEnd - t0);
-  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
-  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
-  const tInside = justInside(tEnd, dir);
+  const { dir, span, hMax, maxSteps, tInside } = runBounds(t0, tEnd, options);
 
   let k = kept.get(problem);
   if (!k || k.kind !== (options.linearAlgebra ?? 'auto')) {

@@ -25,7 +25,7 @@
  * output for the GBS method"; section numbers from memory); odex 2.0.4, a port of Hairer's
  * odex.f.
  */
-import { checkArguments } from './step-control.js';
+import { checkArguments, EPS, positive, runBounds } from './step-control.js';
 import { odexSolve, type OdexDense, type OdexOutput, type OdexRun } from './odex-core.js';
 import {
   zeroWork,
@@ -36,19 +36,12 @@ import {
   type IntegratorStatus,
 } from './types.js';
 
-const DEFAULT_MAX_STEPS = 100_000;
 /** Non-finite aborts without getting past the trouble spot before giving up. */
 const MAX_NON_FINITE = 10;
 /** Evaluations at the last accepted t, since it was accepted, that mean the step size is zero. */
 const STALL_CALLS = 50;
 /** odex's unit round-off (Solver.uRound); it ends a run when |tEnd − x| ≤ 10·|x|·U_ROUND. */
 const U_ROUND = 2.3e-16;
-const EPS = 2.220446049250313e-16;
-
-/** An option that is given and usable as a step size. */
-function positive(x: number | undefined): x is number {
-  return x !== undefined && x > 0 && Number.isFinite(x);
-}
 
 /** Thrown from inside the rhs adapter to abandon an odex run; never escapes this module. */
 class NonFiniteRhs {
@@ -75,14 +68,9 @@ export const odex: Integrator = (problem, t0, y0, tEnd, onStep, options: Integra
     ({ status, t, y: Float64Array.from(y), work, hLast, message });
   if (t0 === tEnd) return finish('completed', 'empty interval');
 
-  const dir = Math.sign(tEnd - t0);
-  const span = Math.abs(tEnd - t0);
-  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
-  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
+  // f is never sampled at or past tEnd (tInside): a schedule switching there belongs to the next run
+  const { dir, span, hMax, maxSteps, tInside } = runBounds(t0, tEnd, options);
   const atol = Float64Array.from(problem.atol);
-
-  // f is never sampled at or past tEnd: a schedule switching there belongs to the next run.
-  const tInside = tEnd - dir * Math.max(Math.abs(tEnd) * EPS, Number.MIN_VALUE);
   // the core hands views of its own buffers: the rhs reads y and writes dydt in place
   let stallCalls = 0;
   const f = (x: number, yArr: Float64Array, dydt: Float64Array): void => {

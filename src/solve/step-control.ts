@@ -50,6 +50,23 @@ export function initialStep(p: OdeProblem, y: Float64Array, f: Float64Array, spa
   return d0 < 1e-5 || d1 < 1e-5 ? 1e-6 * span : 0.01 * (d0 / d1);
 }
 
+/**
+ * The fixed bounds of one integration call from t0 towards tEnd: direction, span, the largest
+ * step (option hMax, at most the span), the step budget, and the last time f may be sampled
+ * (justInside). The integrators (RODAS and ROS34PW2 through adaptiveSteps, odex, bdf) share it.
+ */
+export function runBounds(t0: number, tEnd: number, options: IntegrateOptions):
+  { dir: number; span: number; hMax: number; maxSteps: number; tInside: number } {
+  const dir = Math.sign(tEnd - t0);
+  const span = Math.abs(tEnd - t0);
+  return {
+    dir, span,
+    hMax: positive(options.hMax) ? Math.min(options.hMax, span) : span,
+    maxSteps: options.maxSteps ?? DEFAULT_MAX_STEPS,
+    tInside: justInside(tEnd, dir),
+  };
+}
+
 export function checkArguments(name: string, problem: OdeProblem, t0: number, y0: Float64Array, tEnd: number): void {
   if (y0.length !== problem.n || problem.atol.length !== problem.n) {
     throw new RangeError(`${name}: y0 has ${y0.length} and atol ${problem.atol.length} entries, problem.n is ${problem.n}`);
@@ -114,11 +131,7 @@ export function adaptiveSteps(
     ({ status, t, y: Float64Array.from(y), work, hLast, message });
   if (t0 === tEnd) return finish('completed', 'empty interval');
 
-  const dir = Math.sign(tEnd - t0);
-  const span = Math.abs(tEnd - t0);
-  const hMax = positive(options.hMax) ? Math.min(options.hMax, span) : span;
-  const maxSteps = options.maxSteps ?? DEFAULT_MAX_STEPS;
-  const tInside = justInside(tEnd, dir);
+  const { dir, span, hMax, maxSteps, tInside } = runBounds(t0, tEnd, options);
   const e = 1 / q;
 
   if (!st.start(t, y, work)) return finish('non-finite', `rhs is not finite at the initial point t = ${t}`);
